@@ -1,0 +1,126 @@
+package dev.interim.sequential;
+
+import dev.interim.stats.Alternative;
+import java.util.Arrays;
+import org.apache.commons.numbers.rootfinder.BrentSolver;
+
+/**
+ * A group-sequential design: the type I error α, its direction, how α is spent over the looks, and
+ * optionally a non-binding futility rule. Immutable; {@link #monitor()} starts the looks.
+ *
+ * <p>Two-sided designs are symmetric: at every look the α increment is split equally between the
+ * upper and the lower boundary, so each side spends α(t)/2 (the convention of Jennison & Turnbull
+ * 2000, §2.2, and of Lan & DeMets 1983). A two-sided design at α = 0.05 therefore has the same
+ * boundaries as a one-sided design at α = 0.025, up to the tiny probability of paths that would
+ * cross both.
+ *
+ * @param alpha total type I error, in (0, 1)
+ * @param alternative direction: two-sided, or one-sided greater/less
+ * @param spending α-spending function, or null for a classic boundary
+ * @param classic the classic fixed-K boundary, or null for a spending function
+ * @param futility non-binding futility by β spending (one-sided only), or null
+ * @param resolution grid parameter r of the recursion (Jennison & Turnbull §19.2.1)
+ */
+public record GroupSequentialDesign(double alpha, Alternative alternative, SpendingFunction spending,
+                                    ClassicBoundary classic, Futility futility, int resolution) {
+
+    /** r = 16 puts 189 points on a full grid; {@code SequentialAccuracyTest} shows crossings within 1e-6 of r = 64. */
+    public static final int DEFAULT_RESOLUTION = 16;
+
+    public GroupSequentialDesign {
+        if (!(alpha > 0 && alpha < 1)) {
+            throw new IllegalArgumentException("alpha must lie strictly between 0 and 1, got " + alpha);
+        }
+        if (alternative == null) {
+            throw new IllegalArgumentException("a design needs a direction (two-sided, greater or less)");
+        }
+        if ((spending == null) == (classic == null)) {
+            throw new IllegalArgumentException("a design needs exactly one of a spending function or a classic boundary");
+        }
+        if (futility != null && alternative == Alternative.TWO_SIDED) {
+            throw new IllegalArgumentException("futility stopping is supported for one-sided designs only");
+        }
+        if (resolution < 4 || resolution > 256) {
+            throw new IllegalArgumentException("grid resolution must lie between 4 and 256, got " + resolution);
+        }
+    }
+
+    /** A design spending α with {@code spending}. */
+    public static GroupSequentialDesign spending(double alpha, Alternative alternative, SpendingFunction spending) {
+        if (spending == null) {
+            throw new IllegalArgumentException("a spending design needs a spending function");
+        }
+        return new GroupSequentialDesign(alpha, alternative, spending, null, null, DEFAULT_RESOLUTION);
+    }
+
+    /**
+     * A classic Pocock or O'Brien–Fleming design whose constant makes the planned looks spend exactly
+     * α (two-sided designs split it equally between the sides).
+     *
+     * @param plannedFractions the planned information fractions, increasing, the last one 1
+     */
+    public static GroupSequentialDesign classic(double alpha, Alternative alternative, ClassicBoundary.Shape shape,
+                                                double[] plannedFractions) {
+        Fractions.validate(plannedFractions);
+        if (plannedFractions[plannedFractions.length - 1] != 1.0) {
+            throw new IllegalArgumentException("the planned fractions of a classic design must end at 1, got "
+                    + plannedFractions[plannedFractions.length - 1]);
+        }
+        if (!(alpha > 0 && alpha < 1)) {
+            throw new IllegalArgumentException("alpha must lie strictly between 0 and 1, got " + alpha);
+        }
+        boolean twoSided = alternative == Alternative.TWO_SIDED;
+        double[] fractions = plannedFractions.clone();
+        // Size of the classic shape with constant 1 at each look; the constant scales it.
+        double[] unit = new double[fractions.length];
+        for (int i = 0; i < unit.length; i++) {
+            unit[i] = new ClassicBoundary(shape, 1).at(fractions[i]);
+        }
+        java.util.function.DoubleUnaryOperator excess = c -> {
+            double[] up = new double[unit.length];
+            double[] low = new double[unit.length];
+            for (int i = 0; i < unit.length; i++) {
+                up[i] = c * unit[i];
+                low[i] = twoSided ? -c * unit[i] : Double.NEGATIVE_INFINITY;
+            }
+            CrossingProbabilities p = CrossingProbabilities.of(fractions, up, low, 0, DEFAULT_RESOLUTION);
+            return Math.log(p.totalUpper() + p.totalLower()) - Math.log(alpha);
+        };
+        double single = StandardNormal.upperQuantile(twoSided ? alpha / 2 : alpha);
+        double constant = new BrentSolver(1e-14, 1e-11, 1e-13).findRoot(excess, single * 0.3, single * 3);
+        return new GroupSequentialDesign(alpha, alternative, null, new ClassicBoundary(shape, constant), null,
+                DEFAULT_RESOLUTION);
+    }
+
+    /** This design with a non-binding futility rule. */
+    public GroupSequentialDesign withFutility(Futility rule) {
+        return new GroupSequentialDesign(alpha, alternative, spending, classic, rule, resolution);
+    }
+
+    /** This design on a finer or coarser grid. */
+    public GroupSequentialDesign withResolution(int r) {
+        return new GroupSequentialDesign(alpha, alternative, spending, classic, futility, r);
+    }
+
+    /** Cumulative α this design allows by fraction t. Classic designs spend by their planned looks only. */
+    public double alphaAllowed(double t) {
+        return spending != null ? spending.spent(t, alpha) : (t >= 1 ? alpha : Double.NaN);
+    }
+
+    /** The label of the efficacy rule: {@code obf}, {@code pocock}, {@code power:3}, {@code fixed-obf}... */
+    public String efficacyLabel() {
+        return spending != null ? spending.label() : classic.shape().label();
+    }
+
+    /** A fresh monitor: no look yet, no α spent. */
+    public SequentialMonitor monitor() {
+        return new SequentialMonitor(this);
+    }
+
+    /** The looks of this design at the given increasing fractions. */
+    public Look[] looksAt(double... fractions) {
+        Fractions.validate(fractions);
+        SequentialMonitor m = monitor();
+        return Arrays.stream(fractions).mapToObj(m::lookAt).toArray(Look[]::new);
+    }
+}

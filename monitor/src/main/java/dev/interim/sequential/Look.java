@@ -1,0 +1,60 @@
+package dev.interim.sequential;
+
+import dev.interim.stats.Alternative;
+
+/**
+ * One look of a group-sequential design: where the boundaries stand at this information fraction and
+ * how much error has been spent. Boundaries are on the standard normal (Z) scale; an absent boundary
+ * is infinite ({@code upper = +∞}, {@code lower = −∞}).
+ *
+ * <p>For a two-sided design both boundaries reject the null hypothesis. For a one-sided
+ * {@link Alternative#GREATER} design {@code upper} rejects and {@code lower}, when futility is
+ * planned, stops for futility; a {@link Alternative#LESS} design is the mirror image.
+ *
+ * @param number 1-based look number
+ * @param fraction information fraction used at this look (never below the previous look's)
+ * @param upper upper boundary on the Z scale
+ * @param lower lower boundary on the Z scale
+ * @param alternative the direction of the design
+ * @param alphaSpent cumulative type I error spent up to and including this look
+ * @param alphaIncrement type I error spent at this look
+ * @param betaSpent cumulative type II error spent by futility boundaries (0 without futility)
+ * @param informationAdded false when this look brought no information beyond the previous one
+ * @param last true when this look reached the planned maximum information (fraction ≥ 1) or came after it
+ */
+public record Look(int number, double fraction, double upper, double lower, Alternative alternative,
+                   double alphaSpent, double alphaIncrement, double betaSpent,
+                   boolean informationAdded, boolean last) {
+
+    /** Whether statistic z crosses a boundary that rejects the null hypothesis. */
+    public boolean rejects(double z) {
+        return switch (alternative) {
+            case TWO_SIDED -> z >= upper || z <= lower;
+            case GREATER -> z >= upper;
+            case LESS -> z <= lower;
+        };
+    }
+
+    /** Whether statistic z crosses a futility boundary (never for two-sided designs). */
+    public boolean futile(double z) {
+        return switch (alternative) {
+            case TWO_SIDED -> false;
+            case GREATER -> z <= lower;
+            case LESS -> z >= upper;
+        };
+    }
+
+    /** The boundary that rejects, in the direction of the alternative (upper for two-sided). */
+    public double efficacyBoundary() {
+        return alternative == Alternative.LESS ? lower : upper;
+    }
+
+    /** The futility boundary, or NaN where the design has none. */
+    public double futilityBoundary() {
+        return switch (alternative) {
+            case TWO_SIDED -> Double.NaN;
+            case GREATER -> lower == Double.NEGATIVE_INFINITY ? Double.NaN : lower;
+            case LESS -> upper == Double.POSITIVE_INFINITY ? Double.NaN : upper;
+        };
+    }
+}
