@@ -1,0 +1,118 @@
+package dev.interim.stats;
+
+import org.apache.commons.statistics.distribution.ContinuousDistribution;
+import org.apache.commons.statistics.distribution.NormalDistribution;
+import org.apache.commons.statistics.distribution.TDistribution;
+
+/**
+ * The outcome of a fixed-horizon test.
+ *
+ * @param name              the test, e.g. {@code "Welch t"}
+ * @param statistic         the test statistic; ±∞ when the data have no variation but differ from the null
+ * @param degreesOfFreedom  degrees of freedom of the t reference distribution, or
+ *                          {@link Double#POSITIVE_INFINITY} for z tests (standard normal reference)
+ * @param pValue            p-value for {@code alternative}, in [0, 1]
+ * @param alternative       the alternative hypothesis
+ * @param estimate          the effect: a mean or rate (one-sample), or first minus second (two-sample)
+ * @param standardError     the standard error used for the confidence interval, {@code >= 0}
+ */
+public record TestResult(String name, double statistic, double degreesOfFreedom, double pValue,
+                         Alternative alternative, double estimate, double standardError) {
+
+    private static final NormalDistribution STANDARD_NORMAL = NormalDistribution.of(0, 1);
+
+    public TestResult {
+        if (name == null || name.isBlank()) {
+            throw new IllegalArgumentException("name must be a non-blank test name");
+        }
+        Checks.notNull("alternative", alternative);
+        if (Double.isNaN(statistic)) {
+            throw new IllegalArgumentException("statistic must not be NaN");
+        }
+        if (!(degreesOfFreedom > 0.0)) {
+            throw new IllegalArgumentException(
+                    "degreesOfFreedom must be > 0 (or +Infinity for a z test), was " + degreesOfFreedom);
+        }
+        if (!(pValue >= 0.0 && pValue <= 1.0)) {
+            throw new IllegalArgumentException("pValue must be in [0, 1], was " + pValue);
+        }
+        Checks.finite("estimate", estimate);
+        if (!(standardError >= 0.0 && standardError < Double.POSITIVE_INFINITY)) {
+            throw new IllegalArgumentException("standardError must be finite and >= 0, was " + standardError);
+        }
+    }
+
+    /** Builds a result, reading the p-value from the reference distribution for {@code degreesOfFreedom}. */
+    static TestResult of(String name, double statistic, double degreesOfFreedom, Alternative alternative,
+                         double estimate, double standardError) {
+        double p = alternative.pValue(referenceDistribution(degreesOfFreedom), statistic);
+        return new TestResult(name, statistic, degreesOfFreedom, p, alternative, estimate, standardError);
+    }
+
+    /** Whether this is a z test, judged against the standard normal distribution. */
+    public boolean isZTest() {
+        return degreesOfFreedom == Double.POSITIVE_INFINITY;
+    }
+
+    /**
+     * Whether the test rejects the null hypothesis at level {@code alpha}: {@code pValue <= alpha},
+     * the p-value being the smallest level at which the test rejects.
+     *
+     * @throws IllegalArgumentException unless {@code 0 < alpha < 1}
+     */
+    public boolean reject(double alpha) {
+        Checks.openUnitInterval("alpha", alpha);
+        return pValue <= alpha;
+    }
+
+    /**
+     * The confidence interval for {@link #estimate()} that matches this test: {@code estimate ± q·SE}
+     * with q the t quantile at this test's degrees of freedom (normal quantile for z tests). A
+     * one-sided alternative gives a one-sided interval: {@code [lower, +∞)} for
+     * {@link Alternative#GREATER}, {@code (-∞, upper]} for {@link Alternative#LESS}.
+     *
+     * <p>Proportion tests use the unpooled (Wald) standard error here, so the interval can disagree
+     * with the test near its edge and is poor for rates near 0 or 1.
+     *
+     * @throws IllegalArgumentException unless {@code 0 < level < 1}
+     */
+    public ConfidenceInterval confidenceInterval(double level) {
+        Checks.openUnitInterval("level", level);
+        ContinuousDistribution reference = referenceDistribution(degreesOfFreedom);
+        return switch (alternative) {
+            case TWO_SIDED -> {
+                double halfWidth = reference.inverseSurvivalProbability((1 - level) / 2) * standardError;
+                yield new ConfidenceInterval(estimate - halfWidth, estimate + halfWidth, level);
+            }
+            case GREATER -> new ConfidenceInterval(
+                    estimate - reference.inverseSurvivalProbability(1 - level) * standardError,
+                    Double.POSITIVE_INFINITY, level);
+            case LESS -> new ConfidenceInterval(Double.NEGATIVE_INFINITY,
+                    estimate + reference.inverseSurvivalProbability(1 - level) * standardError, level);
+        };
+    }
+
+    /**
+     * The statistic on the standard normal scale, with the same tail probabilities: the z with
+     * {@code Φ(z) = T_df(t)}. For a z test this is the statistic itself. Group-sequential boundaries
+     * are z values, so a t statistic from a small sample meets them through this map.
+     *
+     * <p>Each tail is taken from the function that keeps its precision: for {@code t > 0} the survival
+     * probability is inverted through the normal survival function, for {@code t <= 0} the cumulative
+     * probability through the normal quantile. Computing {@code Φ⁻¹(T(t))} directly would round
+     * {@code T(t)} to 1 and give +∞ for large t.
+     */
+    public double zEquivalent() {
+        if (isZTest() || Double.isInfinite(statistic)) {
+            return statistic;
+        }
+        TDistribution t = TDistribution.of(degreesOfFreedom);
+        return statistic > 0
+                ? STANDARD_NORMAL.inverseSurvivalProbability(t.survivalProbability(statistic))
+                : STANDARD_NORMAL.inverseCumulativeProbability(t.cumulativeProbability(statistic));
+    }
+
+    private static ContinuousDistribution referenceDistribution(double degreesOfFreedom) {
+        return degreesOfFreedom == Double.POSITIVE_INFINITY ? STANDARD_NORMAL : TDistribution.of(degreesOfFreedom);
+    }
+}
