@@ -1,0 +1,24 @@
+package dev.interim.cli;
+
+import dev.interim.sequential.SpendingFunction;
+
+/** Human names of the spending functions, for titles. */
+final class SpendingNames {
+    private SpendingNames() {}
+
+    static String describe(SpendingFunction f) {
+        if (f instanceof SpendingFunction.OBrienFlemingType) {
+            return "O'Brien-Fleming-type";
+        }
+        if (f instanceof SpendingFunction.PocockType) {
+            return "Pocock-type";
+        }
+        if (f instanceof SpendingFunction.Power p) {
+            return "power (rho " + Decimals.plain(p.rho()) + ")";
+        }
+        if (f instanceof SpendingFunction.HwangShihDeCani h) {
+            return "Hwang-Shih-DeCani (gamma " + Decimals.plain(h.gamma()) + ")";
+        }
+        return f.label();
+    }
+}

@@ -1,0 +1,61 @@
+package dev.interim.cli;
+
+import java.io.PrintWriter;
+import picocli.CommandLine;
+import picocli.CommandLine.IExecutionExceptionHandler;
+import picocli.CommandLine.IParameterExceptionHandler;
+import picocli.CommandLine.ParameterException;
+import picocli.CommandLine.ParseResult;
+import picocli.CommandLine.UnmatchedArgumentException;
+
+/**
+ * Turns every failure into one line on stderr and an exit code. Bad usage (picocli's parameter
+ * errors) and bad input (an {@link IllegalArgumentException} from the statistics, whose messages are
+ * written for users) exit with 2 and point at the command's help; anything else is a bug and exits
+ * with 1. Set the environment variable {@code INTERIM_DEBUG} to also get the stack trace of a bug.
+ */
+final class UserErrorHandler implements IParameterExceptionHandler, IExecutionExceptionHandler {
+    static final String PREFIX = "interim: ";
+
+    @Override
+    public int handleParseException(ParameterException ex, String[] args) {
+        CommandLine command = ex.getCommandLine();
+        if (ex instanceof UnmatchedArgumentException unmatched && !command.getSubcommands().isEmpty()
+                && !unmatched.isUnknownOption() && !unmatched.getUnmatched().isEmpty()) {
+            return badInput(command, "unknown command '" + unmatched.getUnmatched().get(0) + "': use "
+                    + String.join(", ", command.getSubcommands().keySet()));
+        }
+        return badInput(command, ex.getMessage());
+    }
+
+    @Override
+    public int handleExecutionException(Exception ex, CommandLine command, ParseResult parsed) {
+        if (ex instanceof IllegalArgumentException) {
+            return badInput(command, ex.getMessage());
+        }
+        PrintWriter err = command.getErr();
+        err.println(PREFIX + "unexpected failure (" + ex.getClass().getSimpleName()
+                + (ex.getMessage() == null ? "" : ": " + oneLine(ex.getMessage()))
+                + "); please report it, with the command you ran");
+        if (System.getenv("INTERIM_DEBUG") != null) {
+            ex.printStackTrace(err);
+        }
+        err.flush();
+        return Interim.FAILURE;
+    }
+
+    private static int badInput(CommandLine command, String message) {
+        String what = message == null || message.isBlank() ? "invalid input" : oneLine(message);
+        if (what.endsWith(".")) {
+            what = what.substring(0, what.length() - 1);
+        }
+        PrintWriter err = command.getErr();
+        err.println(PREFIX + what + "; see '" + command.getCommandSpec().qualifiedName() + " --help'");
+        err.flush();
+        return Interim.BAD_INPUT;
+    }
+
+    private static String oneLine(String text) {
+        return text.strip().replaceAll("\\s*\\R\\s*", " ");
+    }
+}

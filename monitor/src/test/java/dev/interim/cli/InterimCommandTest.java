@@ -1,0 +1,81 @@
+package dev.interim.cli;
+
+import static org.assertj.core.api.Assertions.assertThat;
+
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import org.junit.jupiter.api.Test;
+import picocli.CommandLine;
+
+class InterimCommandTest {
+
+    @Test
+    void helpOfTheTopCommandListsTheCommandsAndExitsZero() {
+        Cli.Result r = Cli.run("--help");
+
+        assertThat(r.exit()).isZero();
+        assertThat(r.out()).contains("Usage: interim", "plan");
+        assertThat(r.err()).isEmpty();
+    }
+
+    @Test
+    void everyCommandHasHelpThatExitsZero() {
+        CommandLine cli = Interim.commandLine();
+        assertThat(cli.getSubcommands()).isNotEmpty();
+        for (String name : cli.getSubcommands().keySet()) {
+            Cli.Result r = Cli.run(name, "--help");
+            assertThat(r.exit()).as(name).isZero();
+            assertThat(r.out()).as(name).contains("Usage: interim " + name);
+        }
+    }
+
+    @Test
+    void versionIsPrinted() {
+        Cli.Result r = Cli.run("--version");
+
+        assertThat(r.exit()).isZero();
+        assertThat(r.out().strip()).isEqualTo("interim 0.1.0");
+    }
+
+    @Test
+    void noCommandIsAUsageError() {
+        Cli.Result r = Cli.run();
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString().startsWith("interim: ").contains("plan");
+    }
+
+    @Test
+    void anUnknownCommandIsNamed() {
+        Cli.Result r = Cli.run("forecast");
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString()
+                .isEqualTo("interim: unknown command 'forecast': use plan; see 'interim --help'");
+    }
+
+    @Test
+    void anUnexpectedFailureExitsWithOneOnOneLine() {
+        StringWriter err = new StringWriter();
+        CommandLine cli = Interim.commandLine(new PrintWriter(new StringWriter()), new PrintWriter(err));
+
+        int exit = new UserErrorHandler().handleExecutionException(new IllegalStateException("grid\nexhausted"), cli, null);
+
+        assertThat(exit).isEqualTo(1);
+        assertThat(err.toString().lines().toList()).singleElement().asString()
+                .startsWith("interim: unexpected failure (IllegalStateException: grid exhausted)");
+    }
+
+    @Test
+    void anIllegalArgumentFromTheStatisticsIsBadInput() {
+        StringWriter err = new StringWriter();
+        CommandLine cli = Interim.commandLine(new PrintWriter(new StringWriter()), new PrintWriter(err));
+
+        int exit = new UserErrorHandler().handleExecutionException(
+                new IllegalArgumentException("alpha must lie strictly between 0 and 1, got 2.0"), cli.getSubcommands().get("plan"), null);
+
+        assertThat(exit).isEqualTo(2);
+        assertThat(err.toString()).isEqualTo("interim: alpha must lie strictly between 0 and 1, got 2.0; see 'interim plan --help'"
+                + System.lineSeparator());
+    }
+}
