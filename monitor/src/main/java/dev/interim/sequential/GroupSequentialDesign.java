@@ -8,11 +8,13 @@ import org.apache.commons.numbers.rootfinder.BrentSolver;
  * A group-sequential design: the type I error α, its direction, how α is spent over the looks, and
  * optionally a non-binding futility rule. Immutable; {@link #monitor()} starts the looks.
  *
- * <p>Two-sided designs are symmetric: at every look the α increment is split equally between the
- * upper and the lower boundary, so each side spends α(t)/2 (the convention of Jennison & Turnbull
- * 2000, §2.2, and of Lan & DeMets 1983). A two-sided design at α = 0.05 therefore has the same
- * boundaries as a one-sided design at α = 0.025, up to the tiny probability of paths that would
- * cross both.
+ * <p>Two-sided designs are symmetric: a two-sided design at level α is an upper and a lower
+ * one-sided design at level α/2, each side spending the spending function evaluated at α/2, so the
+ * boundaries of a two-sided design at α = 0.05 are ± those of a one-sided design at α = 0.025 (up to
+ * the negligible probability of paths that would cross both sides). For the Pocock-type, power and
+ * Hwang–Shih–DeCani families, which are proportional to α, this is the same as splitting α(t)
+ * equally; for the O'Brien–Fleming type, whose shape depends on α, it is the common convention of
+ * group-sequential software and tables rather than 2 − 2Φ(z_{1−α/2}/√t) shared between the sides.
  *
  * @param alpha total type I error, in (0, 1)
  * @param alternative direction: two-sided, or one-sided greater/less
@@ -102,9 +104,16 @@ public record GroupSequentialDesign(double alpha, Alternative alternative, Spend
         return new GroupSequentialDesign(alpha, alternative, spending, classic, futility, r);
     }
 
-    /** Cumulative α this design allows by fraction t. Classic designs spend by their planned looks only. */
+    /**
+     * Cumulative α this design allows by fraction t, both sides together. A two-sided design spends
+     * the spending function at α/2 on each side. Classic designs spend by their planned looks only
+     * (NaN before the final one).
+     */
     public double alphaAllowed(double t) {
-        return spending != null ? spending.spent(t, alpha) : (t >= 1 ? alpha : Double.NaN);
+        if (spending == null) {
+            return t >= 1 ? alpha : Double.NaN;
+        }
+        return alternative == Alternative.TWO_SIDED ? 2 * spending.spent(t, alpha / 2) : spending.spent(t, alpha);
     }
 
     /** The label of the efficacy rule: {@code obf}, {@code pocock}, {@code power:3}, {@code fixed-obf}... */

@@ -111,10 +111,7 @@ public final class SequentialMonitor {
     }
 
     private double allowedBy(double fraction) {
-        if (design.spending() != null) {
-            return design.spending().spent(fraction, design.alpha());
-        }
-        return design.alpha(); // classic: bounded by the shape, not by a spending schedule
+        return design.spending() != null ? design.alphaAllowed(fraction) : design.alpha();
     }
 
     /**

@@ -1,62 +1,88 @@
 package dev.interim.sequential;
 
-import java.util.Arrays;
-
 /**
  * The sub-density of the standardized statistic Z_k on the continuation region after look k: the
  * density of Z_k restricted to the sample paths that have not stopped at looks 1..k. Its integral is
  * the probability of continuing past look k.
  *
- * <p>Method: Jennison & Turnbull (2000), ch. 19. The score S_k = Z_k·√t_k (information in units of
- * the planned maximum) has independent normal increments with mean η·Δt and variance Δt, where η is
- * the drift (θ·√I_max; 0 under the null). The density is held on their grid (6r − 1 points with
- * spacing 3/(2r) in the centre and logarithmic tails, cut at the boundaries, midpoints added) and
- * carried to the next look by integrating the Gaussian transition kernel.
+ * <p>Method: the recursion of Jennison & Turnbull (2000), ch. 19. The score S_k = Z_k·√t_k
+ * (information in units of the planned maximum) has independent normal increments with mean η·Δt
+ * and variance Δt, η being the drift (θ·√I_max; 0 under the null). The density is carried from one
+ * look to the next by integrating the Gaussian transition kernel against it.
  *
- * <p>Two integration paths, chosen per look. When the kernel is wide compared with the grid (the
- * usual case of a few planned looks), Simpson's rule on the grid, as in the book. When it is narrow
- * (many looks with small information increments, the common case of continuous monitoring, and the
- * limit of a look that adds almost nothing), Simpson's rule would alias the kernel; instead the
- * density is interpolated by the quadratic through each Simpson panel and integrated exactly
- * against the kernel with closed forms in Φ and φ, over the few panels the kernel reaches. Either
- * way one look costs the same at look 10 and at look 10,000: only this density is carried forward.
+ * <p>Representation. The book holds the density on a fixed grid and integrates by Simpson's rule,
+ * which is exact enough when the kernel is wide compared with the grid (a few planned looks) but
+ * aliases it when the kernel is narrow — the case of continuous monitoring, where thousands of looks
+ * each add a sliver of information, and the sharp layer that each cut leaves near a boundary. Here
+ * the density is a C¹ piecewise-cubic Hermite interpolant whose node values and slopes are computed
+ * exactly from the previous look (cubic interpolated propagation): narrow kernels are integrated in
+ * closed form against the cubic of each cell (moments of φ and antiderivatives of w^j·Φ(w)),
+ * wide ones by the trapezoidal rule with end corrections, exact for cubics. Cells are bisected until
+ * the interpolant reproduces the exact density at their midpoints, so the layers left by the cuts are
+ * resolved at their own scale, however small the increments. The node count does not grow with the
+ * number of looks: one more look costs the same at look 10 and at look 10,000.
  *
- * <p>Immutable. Not part of the public API: {@link BoundaryRecursion} drives it.
+ * <p>Immutable. Package-private: {@link SequentialMonitor} and {@link CrossingProbabilities} drive it.
  */
 final class SubDensity {
-    /** Kernel half-width in standard deviations beyond which its mass (< 1e-19) is ignored. */
-    private static final double KERNEL_REACH = 9.0;
-    /** Simpson's rule is used only when the kernel spans at least this many central grid steps. */
-    private static final double WIDE_KERNEL_STEPS = 6.0;
+    /** Kernel reach in standard deviations; the mass beyond (< 2e-19) is ignored. */
+    private static final double REACH = 9.0;
+    /** The grid spans the mean ± this many units of Z (φ(9) ≈ 1e-18). */
+    private static final double SPAN = 9.0;
+    /** Uniform spacing on the mean ± CORE; beyond, the cells grow geometrically. */
+    private static final double CORE = 4.0;
+    private static final double GROWTH = 1.15;
+    /** A cell is bisected while its midpoint error times its width exceeds this. */
+    private static final double CELL_TOLERANCE = 1e-10;
+    private static final double SMALLEST_CELL = 1e-7;
+    /** The trapezoidal path needs the kernel to span at least this many central cells. */
+    private static final double WIDE_KERNEL_CELLS = 2.0;
+    /** A kernel at least this many central cells wide smooths the density enough to skip bisection. */
+    private static final double SMOOTHING_CELLS = 10.0;
 
     final double fraction;
     final double drift;
-    private final int r;
-    /** Grid points (odd count, panels [z[2j], z[2j+2]] with midpoints z[2j+1]); empty if nothing continues. */
-    private final double[] z;
+    private final int resolution;
+    private final double spacing;
+    private final double[] x;
     private final double[] f;
-    private final double[] weight;
-    /** Mass of the panels before panel j: prefix[j]; prefix[panels] is the total mass. */
+    private final double[] d;
+    /** prefix[i]: mass of the cells left of node i. */
     private final double[] prefix;
+    /** Corrected-trapezoid weights: ∫g ≈ Σ weight[i]·g(x_i) + slopeWeight[i]·g'(x_i). */
+    private final double[] weight;
+    private final double[] slopeWeight;
 
-    private SubDensity(double fraction, double drift, int r, double[] z, double[] f) {
+    private SubDensity(double fraction, double drift, int resolution, double[] x, double[] f, double[] d) {
         this.fraction = fraction;
         this.drift = drift;
-        this.r = r;
-        this.z = z;
+        this.resolution = resolution;
+        this.spacing = spacing(resolution);
+        this.x = x;
         this.f = f;
-        this.weight = simpsonWeights(z);
-        int panels = panels();
-        this.prefix = new double[panels + 1];
-        for (int j = 0; j < panels; j++) {
-            int i = 2 * j;
-            prefix[j + 1] = prefix[j] + (z[i + 2] - z[i]) / 6 * (f[i] + 4 * f[i + 1] + f[i + 2]);
+        this.d = d;
+        int n = x.length;
+        this.prefix = new double[n];
+        this.weight = new double[n];
+        this.slopeWeight = new double[n];
+        for (int i = 0; i + 1 < n; i++) {
+            double h = x[i + 1] - x[i];
+            prefix[i + 1] = prefix[i] + cellMass(i);
+            weight[i] += h / 2;
+            weight[i + 1] += h / 2;
+            slopeWeight[i] += h * h / 12;
+            slopeWeight[i + 1] -= h * h / 12;
         }
     }
 
+    /** Central grid spacing for grid parameter r: 0.8/r (r = 16 gives 0.05). */
+    static double spacing(int resolution) {
+        return 0.8 / resolution;
+    }
+
     /** The state before the first look: no information, the score is 0 with certainty. */
-    static SubDensity origin(double drift, int r) {
-        return new SubDensity(0, drift, r, new double[0], new double[0]);
+    static SubDensity origin(double drift, int resolution) {
+        return new SubDensity(0, drift, resolution, new double[0], new double[0], new double[0]);
     }
 
     boolean isOrigin() {
@@ -65,12 +91,17 @@ final class SubDensity {
 
     /** Probability of having continued past every look so far. */
     double mass() {
-        return isOrigin() ? 1 : prefix[panels()];
+        if (isOrigin()) {
+            return 1;
+        }
+        return x.length == 0 ? 0 : prefix[x.length - 1];
     }
 
-    int gridSize() {
-        return z.length;
+    int nodes() {
+        return x.length;
     }
+
+    // ---- the three questions a look asks -----------------------------------------------------
 
     /** P(continued so far and Z ≥ b at fraction t1 > fraction). */
     double upperTail(double t1, double b) {
@@ -80,19 +111,21 @@ final class SubDensity {
         if (isOrigin()) {
             return StandardNormal.sf(b - drift * Math.sqrt(t1));
         }
-        Kernel k = kernel(t1);
-        double c = k.centre(b);
-        if (z.length == 0) {
+        if (x.length == 0) {
             return 0;
         }
-        if (!k.narrow) {
+        Kernel k = kernel(t1);
+        double c = k.centre(b);
+        if (k.wide) {
             double sum = 0;
-            for (int i = 0; i < z.length; i++) {
-                sum += weight[i] * f[i] * StandardNormal.cdf((z[i] - c) / k.s);
+            for (int i = 0; i < x.length; i++) {
+                double w = (x[i] - c) / k.s;
+                double cdf = StandardNormal.cdf(w);
+                sum += weight[i] * f[i] * cdf + slopeWeight[i] * (d[i] * cdf + f[i] * StandardNormal.pdf(w) / k.s);
             }
-            return sum;
+            return clamp(sum);
         }
-        return exactUpper(c, k.s);
+        return clamp(exactTail(c, k.s, true));
     }
 
     /** P(continued so far and Z ≤ a at fraction t1 > fraction). */
@@ -103,56 +136,51 @@ final class SubDensity {
         if (isOrigin()) {
             return StandardNormal.cdf(a - drift * Math.sqrt(t1));
         }
+        if (x.length == 0) {
+            return 0;
+        }
         Kernel k = kernel(t1);
         double c = k.centre(a);
-        if (z.length == 0) {
-            return 0;
-        }
-        if (!k.narrow) {
+        if (k.wide) {
             double sum = 0;
-            for (int i = 0; i < z.length; i++) {
-                sum += weight[i] * f[i] * StandardNormal.sf((z[i] - c) / k.s);
+            for (int i = 0; i < x.length; i++) {
+                double w = (x[i] - c) / k.s;
+                double sf = StandardNormal.sf(w);
+                sum += weight[i] * f[i] * sf + slopeWeight[i] * (d[i] * sf - f[i] * StandardNormal.pdf(w) / k.s);
             }
-            return sum;
+            return clamp(sum);
         }
-        return mass() - exactUpper(c, k.s);
+        return clamp(exactTail(c, k.s, false));
     }
 
-    /** Density at x of Z at fraction t1 on the paths that continued so far (not yet cut at t1). */
-    double densityAt(double t1, double x) {
-        if (isOrigin()) {
-            return StandardNormal.pdf(x - drift * Math.sqrt(t1));
-        }
-        if (z.length == 0) {
-            return 0;
-        }
-        return densityAt(kernel(t1), x);
+    /** Density at z of Z at fraction t1 on the paths that continued so far (before any cut at t1). */
+    double densityAt(double t1, double z) {
+        double[] out = new double[2];
+        evaluator(t1).evaluate(z, out);
+        return out[0];
     }
 
     /** The sub-density at fraction t1 > fraction on the continuation region (lower, upper). */
     SubDensity advance(double t1, double lower, double upper) {
-        double[] grid = grid(drift * Math.sqrt(t1), lower, upper, r);
-        double[] values = new double[grid.length];
-        if (isOrigin()) {
-            double mean = drift * Math.sqrt(t1);
-            for (int i = 0; i < grid.length; i++) {
-                values[i] = StandardNormal.pdf(grid[i] - mean);
-            }
-        } else if (z.length > 0) {
-            Kernel k = kernel(t1);
-            for (int i = 0; i < grid.length; i++) {
-                values[i] = densityAt(k, grid[i]);
-            }
-        }
-        return new SubDensity(t1, drift, r, grid, values);
+        Evaluator evaluator = evaluator(t1);
+        double mean = drift * Math.sqrt(t1);
+        // A kernel ten cells wide leaves nothing the cubic cells cannot follow (midpoint error below
+        // (0.1)^4/384 of the density); nor does the first look, a plain normal density.
+        boolean smooth = isOrigin() || x.length == 0 || kernel(t1).s >= SMOOTHING_CELLS * spacing;
+        Grid grid = Grid.build(mean, lower, upper, spacing, evaluator, !smooth);
+        return new SubDensity(t1, drift, resolution, grid.x, grid.f, grid.d);
+    }
+
+    private double clamp(double p) {
+        return Math.min(mass(), Math.max(0, p));
     }
 
     // ---- the transition kernel ---------------------------------------------------------------
 
     /**
-     * From u = Z_k to x = Z at t1: x·√t1 = u·√t_k + N(η·Δ, Δ). As a function of u the kernel is
-     * normal with centre (x·√t1 − η·Δ)/√t_k and standard deviation s = √(Δ/t_k); the density of x
-     * carries the Jacobian ρ = √(t1/t_k).
+     * From u = Z_k to z at t1: z·√t1 = u·√t_k + N(η·Δ, Δ). As a function of u the kernel is normal
+     * with centre ρ·z − η·Δ/√t_k and standard deviation s = √(Δ/t_k), where ρ = √(t1/t_k) is also
+     * the Jacobian of the change of variable.
      */
     private Kernel kernel(double t1) {
         double delta = t1 - fraction;
@@ -160,220 +188,340 @@ final class SubDensity {
             throw new IllegalArgumentException("a look must add information: " + t1 + " after " + fraction);
         }
         double s = Math.sqrt(delta / fraction);
-        double step = 3.0 / (4 * r);
         return new Kernel(Math.sqrt(t1 / fraction), drift * delta / Math.sqrt(fraction), s,
-                s < WIDE_KERNEL_STEPS * step);
+                s >= WIDE_KERNEL_CELLS * spacing);
     }
 
-    private static final class Kernel {
-        final double rho;
-        final double shift;
-        final double s;
-        final boolean narrow;
-        final double scale;
-
-        Kernel(double rho, double shift, double s, boolean narrow) {
-            this.rho = rho;
-            this.shift = shift;
-            this.s = s;
-            this.narrow = narrow;
-            this.scale = rho; // x·√t1/√t_k = x·ρ
-        }
-
-        double centre(double x) {
-            return x * scale - shift;
+    private record Kernel(double rho, double shift, double s, boolean wide) {
+        double centre(double z) {
+            return rho * z - shift;
         }
     }
 
-    private double densityAt(Kernel k, double x) {
-        double c = k.centre(x);
-        if (!k.narrow) {
-            double sum = 0;
-            double inv = 1 / k.s;
-            for (int i = 0; i < z.length; i++) {
-                sum += weight[i] * f[i] * StandardNormal.pdf((z[i] - c) * inv);
+    /** Computes the density at t1 and its slope at any point. */
+    interface Evaluator {
+        void evaluate(double z, double[] valueAndSlope);
+    }
+
+    private Evaluator evaluator(double t1) {
+        if (isOrigin()) {
+            double mean = drift * Math.sqrt(t1);
+            return (z, out) -> {
+                double p = StandardNormal.pdf(z - mean);
+                out[0] = p;
+                out[1] = -(z - mean) * p;
+            };
+        }
+        if (x.length == 0) {
+            return (z, out) -> {
+                out[0] = 0;
+                out[1] = 0;
+            };
+        }
+        Kernel k = kernel(t1);
+        return k.wide ? (z, out) -> trapezoidDensity(k, z, out) : (z, out) -> exactDensity(k, z, out);
+    }
+
+    /**
+     * Value ρ∫f(u)φ(w)/s du and slope ρ²∫f(u)·w·φ(w)/s² du, w = (u − c)/s, by the corrected
+     * trapezoidal rule (the kernel is resolved by the grid).
+     */
+    private void trapezoidDensity(Kernel k, double z, double[] out) {
+        double c = k.centre(z);
+        double s = k.s;
+        double value = 0;
+        double slope = 0;
+        // Nodes beyond REACH + 3 kernel widths contribute below 1e-30 of the kernel's peak.
+        int first = cellIndex(c - (REACH + 3) * s);
+        for (int i = first; i < x.length; i++) {
+            double w = (x[i] - c) / s;
+            if (w > REACH + 3) {
+                break;
             }
-            return k.rho * inv * sum;
+            double phi = StandardNormal.pdf(w);
+            double k0 = phi / s;
+            double k0Slope = -w * phi / (s * s);
+            double k1 = w * phi / (s * s);
+            double k1Slope = (1 - w * w) * phi / (s * s * s);
+            value += weight[i] * f[i] * k0 + slopeWeight[i] * (d[i] * k0 + f[i] * k0Slope);
+            slope += weight[i] * f[i] * k1 + slopeWeight[i] * (d[i] * k1 + f[i] * k1Slope);
         }
-        return k.rho * exactDensity(c, k.s);
+        out[0] = Math.max(0, k.rho * value);
+        out[1] = k.rho * k.rho * slope;
     }
 
-    // ---- exact integration against the piecewise-quadratic interpolant --------------------------
-
-    private int panels() {
-        return z.length == 0 ? 0 : (z.length - 1) / 2;
-    }
-
-    /** ∫ q(u)·φ((u − c)/s)/s du over the panels the kernel reaches. */
-    private double exactDensity(double c, double s) {
-        double lo = c - KERNEL_REACH * s;
-        double hi = c + KERNEL_REACH * s;
-        int first = panelIndex(lo);
-        double sum = 0;
-        for (int j = first; j < panels() && z[2 * j] < hi; j++) {
-            double p = Math.max(z[2 * j], lo);
-            double q = Math.min(z[2 * j + 2], hi);
-            if (q <= p) {
-                continue;
-            }
-            double[] a = inKernelUnits(j, c, s);
-            double w1 = (p - c) / s;
+    /** The same value and slope, integrating each cell's cubic exactly against the narrow kernel. */
+    private void exactDensity(Kernel k, double z, double[] out) {
+        double c = k.centre(z);
+        double s = k.s;
+        double lo = c - REACH * s;
+        double hi = c + REACH * s;
+        double value = 0;
+        double slope = 0;
+        double[] a = new double[4];
+        int first = cellIndex(lo);
+        double w1 = (Math.max(x[first], lo) - c) / s;
+        double cdf1 = StandardNormal.cdf(w1);
+        double phi1 = StandardNormal.pdf(w1);
+        for (int i = first; i + 1 < x.length && x[i] < hi; i++) {
+            double q = Math.min(x[i + 1], hi);
             double w2 = (q - c) / s;
-            double phi1 = StandardNormal.pdf(w1);
+            double cdf2 = StandardNormal.cdf(w2);
             double phi2 = StandardNormal.pdf(w2);
-            double m0 = StandardNormal.cdf(w2) - StandardNormal.cdf(w1);
-            double m1 = phi1 - phi2;
-            double m2 = m0 + w1 * phi1 - w2 * phi2;
-            sum += a[0] * m0 + a[1] * m1 + a[2] * m2;
+            if (w2 > w1) {
+                inKernelUnits(i, c, s, a);
+                double m0 = cdf2 - cdf1;
+                double m1 = phi1 - phi2;
+                double m2 = m0 + w1 * phi1 - w2 * phi2;
+                double m3 = (w1 * w1 + 2) * phi1 - (w2 * w2 + 2) * phi2;
+                double m4 = 3 * m2 + w1 * w1 * w1 * phi1 - w2 * w2 * w2 * phi2;
+                value += a[0] * m0 + a[1] * m1 + a[2] * m2 + a[3] * m3;
+                slope += a[0] * m1 + a[1] * m2 + a[2] * m3 + a[3] * m4;
+            }
+            w1 = w2;
+            cdf1 = cdf2;
+            phi1 = phi2;
         }
-        return Math.max(0, sum);
+        out[0] = Math.max(0, k.rho * value);
+        out[1] = k.rho * k.rho * slope / s;
     }
 
-    /** ∫ q(u)·Φ((u − c)/s) du: the mass beyond the kernel's reach plus closed forms inside it. */
-    private double exactUpper(double c, double s) {
-        double lo = c - KERNEL_REACH * s;
-        double hi = c + KERNEL_REACH * s;
-        int panels = panels();
-        int last = panelIndex(hi);
+    /**
+     * ∫ f(u)·Φ(±(u − c)/s) du: the upper tail (+) or the lower tail (−) of the next statistic. Cells
+     * beyond the kernel's reach count fully or not at all; cells within it in closed form, using
+     * ∫w^j·Φ(w)dw and, for the lower tail, Φ(−w) directly so that tiny tails keep their accuracy.
+     */
+    private double exactTail(double c, double s, boolean upper) {
+        double lo = c - REACH * s;
+        double hi = c + REACH * s;
+        int n = x.length;
         double sum = 0;
-        if (hi < z[z.length - 1]) {
-            double top = Math.max(hi, z[0]);
-            sum += prefix[panels] - prefix[last + 1] + polynomialIntegral(last, top, z[2 * last + 2]);
+        if (upper) {
+            if (hi < x[n - 1]) {
+                int j = cellIndex(hi);
+                double from = Math.max(hi, x[0]);
+                sum += prefix[n - 1] - prefix[j + 1] + polynomialIntegral(j, from, x[j + 1]);
+            }
+        } else if (lo > x[0]) {
+            int j = cellIndex(lo);
+            double to = Math.min(lo, x[n - 1]);
+            sum += prefix[j] + polynomialIntegral(j, x[j], to);
         }
-        for (int j = panelIndex(lo); j < panels && z[2 * j] < hi; j++) {
-            double p = Math.max(z[2 * j], lo);
-            double q = Math.min(z[2 * j + 2], hi);
-            if (q <= p) {
+        double[] a = new double[4];
+        for (int i = cellIndex(lo); i + 1 < n && x[i] < hi; i++) {
+            double p = Math.max(x[i], lo);
+            double q = Math.min(x[i + 1], hi);
+            if (!(q > p)) {
                 continue;
             }
-            double[] a = inKernelUnits(j, c, s);
+            inKernelUnits(i, c, s, a);
             double w1 = (p - c) / s;
             double w2 = (q - c) / s;
-            sum += s * (a[0] * (g0(w2) - g0(w1)) + a[1] * (g1(w2) - g1(w1)) + a[2] * (g2(w2) - g2(w1)));
+            double part = 0;
+            if (upper) {
+                for (int j = 0; j < 4; j++) {
+                    part += a[j] * (tailAntiderivative(j, w2) - tailAntiderivative(j, w1));
+                }
+            } else {
+                // ∫ w^j Φ(−w) dw from w1 to w2 = (−1)^j [G_j(−w1) − G_j(−w2)]
+                for (int j = 0; j < 4; j++) {
+                    double g = tailAntiderivative(j, -w1) - tailAntiderivative(j, -w2);
+                    part += a[j] * ((j & 1) == 0 ? g : -g);
+                }
+            }
+            sum += s * part;
         }
-        return Math.min(mass(), Math.max(0, sum));
+        return sum;
     }
 
-    /** Index of the panel containing x, clamped to the panels that exist. */
-    private int panelIndex(double x) {
-        int panels = panels();
+    /** G_j(w) = ∫ w^j Φ(w) dw, j = 0..3 (each checked by differentiation in SubDensityTest). */
+    static double tailAntiderivative(int j, double w) {
+        double cdf = StandardNormal.cdf(w);
+        double phi = StandardNormal.pdf(w);
+        double w2 = w * w;
+        switch (j) {
+            case 0: return w * cdf + phi;
+            case 1: return ((w2 - 1) * cdf + w * phi) / 2;
+            case 2: return (w2 * w * cdf + (w2 + 2) * phi) / 3;
+            default: return ((w2 * w2 - 3) * cdf + (w2 * w + 3 * w) * phi) / 4;
+        }
+    }
+
+    /** Index of the cell [x_i, x_{i+1}] containing v, clamped to the cells that exist. */
+    private int cellIndex(double v) {
         int lo = 0;
-        int hi = panels - 1;
+        int hi = x.length - 2;
         while (lo < hi) {
             int mid = (lo + hi + 1) >>> 1;
-            if (z[2 * mid] <= x) {
+            if (x[mid] <= v) {
                 lo = mid;
             } else {
                 hi = mid - 1;
             }
         }
-        return lo;
+        return Math.max(0, lo);
     }
 
-    /**
-     * The quadratic through panel j, A + B·x + C·x² with x = u − midpoint, rewritten in the kernel's
-     * standard units w = (u − c)/s: α0 + α1·w + α2·w².
-     */
-    private double[] inKernelUnits(int j, double c, double s) {
-        int i = 2 * j;
-        double h = (z[i + 2] - z[i]) / 2;
-        double a = f[i + 1];
-        double b = (f[i + 2] - f[i]) / (2 * h);
-        double cc = (f[i] - 2 * f[i + 1] + f[i + 2]) / (2 * h * h);
-        double d = c - z[i + 1];
-        return new double[] {a + b * d + cc * d * d, s * (b + 2 * cc * d), cc * s * s};
-    }
-
-    /** ∫ from p to q of panel j's quadratic. */
-    private double polynomialIntegral(int j, double p, double q) {
-        if (q <= p) {
-            return 0;
-        }
-        int i = 2 * j;
-        double m = z[i + 1];
-        double h = (z[i + 2] - z[i]) / 2;
-        double a = f[i + 1];
-        double b = (f[i + 2] - f[i]) / (2 * h);
-        double cc = (f[i] - 2 * f[i + 1] + f[i + 2]) / (2 * h * h);
-        double x1 = p - m;
-        double x2 = q - m;
-        return a * (x2 - x1) + b * (x2 * x2 - x1 * x1) / 2 + cc * (x2 * x2 * x2 - x1 * x1 * x1) / 3;
-    }
-
-    // Antiderivatives of w^j·Φ(w); verified by differentiation in the comments of SubDensityTest.
-    private static double g0(double w) {
-        return w * StandardNormal.cdf(w) + StandardNormal.pdf(w);
-    }
-
-    private static double g1(double w) {
-        return ((w * w - 1) * StandardNormal.cdf(w) + w * StandardNormal.pdf(w)) / 2;
-    }
-
-    private static double g2(double w) {
-        return (w * w * w * StandardNormal.cdf(w) + (w * w + 2) * StandardNormal.pdf(w)) / 3;
-    }
-
-    // ---- the grid --------------------------------------------------------------------------------
-
-    /**
-     * Jennison & Turnbull (2000), §19.2.1: 6r − 1 points around the mean, spacing 3/(2r) on
-     * mean ± 3 and logarithmic beyond to mean ± (3 + 4·ln r); points outside (lower, upper) are
-     * replaced by the boundaries themselves; then panel midpoints are added for Simpson's rule.
-     * Returns an empty grid when the continuation region misses the grid entirely.
-     */
-    static double[] grid(double mean, double lower, double upper, int r) {
-        int n = 6 * r - 1;
-        double[] x = new double[n];
-        for (int i = 1; i <= n; i++) {
-            double v;
-            if (i < r) {
-                v = -3 - 4 * Math.log((double) r / i);
-            } else if (i <= 5 * r) {
-                v = -3 + 3.0 * (i - r) / (2 * r);
-            } else {
-                v = 3 + 4 * Math.log((double) r / (6 * r - i));
-            }
-            x[i - 1] = mean + v;
-        }
-        double from = Math.max(lower, x[0]);
-        double to = Math.min(upper, x[n - 1]);
-        if (!(to > from)) {
-            return new double[0];
-        }
-        double[] kept = new double[n + 2];
-        int count = 0;
-        kept[count++] = from;
-        for (double v : x) {
-            if (v > from && v < to) {
-                kept[count++] = v;
-            }
-        }
-        kept[count++] = to;
-        double[] out = new double[2 * count - 1];
-        for (int i = 0; i < count; i++) {
-            out[2 * i] = kept[i];
-            if (i + 1 < count) {
-                out[2 * i + 1] = (kept[i] + kept[i + 1]) / 2;
-            }
-        }
+    /** Power-basis coefficients of cell i's cubic about x_i: f + d·y + b2·y² + b3·y³, y = u − x_i. */
+    private double[] cubic(int i, double[] out) {
+        double h = x[i + 1] - x[i];
+        double slope = (f[i + 1] - f[i]) / h;
+        out[0] = f[i];
+        out[1] = d[i];
+        out[2] = (3 * slope - 2 * d[i] - d[i + 1]) / h;
+        out[3] = (d[i] + d[i + 1] - 2 * slope) / (h * h);
         return out;
     }
 
-    private static double[] simpsonWeights(double[] z) {
-        double[] w = new double[z.length];
-        for (int i = 0; i + 2 < z.length; i += 2) {
-            double width = (z[i + 2] - z[i]) / 6;
-            w[i] += width;
-            w[i + 1] += 4 * width;
-            w[i + 2] += width;
+    /** Cell i's cubic rewritten in the kernel's standard units w = (u − c)/s: Σ a_j·w^j. */
+    private void inKernelUnits(int i, double c, double s, double[] a) {
+        double[] b = cubic(i, new double[4]);
+        double e = c - x[i];          // y = e + s·w
+        a[0] = b[0] + e * (b[1] + e * (b[2] + e * b[3]));
+        a[1] = s * (b[1] + e * (2 * b[2] + 3 * e * b[3]));
+        a[2] = s * s * (b[2] + 3 * e * b[3]);
+        a[3] = s * s * s * b[3];
+    }
+
+    private double cellMass(int i) {
+        double h = x[i + 1] - x[i];
+        return h * (f[i] + f[i + 1]) / 2 + h * h * (d[i] - d[i + 1]) / 12;
+    }
+
+    /** ∫ from p to q (inside cell i) of the cell's cubic. */
+    private double polynomialIntegral(int i, double p, double q) {
+        if (!(q > p)) {
+            return 0;
         }
-        return w;
+        double[] b = cubic(i, new double[4]);
+        double y1 = p - x[i];
+        double y2 = q - x[i];
+        double sum = 0;
+        double p1 = y1;
+        double p2 = y2;
+        for (int j = 0; j < 4; j++) {
+            sum += b[j] * (p2 - p1) / (j + 1);
+            p1 *= y1;
+            p2 *= y2;
+        }
+        return sum;
+    }
+
+    // ---- the adaptive grid -------------------------------------------------------------------
+
+    /** Nodes, values and slopes of a new sub-density. */
+    private static final class Grid {
+        double[] x = new double[256];
+        double[] f = new double[256];
+        double[] d = new double[256];
+        int n;
+        boolean bisect;
+
+        /**
+         * Uniform spacing on the mean ± CORE, geometric growth to the mean ± SPAN, cut at (lower,
+         * upper) with the cuts themselves as nodes; then every cell is bisected until the Hermite
+         * cubic predicts the exact density at its midpoint.
+         */
+        static Grid build(double mean, double lower, double upper, double spacing, Evaluator evaluator,
+                          boolean bisect) {
+            Grid g = new Grid();
+            g.bisect = bisect;
+            double from = Math.max(lower, mean - SPAN);
+            double to = Math.min(upper, mean + SPAN);
+            if (!(to > from)) {
+                g.trim();
+                return g;
+            }
+            double[] base = baseNodes(mean, spacing);
+            double gap = spacing * 1e-3;
+            double[] vs = new double[2];
+            g.add(from, evaluator, vs);
+            for (double v : base) {
+                if (v > from + gap && v < to - gap) {
+                    g.refineTo(v, evaluator, vs);
+                }
+            }
+            g.refineTo(to, evaluator, vs);
+            g.trim();
+            return g;
+        }
+
+        private static double[] baseNodes(double mean, double spacing) {
+            int core = (int) Math.ceil(CORE / spacing);
+            java.util.ArrayList<Double> right = new java.util.ArrayList<>();
+            double step = spacing;
+            double v = core * spacing;
+            while (v < SPAN) {
+                step *= GROWTH;
+                v += step;
+                right.add(v);
+            }
+            double[] out = new double[2 * core + 1 + 2 * right.size()];
+            int k = 0;
+            for (int i = right.size() - 1; i >= 0; i--) {
+                out[k++] = mean - right.get(i);
+            }
+            for (int i = -core; i <= core; i++) {
+                out[k++] = mean + i * spacing;
+            }
+            for (double r : right) {
+                out[k++] = mean + r;
+            }
+            return out;
+        }
+
+        /** Appends node v after the last one, bisecting the new cell while the interpolant misses. */
+        private void refineTo(double v, Evaluator evaluator, double[] vs) {
+            evaluator.evaluate(v, vs);
+            double fv = vs[0];
+            double dv = vs[1];
+            refine(v, fv, dv, evaluator, vs);
+        }
+
+        private void refine(double v, double fv, double dv, Evaluator evaluator, double[] vs) {
+            double u = x[n - 1];
+            double h = v - u;
+            double mid = u + h / 2;
+            if (bisect && h > SMALLEST_CELL) {
+                evaluator.evaluate(mid, vs);
+                double fm = vs[0];
+                double dm = vs[1];
+                double predicted = (f[n - 1] + fv) / 2 + h * (d[n - 1] - dv) / 8;
+                if (Math.abs(predicted - fm) * h > CELL_TOLERANCE) {
+                    refine(mid, fm, dm, evaluator, vs);
+                    refine(v, fv, dv, evaluator, vs);
+                    return;
+                }
+            }
+            push(v, fv, dv);
+        }
+
+        private void add(double v, Evaluator evaluator, double[] vs) {
+            evaluator.evaluate(v, vs);
+            push(v, vs[0], vs[1]);
+        }
+
+        private void push(double v, double fv, double dv) {
+            if (n == x.length) {
+                x = java.util.Arrays.copyOf(x, 2 * n);
+                f = java.util.Arrays.copyOf(f, 2 * n);
+                d = java.util.Arrays.copyOf(d, 2 * n);
+            }
+            x[n] = v;
+            f[n] = fv;
+            d[n] = dv;
+            n++;
+        }
+
+        private void trim() {
+            x = java.util.Arrays.copyOf(x, n);
+            f = java.util.Arrays.copyOf(f, n);
+            d = java.util.Arrays.copyOf(d, n);
+        }
     }
 
     @Override
     public String toString() {
-        return "SubDensity[t=" + fraction + ", drift=" + drift + ", points=" + z.length
-                + ", mass=" + mass() + ", range=" + (z.length == 0 ? "[]" : Arrays.toString(
-                        new double[] {z[0], z[z.length - 1]})) + "]";
+        return "SubDensity[t=" + fraction + ", drift=" + drift + ", nodes=" + x.length + ", mass=" + mass() + "]";
     }
 }
