@@ -1,0 +1,57 @@
+package dev.interim.architecture;
+
+import static com.tngtech.archunit.lang.syntax.ArchRuleDefinition.noClasses;
+
+import com.tngtech.archunit.core.domain.JavaClasses;
+import com.tngtech.archunit.core.importer.ClassFileImporter;
+import com.tngtech.archunit.core.importer.ImportOption;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+
+/**
+ * The layering of DESIGN.md, kept by the build: the statistics ({@code stats}, {@code sequential})
+ * know nothing of Kafka, HTTP, files, the network, serialisation or the clock, and each layer
+ * depends only on the ones before it.
+ */
+class LayeringTest {
+    private static final String[] PURE = {"dev.interim.stats..", "dev.interim.sequential.."};
+    private static JavaClasses classes;
+
+    @BeforeAll
+    static void importClasses() {
+        classes = new ClassFileImporter()
+                .withImportOption(ImportOption.Predefined.DO_NOT_INCLUDE_TESTS)
+                .importPackages("dev.interim");
+    }
+
+    @Test
+    void statisticsDoNotTouchKafkaHttpIoOrTheNetwork() {
+        noClasses().that().resideInAnyPackage(PURE)
+                .should().dependOnClassesThat().resideInAnyPackage(
+                        "org.apache.kafka..", "java.net..", "com.sun.net.httpserver..", "javax.net..",
+                        "java.io..", "java.nio..", "java.sql..", "picocli..", "com.fasterxml.jackson..",
+                        "io.micrometer..")
+                .because("the statistics must stay pure: no I/O, no transport, no serialisation")
+                .check(classes);
+    }
+
+    @Test
+    void statisticsDoNotReadTheClock() {
+        noClasses().that().resideInAnyPackage(PURE)
+                .should().dependOnClassesThat().resideInAnyPackage("java.time..")
+                .orShould().callMethod(System.class, "currentTimeMillis")
+                .orShould().callMethod(System.class, "nanoTime")
+                .because("time is an argument: tests must be able to move it")
+                .check(classes);
+    }
+
+    @Test
+    void layersDependOnlyOnTheOnesBeforeThem() {
+        noClasses().that().resideInAPackage("dev.interim.stats..")
+                .should().dependOnClassesThat().resideInAnyPackage("dev.interim.sequential..", "dev.interim.cli..")
+                .check(classes);
+        noClasses().that().resideInAPackage("dev.interim.sequential..")
+                .should().dependOnClassesThat().resideInAnyPackage("dev.interim.cli..")
+                .check(classes);
+    }
+}
