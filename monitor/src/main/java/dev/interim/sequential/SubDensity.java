@@ -105,52 +105,37 @@ final class SubDensity {
 
     /** P(continued so far and Z ≥ b at fraction t1 > fraction). */
     double upperTail(double t1, double b) {
-        if (b == Double.POSITIVE_INFINITY) {
-            return 0;
-        }
-        if (isOrigin()) {
-            return StandardNormal.sf(b - drift * Math.sqrt(t1));
-        }
-        if (x.length == 0) {
-            return 0;
-        }
-        Kernel k = kernel(t1);
-        double c = k.centre(b);
-        if (k.wide) {
-            double sum = 0;
-            for (int i = 0; i < x.length; i++) {
-                double w = (x[i] - c) / k.s;
-                double cdf = StandardNormal.cdf(w);
-                sum += weight[i] * f[i] * cdf + slopeWeight[i] * (d[i] * cdf + f[i] * StandardNormal.pdf(w) / k.s);
-            }
-            return clamp(sum);
-        }
-        return clamp(exactTail(c, k.s, true));
+        return b == Double.POSITIVE_INFINITY ? 0 : tail(t1, b, true);
     }
 
     /** P(continued so far and Z ≤ a at fraction t1 > fraction). */
     double lowerTail(double t1, double a) {
-        if (a == Double.NEGATIVE_INFINITY) {
-            return 0;
-        }
+        return a == Double.NEGATIVE_INFINITY ? 0 : tail(t1, a, false);
+    }
+
+    /** The upper (Z ≥ bound) or lower (Z ≤ bound) tail at t1 on the paths still running. */
+    private double tail(double t1, double bound, boolean upper) {
         if (isOrigin()) {
-            return StandardNormal.cdf(a - drift * Math.sqrt(t1));
+            double w = bound - drift * Math.sqrt(t1);
+            return upper ? StandardNormal.sf(w) : StandardNormal.cdf(w);
         }
         if (x.length == 0) {
             return 0;
         }
         Kernel k = kernel(t1);
-        double c = k.centre(a);
-        if (k.wide) {
-            double sum = 0;
-            for (int i = 0; i < x.length; i++) {
-                double w = (x[i] - c) / k.s;
-                double sf = StandardNormal.sf(w);
-                sum += weight[i] * f[i] * sf + slopeWeight[i] * (d[i] * sf - f[i] * StandardNormal.pdf(w) / k.s);
-            }
-            return clamp(sum);
+        double c = k.centre(bound);
+        if (!k.wide) {
+            return clamp(exactTail(c, k.s, upper));
         }
-        return clamp(exactTail(c, k.s, false));
+        // ∫ f(u)·Φ(±w) du by the corrected trapezoid: g = f·Φ(±w), g' = f'·Φ(±w) ± f·φ(w)/s.
+        double sign = upper ? 1 : -1;
+        double sum = 0;
+        for (int i = 0; i < x.length; i++) {
+            double w = sign * (x[i] - c) / k.s;
+            double p = StandardNormal.cdf(w);
+            sum += weight[i] * f[i] * p + slopeWeight[i] * (d[i] * p + sign * f[i] * StandardNormal.pdf(w) / k.s);
+        }
+        return clamp(sum);
     }
 
     /** Density at z of Z at fraction t1 on the paths that continued so far (before any cut at t1). */

@@ -7,6 +7,7 @@ import dev.interim.stats.Alternative;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
+import dev.interim.reference.Draws;
 import java.util.SplittableRandom;
 import java.util.stream.Stream;
 import org.junit.jupiter.api.Test;
@@ -145,7 +146,7 @@ class CrossingAccuracyTest {
                 double score = 0;
                 double before = 0;
                 for (Look look : looks) {
-                    score += Math.sqrt(look.fraction() - before) * gaussian(random);
+                    score += Math.sqrt(look.fraction() - before) * Draws.gaussian(random);
                     before = look.fraction();
                     double z = score / Math.sqrt(look.fraction());
                     if (look.rejects(z)) {
@@ -157,18 +158,5 @@ class CrossingAccuracyTest {
             double se = Math.sqrt(0.05 * 0.95 / paths);
             assertThat((double) crossed / paths).as(spending).isCloseTo(0.05, within(4 * se));
         }
-    }
-
-    /** Marsaglia polar method on a seeded generator (the JDK's SplittableRandom has no Gaussian before Java 17's RandomGenerator default). */
-    static double gaussian(SplittableRandom random) {
-        double u;
-        double v;
-        double s;
-        do {
-            u = 2 * random.nextDouble() - 1;
-            v = 2 * random.nextDouble() - 1;
-            s = u * u + v * v;
-        } while (s >= 1 || s == 0);
-        return u * Math.sqrt(-2 * Math.log(s) / s);
     }
 }

@@ -4,6 +4,7 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.within;
 
 import dev.interim.stats.Alternative;
+import dev.interim.reference.Draws;
 import java.util.SplittableRandom;
 import org.apache.commons.math3.distribution.NormalDistribution;
 import org.junit.jupiter.api.Test;
@@ -54,7 +55,7 @@ class FutilityAndPlanningTest {
             double score = 0;
             double before = 0;
             for (Look look : looks) {
-                score += drift * (look.fraction() - before) + Math.sqrt(look.fraction() - before) * CrossingAccuracyTest.gaussian(random);
+                score += drift * (look.fraction() - before) + Math.sqrt(look.fraction() - before) * Draws.gaussian(random);
                 before = look.fraction();
                 double z = score / Math.sqrt(look.fraction());
                 if (look.rejects(z)) {

@@ -5,6 +5,7 @@ import static org.assertj.core.api.Assertions.within;
 
 import dev.interim.stats.Alternative;
 import dev.interim.stats.ConfidenceInterval;
+import dev.interim.reference.Draws;
 import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
 
@@ -33,7 +34,7 @@ class RepeatedConfidenceIntervalTest {
                 boolean all = true;
                 for (Look look : looks) {
                     double increment = (look.fraction() - before) * iMax;
-                    score += theta * increment + Math.sqrt(increment) * CrossingAccuracyTest.gaussian(random);
+                    score += theta * increment + Math.sqrt(increment) * Draws.gaussian(random);
                     before = look.fraction();
                     double information = look.fraction() * iMax;
                     ConfidenceInterval ci = RepeatedConfidenceInterval.at(design, look, score / information,

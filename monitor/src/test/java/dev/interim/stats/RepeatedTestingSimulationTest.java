@@ -5,6 +5,7 @@ import static org.assertj.core.api.Assertions.within;
 
 import dev.interim.reference.ReferenceData;
 import java.util.Map;
+import dev.interim.reference.Draws;
 import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
 
@@ -37,8 +38,8 @@ class RepeatedTestingSimulationTest {
                 RunningMoments treatment = new RunningMoments();
                 for (int k = 0; k < looks; k++) {
                     for (int i = 0; i < perLookPerArm; i++) {
-                        control.accept(gaussian(random));
-                        treatment.accept(gaussian(random));
+                        control.accept(Draws.gaussian(random));
+                        treatment.accept(Draws.gaussian(random));
                     }
                     TestResult z = MeanTests.twoSampleZ(treatment.snapshot(), control.snapshot(), 1, 1, Alternative.TWO_SIDED);
                     if (z.reject(0.05)) {
@@ -51,17 +52,5 @@ class RepeatedTestingSimulationTest {
             double se = Math.sqrt(published * (1 - published) / runs);
             assertThat(rate).as("K = %d", looks).isCloseTo(published, within(4 * se));
         }
-    }
-
-    private static double gaussian(SplittableRandom random) {
-        double u;
-        double v;
-        double s;
-        do {
-            u = 2 * random.nextDouble() - 1;
-            v = 2 * random.nextDouble() - 1;
-            s = u * u + v * v;
-        } while (s >= 1 || s == 0);
-        return u * Math.sqrt(-2 * Math.log(s) / s);
     }
 }
