@@ -12,6 +12,14 @@ import org.apache.commons.numbers.rootfinder.BrentSolver;
 final class BoundarySolver {
     /** Increments below this are not representable as a finite boundary (Φ̄(38) ≈ 3e-316). */
     static final double SMALLEST_INCREMENT = 1e-300;
+    /**
+     * Below this increment the conditional tail is smaller than the absolute accuracy of the carried
+     * density (about 1e-13), so the boundary is the unconditional normal quantile instead. That is
+     * conservative: the conditional tail never exceeds the unconditional one, so the look spends at
+     * most its increment. Such looks are the first few of an O'Brien–Fleming-type design watched
+     * continuously, where the boundary lies beyond 7.
+     */
+    static final double CONDITIONAL_FLOOR = 1e-12;
     private static final BrentSolver BRENT = new BrentSolver(1e-14, 1e-11, 1e-13);
 
     private BoundarySolver() {}
@@ -31,6 +39,9 @@ final class BoundarySolver {
         // the unconditional quantile is an upper bracket.
         double mean = state.drift * Math.sqrt(t1);
         double hi = mean + StandardNormal.upperQuantile(symmetric ? increment / 2 : increment);
+        if (increment < CONDITIONAL_FLOOR) {
+            return hi;
+        }
         double floor = symmetric ? 0 : Double.NEGATIVE_INFINITY;
         if (tail.applyAsDouble(Math.max(floor, mean - 40)) < increment) {
             // Less continuation probability is left than the increment asks for: stop everything.
@@ -51,6 +62,9 @@ final class BoundarySolver {
         DoubleUnaryOperator tail = a -> state.lowerTail(t1, a);
         double mean = state.drift * Math.sqrt(t1);
         double lo = mean - StandardNormal.upperQuantile(increment);
+        if (increment < CONDITIONAL_FLOOR) {
+            return Math.min(lo, cap);
+        }
         if (lo >= cap || tail.applyAsDouble(cap) <= increment) {
             return cap;
         }
