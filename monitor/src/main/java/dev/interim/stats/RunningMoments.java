@@ -18,6 +18,8 @@ public final class RunningMoments {
 
     private long count;
     private double mean = Double.NaN;
+    /** The part of the exact running mean that {@code mean} cannot hold (see {@link Moments}). */
+    private double meanResidual;
     private double sumSquaredDeviations;
 
     /**
@@ -34,19 +36,22 @@ public final class RunningMoments {
         if (count == 0) {
             count = 1;
             mean = value;
+            meanResidual = 0;
             return;
         }
         long n = Math.addExact(count, 1);
-        double delta = value - mean;
-        double newMean = mean + delta / n;
-        double newM2 = sumSquaredDeviations + delta * (value - newMean);
+        // Welford's update on the double-double mean: the deviations are taken from mean + residual.
+        double delta = (value - mean) - meanResidual;
+        double[] newMean = Moments.twoSum(mean, meanResidual + delta / n);
+        double newM2 = sumSquaredDeviations + delta * ((value - newMean[0]) - newMean[1]);
         // Checked before committing so that an overflow leaves the tally as it was.
-        if (!Double.isFinite(newMean) || !Double.isFinite(newM2)) {
+        if (!Double.isFinite(newMean[0]) || !Double.isFinite(newM2)) {
             throw new IllegalArgumentException("value " + value + " is too large in magnitude: the sum of squared"
                     + " deviations overflows a double; rescale the metric (e.g. to other units)");
         }
         count = n;
-        mean = newMean;
+        mean = newMean[0];
+        meanResidual = newMean[1];
         sumSquaredDeviations = newM2;
     }
 
@@ -59,6 +64,7 @@ public final class RunningMoments {
         Moments merged = snapshot().plus(Checks.notNull("other", other).snapshot());
         count = merged.count();
         mean = merged.mean();
+        meanResidual = merged.meanResidual();
         sumSquaredDeviations = merged.sumSquaredDeviations();
         return this;
     }
@@ -75,6 +81,6 @@ public final class RunningMoments {
 
     /** An immutable copy of the current state. */
     public Moments snapshot() {
-        return count == 0 ? Moments.EMPTY : new Moments(count, mean, sumSquaredDeviations);
+        return count == 0 ? Moments.EMPTY : new Moments(count, mean, sumSquaredDeviations, meanResidual);
     }
 }
