@@ -36,7 +36,7 @@ final class SubDensity {
     private static final double CELL_TOLERANCE = 1e-10;
     private static final double SMALLEST_CELL = 1e-7;
     /** The trapezoidal path needs the kernel to span at least this many central cells. */
-    private static final double WIDE_KERNEL_CELLS = 2.0;
+    private static final double WIDE_KERNEL_CELLS = 1.5;
     /** A kernel at least this many central cells wide smooths the density enough to skip bisection. */
     private static final double SMOOTHING_CELLS = 10.0;
 
@@ -132,13 +132,33 @@ final class SubDensity {
         if (!k.wide) {
             return clamp(exactTail(c, k.s, upper));
         }
-        // ∫ f(u)·Φ(±w) du by the corrected trapezoid: g = f·Φ(±w), g' = f'·Φ(±w) ± f·φ(w)/s.
+        // ∫ f(u)·Φ(±w) du by the corrected trapezoid, cell by cell: g = f·Φ(±w),
+        // g' = f'·Φ(±w) ± f·φ(w)/s. Where Φ(±w) is 1 to double precision the cell term is the
+        // cell's mass (the rule is exact for cubics), and where it is 0 the term vanishes, so only
+        // the cells of the transition, about 2·(REACH + 3)·s wide, are evaluated.
         double sign = upper ? 1 : -1;
-        double sum = 0;
-        for (int i = 0; i < x.length; i++) {
-            double w = sign * (x[i] - c) / k.s;
+        int n = x.length;
+        double edge = REACH + 3;
+        int from = cellIndex(c - edge * k.s);
+        int to = cellIndex(c + edge * k.s);   // cells from..to inclusive are evaluated
+        double sum = upper ? suffix[Math.min(to + 1, n - 1)] : prefix[from];
+        double gLeft = Double.NaN;
+        double gSlopeLeft = Double.NaN;
+        for (int i = from; i <= to && i + 1 < n; i++) {
+            if (i == from) {
+                double w = sign * (x[i] - c) / k.s;
+                double p = StandardNormal.cdf(w);
+                gLeft = f[i] * p;
+                gSlopeLeft = d[i] * p + sign * f[i] * StandardNormal.pdf(w) / k.s;
+            }
+            double w = sign * (x[i + 1] - c) / k.s;
             double p = StandardNormal.cdf(w);
-            sum += weight[i] * f[i] * p + slopeWeight[i] * (d[i] * p + sign * f[i] * StandardNormal.pdf(w) / k.s);
+            double gRight = f[i + 1] * p;
+            double gSlopeRight = d[i + 1] * p + sign * f[i + 1] * StandardNormal.pdf(w) / k.s;
+            double h = x[i + 1] - x[i];
+            sum += h * (gLeft + gRight) / 2 + h * h * (gSlopeLeft - gSlopeRight) / 12;
+            gLeft = gRight;
+            gSlopeLeft = gSlopeRight;
         }
         return clamp(sum);
     }
