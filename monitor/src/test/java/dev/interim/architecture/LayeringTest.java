@@ -11,7 +11,8 @@ import org.junit.jupiter.api.Test;
 /**
  * The layering of DESIGN.md, kept by the build: the statistics ({@code stats}, {@code sequential})
  * know nothing of Kafka, HTTP, files, the network, serialisation or the clock, and each layer
- * depends only on the ones before it.
+ * depends only on the ones before it. Source: the layering of the shared design notes (DESIGN.md,
+ * "Shape"); no statistical values here.
  */
 class LayeringTest {
     private static final String[] PURE = {"dev.interim.stats..", "dev.interim.sequential.."};

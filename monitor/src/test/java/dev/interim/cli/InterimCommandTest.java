@@ -7,6 +7,11 @@ import java.io.StringWriter;
 import org.junit.jupiter.api.Test;
 import picocli.CommandLine;
 
+/**
+ * The command's contract: help and version, and exit codes 0 (success), 2 (bad usage or input) and
+ * 1 (failure). No statistical values here; the exit-code convention is common practice for
+ * command-line tools (and the project's rule).
+ */
 class InterimCommandTest {
 
     @Test

@@ -7,7 +7,11 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.Arguments;
 import org.junit.jupiter.params.provider.MethodSource;
 
-/** Every bad input exits with 2 and one line on stderr that names the problem, and prints nothing else. */
+/**
+ * Every bad input exits with 2 and one line on stderr that names the problem, and prints nothing
+ * else. No statistical values here: the rules checked (α and power in (0, 1), increasing fractions,
+ * known spending names) are common practice for these designs.
+ */
 class PlanBadInputTest {
 
     static Stream<Arguments> badInputs() {
