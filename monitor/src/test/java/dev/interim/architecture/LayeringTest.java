@@ -47,12 +47,27 @@ class LayeringTest {
     }
 
     @Test
+    void theExperimentLayerIsPureAndTakesTimeAsAnArgument() {
+        noClasses().that().resideInAPackage("dev.interim.experiment..")
+                .should().dependOnClassesThat().resideInAnyPackage(
+                        "org.apache.kafka..", "java.net..", "com.sun.net.httpserver..", "java.io..", "java.nio.file..",
+                        "picocli..", "com.fasterxml.jackson..", "io.micrometer..", "dev.interim.cli..", "dev.interim.config..")
+                .orShould().callMethod(System.class, "currentTimeMillis")
+                .orShould().callMethod(System.class, "nanoTime")
+                .orShould().callMethod(java.time.Instant.class, "now")
+                .orShould().dependOnClassesThat().areAssignableTo(java.time.Clock.class)
+                .because("the decision state machine is pure; the daemon passes the time in")
+                .check(classes);
+    }
+
+    @Test
     void layersDependOnlyOnTheOnesBeforeThem() {
         noClasses().that().resideInAPackage("dev.interim.stats..")
-                .should().dependOnClassesThat().resideInAnyPackage("dev.interim.sequential..", "dev.interim.cli..")
+                .should().dependOnClassesThat().resideInAnyPackage("dev.interim.sequential..", "dev.interim.experiment..",
+                        "dev.interim.cli..")
                 .check(classes);
         noClasses().that().resideInAPackage("dev.interim.sequential..")
-                .should().dependOnClassesThat().resideInAnyPackage("dev.interim.cli..")
+                .should().dependOnClassesThat().resideInAnyPackage("dev.interim.experiment..", "dev.interim.cli..")
                 .check(classes);
     }
 }

@@ -1,0 +1,187 @@
+package dev.interim.experiment;
+
+import dev.interim.sequential.Fractions;
+import dev.interim.sequential.Futility;
+import dev.interim.sequential.GroupSequentialDesign;
+import dev.interim.sequential.Look;
+import dev.interim.sequential.Planning;
+import dev.interim.sequential.RepeatedConfidenceInterval;
+import dev.interim.sequential.SequentialMonitor;
+import dev.interim.stats.Alternative;
+import dev.interim.stats.ConfidenceInterval;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Optional;
+
+/**
+ * One treatment arm against control (or against a baseline) on one metric: its group-sequential
+ * design, the looks so far, and the decision state machine.
+ *
+ * <p>States: {@link Decision#CONTINUE} until a boundary is crossed; then {@link Decision#STOP_HARM},
+ * {@link Decision#STOP_BENEFIT} or {@link Decision#STOP_FUTILITY}, or {@link Decision#COMPLETE} when
+ * the planned information is reached without a crossing — all four absorbing. {@link Decision#HELD}
+ * suspends looks (sample-ratio mismatch, operator hold) and returns to continue on resume; a final
+ * state is never held. Looks skipped while held cost nothing: spending functions spend by
+ * information, not by look count.
+ *
+ * <p>Mutable and not thread-safe; time is passed in. The whole state is rebuilt from
+ * {@link #fractions()} and the decision ({@link #restore}), so α already spent survives restarts.
+ */
+public final class Comparison {
+    private final ExperimentDefinition experiment;
+    private final MetricDefinition metric;
+    private final String arm;
+    private final GroupSequentialDesign design;
+    /** Planned maximum information for a powered horizon; NaN for a maximum per arm. */
+    private final double poweredInformation;
+    private SequentialMonitor monitor;
+    private final List<Double> fractions = new ArrayList<>();
+    private Decision decision = Decision.CONTINUE;
+    private LookResult last;
+
+    Comparison(ExperimentDefinition experiment, MetricDefinition metric, String arm) {
+        this.experiment = experiment;
+        this.metric = metric;
+        this.arm = arm;
+        GroupSequentialDesign base = GroupSequentialDesign.spending(experiment.comparisonAlpha(metric),
+                alternative(metric), metric.spending());
+        if (metric.horizon() instanceof Horizon.Powered p) {
+            double[] planned = Fractions.equallySpaced(p.plannedLooks());
+            if (metric.futility() != null) {
+                base = base.withFutility(new Futility(1 - p.power(), metric.futility(), 1));
+            }
+            double drift = Planning.driftForPower(base, planned, p.power());
+            this.design = Planning.aimedAt(base, drift);
+            this.poweredInformation = (drift / p.effect()) * (drift / p.effect());
+        } else {
+            this.design = base;
+            this.poweredInformation = Double.NaN;
+        }
+        this.monitor = design.monitor();
+    }
+
+    /**
+     * The direction of the test: guardrails watch for harm only; a two-sided primary metric for a
+     * difference either way; a one-sided primary metric for benefit.
+     */
+    static Alternative alternative(MetricDefinition metric) {
+        if (metric.role() == Role.GUARDRAIL) {
+            return metric.worse().harm();
+        }
+        if (metric.sides() == 2) {
+            return Alternative.TWO_SIDED;
+        }
+        return metric.worse().harm() == Alternative.GREATER ? Alternative.LESS : Alternative.GREATER;
+    }
+
+    public String arm() {
+        return arm;
+    }
+
+    public MetricDefinition metric() {
+        return metric;
+    }
+
+    public GroupSequentialDesign design() {
+        return design;
+    }
+
+    public Decision decision() {
+        return decision;
+    }
+
+    /** The last look's result, or null before the first look. */
+    public LookResult last() {
+        return last;
+    }
+
+    /** Information fractions of the looks so far, in order: with the decision, the whole state. */
+    public List<Double> fractions() {
+        return List.copyOf(fractions);
+    }
+
+    /** Rebuilds the state after a restart: the same looks, the same α spent, the same decision. */
+    public void restore(List<Double> seen, Decision restored) {
+        monitor = design.monitor();
+        fractions.clear();
+        for (double t : seen) {
+            monitor.lookAt(t);
+            fractions.add(t);
+        }
+        decision = restored == null ? Decision.CONTINUE : restored;
+    }
+
+    /** Suspends looks; a final decision stays as it is. Returns whether the state changed. */
+    boolean hold() {
+        if (decision.isFinal() || decision == Decision.HELD) {
+            return false;
+        }
+        decision = Decision.HELD;
+        return true;
+    }
+
+    /** Ends a hold. Returns whether the state changed. */
+    boolean resume() {
+        if (decision != Decision.HELD) {
+            return false;
+        }
+        decision = Decision.CONTINUE;
+        return true;
+    }
+
+    /**
+     * A look with the tallies of this arm and of control (ignored against a baseline). Returns the
+     * result, or empty when there is nothing to look at: a final or held state, too few
+     * observations, or no variance yet.
+     */
+    Optional<LookResult> look(Tally treatment, Tally control, java.time.Instant at) {
+        if (decision.isFinal() || decision == Decision.HELD) {
+            return Optional.empty();
+        }
+        if (treatment.count() < experiment.minPerArm()
+                || (metric.baseline() == null && control.count() < experiment.minPerArm())) {
+            return Optional.empty();
+        }
+        Optional<Estimate> estimate = Estimate.of(metric, treatment, control);
+        if (estimate.isEmpty()) {
+            return Optional.empty();
+        }
+        Estimate e = estimate.get();
+        double fraction = e.information() / plannedInformation(e);
+        if (!(fraction > 0) || !Double.isFinite(fraction)) {
+            return Optional.empty();
+        }
+        Look look = monitor.lookAt(fraction);
+        fractions.add(fraction);
+        Decision previous = decision;
+        if (look.informationAdded()) {
+            decision = decide(look, e.z());
+        }
+        ConfidenceInterval interval = RepeatedConfidenceInterval.at(design, look, e.effect(), e.standardError());
+        last = new LookResult(experiment.id(), arm, metric.name(), previous, decision, look, e, interval, at);
+        return Optional.of(last);
+    }
+
+    /**
+     * I_max: for a maximum per arm, the information that many observations per arm would give at the
+     * variances seen now; for a powered horizon, fixed by the plan.
+     */
+    private double plannedInformation(Estimate e) {
+        if (metric.horizon() instanceof Horizon.MaxPerArm max) {
+            double n = max.perArm();
+            return 1 / (e.treatmentVariance() / n + e.controlVariance() / n);
+        }
+        return poweredInformation;
+    }
+
+    private Decision decide(Look look, double z) {
+        if (look.rejects(z)) {
+            boolean harmful = metric.worse() == Worse.HIGHER ? z > 0 : z < 0;
+            return harmful ? Decision.STOP_HARM : Decision.STOP_BENEFIT;
+        }
+        if (look.futile(z)) {
+            return Decision.STOP_FUTILITY;
+        }
+        return look.last() ? Decision.COMPLETE : Decision.CONTINUE;
+    }
+}

@@ -1,0 +1,54 @@
+package dev.interim.experiment;
+
+import java.nio.charset.StandardCharsets;
+import java.time.Instant;
+import java.util.UUID;
+
+/**
+ * One change of state of one comparison, as published on the decisions topic (JSON, keyed by
+ * experiment) and sent to the kill webhook. The id is stable — a name-based UUID of experiment, arm,
+ * metric, decision and look — so a record written again after a restart, or delivered twice, is
+ * recognisably the same decision.
+ */
+public record DecisionRecord(String experiment, String arm, String metric, String role, String decision,
+                             String previous, int look, double fraction, double statistic, double boundary,
+                             double alphaSpent, double estimate, double intervalLower, double intervalUpper,
+                             double intervalLevel, Instant at, String decisionId, boolean dryRun, String action) {
+
+    /** The record of a look that changed the state. */
+    static DecisionRecord of(LookResult r, MetricDefinition metric, boolean dryRun) {
+        String id = id(r.experiment(), r.arm(), r.metric(), r.decision(), r.look().number());
+        return new DecisionRecord(r.experiment(), r.arm(), r.metric(), metric.role().name().toLowerCase(),
+                r.decision().label(), r.previous().label(), r.look().number(), r.look().fraction(),
+                r.estimate().z(), r.boundary(), r.look().alphaSpent(), r.estimate().effect(),
+                r.interval().lower(), r.interval().upper(), r.interval().level(), r.at(), id, dryRun,
+                metric.action().name().toLowerCase());
+    }
+
+    /** A hold or resume, which has no look of its own: the last look's numbers, or NaN before any. */
+    static DecisionRecord ofStateChange(String experiment, Comparison c, Decision previous, Instant at,
+                                        boolean dryRun, String reason) {
+        LookResult last = c.last();
+        int look = last == null ? 0 : last.look().number();
+        String id = id(experiment, c.arm(), c.metric().name(), c.decision(), look) + "-" + UUID.nameUUIDFromBytes(
+                (reason + "|" + at).getBytes(StandardCharsets.UTF_8)).toString().substring(0, 8);
+        double nan = Double.NaN;
+        return new DecisionRecord(experiment, c.arm(), c.metric().name(), c.metric().role().name().toLowerCase(),
+                c.decision().label(), previous.label(), look,
+                last == null ? nan : last.look().fraction(), last == null ? nan : last.estimate().z(),
+                last == null ? nan : last.boundary(), last == null ? 0 : last.look().alphaSpent(),
+                last == null ? nan : last.estimate().effect(), last == null ? nan : last.interval().lower(),
+                last == null ? nan : last.interval().upper(), last == null ? nan : last.interval().level(),
+                at, id, dryRun, c.metric().action().name().toLowerCase());
+    }
+
+    static String id(String experiment, String arm, String metric, Decision decision, int look) {
+        String key = experiment + '\u0000' + arm + '\u0000' + metric + '\u0000' + decision.label() + '\u0000' + look;
+        return UUID.nameUUIDFromBytes(key.getBytes(StandardCharsets.UTF_8)).toString();
+    }
+
+    /** True for a stop for harm that should trigger the kill webhook (never in dry-run). */
+    public boolean killRequested() {
+        return !dryRun && "kill".equals(action) && Decision.STOP_HARM.label().equals(decision);
+    }
+}

@@ -1,0 +1,92 @@
+package dev.interim.experiment;
+
+import java.time.Duration;
+import java.util.HashSet;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.regex.Pattern;
+
+/**
+ * An experiment or rollout: its arms, their expected split, when to look, and the metrics watched.
+ * Every treatment arm is compared with control on every metric; a metric's α is shared equally
+ * over the treatment arms (Bonferroni), so the chance of any false stop on that metric stays at or
+ * below α. Guardrails and the primary metric each have their own α.
+ *
+ * @param id experiment id as it appears in events
+ * @param control the control arm
+ * @param treatments the treatment arms (at least one)
+ * @param split expected share of exposures per arm (any positive weights; normalised)
+ * @param lookEvery time between looks
+ * @param minPerArm observations every arm needs before the first look
+ * @param dryRun decide and record, but never call the kill webhook
+ * @param sampleRatioThreshold p-value below which the split is judged broken and decisions held
+ * @param metrics the metrics watched (at least one)
+ */
+public record ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
+                                   Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
+                                   List<MetricDefinition> metrics) {
+
+    private static final Pattern ID = Pattern.compile("[A-Za-z0-9_.-]{1,128}");
+
+    public ExperimentDefinition {
+        require(id != null && ID.matcher(id).matches(), "id must be 1 to 128 letters, digits, '_', '-' or '.', got '" + id + "'");
+        require(control != null && ID.matcher(control).matches(), "control must name an arm, got '" + control + "'");
+        require(treatments != null && !treatments.isEmpty(), "treatments must list at least one arm");
+        Set<String> arms = new HashSet<>();
+        arms.add(control);
+        for (String t : treatments) {
+            require(t != null && ID.matcher(t).matches(), "treatments: an arm name must be 1 to 128 letters, digits, '_', '-' or '.', got '" + t + "'");
+            require(arms.add(t), "arm '" + t + "' is listed twice (control and treatments must differ)");
+        }
+        treatments = List.copyOf(treatments);
+        if (split == null || split.isEmpty()) {
+            Map<String, Double> equal = new LinkedHashMap<>();
+            equal.put(control, 1.0);
+            treatments.forEach(t -> equal.put(t, 1.0));
+            split = equal;
+        }
+        require(split.keySet().equals(arms), "split must give a share for each arm and only those: " + arms + ", got " + split.keySet());
+        for (Map.Entry<String, Double> e : split.entrySet()) {
+            require(e.getValue() != null && e.getValue() > 0 && Double.isFinite(e.getValue()),
+                    "split." + e.getKey() + " must be a positive number, got " + e.getValue());
+        }
+        split = Map.copyOf(split);
+        require(lookEvery != null && !lookEvery.isNegative() && lookEvery.compareTo(Duration.ofSeconds(1)) >= 0,
+                "look_every must be at least 1s, got " + lookEvery);
+        require(minPerArm >= 2, "min_per_arm must be at least 2, got " + minPerArm);
+        require(sampleRatioThreshold > 0 && sampleRatioThreshold < 1,
+                "sample_ratio_threshold must lie strictly between 0 and 1, got " + sampleRatioThreshold);
+        require(metrics != null && !metrics.isEmpty(), "metrics must list at least one metric");
+        Set<String> names = new HashSet<>();
+        for (MetricDefinition m : metrics) {
+            require(names.add(m.name()), "metric '" + m.name() + "' is defined twice");
+        }
+        metrics = List.copyOf(metrics);
+    }
+
+    /** All arms, control first. */
+    public List<String> arms() {
+        List<String> all = new java.util.ArrayList<>();
+        all.add(control);
+        all.addAll(treatments);
+        return all;
+    }
+
+    /** The α of one treatment-versus-control comparison on {@code metric}: α / number of treatments. */
+    public double comparisonAlpha(MetricDefinition metric) {
+        return metric.alpha() / treatments.size();
+    }
+
+    /** True when some metric counts per unit (the input must then be keyed by unit). */
+    public boolean needsUnits() {
+        return metrics.stream().anyMatch(m -> m.kind().perUnit());
+    }
+
+    private static void require(boolean ok, String message) {
+        if (!ok) {
+            throw new IllegalArgumentException(message);
+        }
+    }
+}

@@ -1,0 +1,128 @@
+package dev.interim.experiment;
+
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Optional;
+
+/**
+ * The looks of one experiment: every treatment arm against control on every metric, a sample-ratio
+ * check first, and the decision records of whatever changed. Time is passed in: the daemon calls
+ * {@link #look} when {@link #due} says so, tests call it with any instant they like.
+ *
+ * <p>Holding: a sample-ratio mismatch, or an operator's hold, suspends every comparison that has not
+ * already reached a final decision; when the split recovers (and no operator hold remains) they
+ * continue. Each hold and resume is a decision record too.
+ *
+ * <p>Mutable and not thread-safe: one owner per experiment.
+ */
+public final class ExperimentMonitor {
+    private final ExperimentDefinition definition;
+    /** metric name → arm → comparison, in configuration order. */
+    private final Map<String, Map<String, Comparison>> comparisons = new LinkedHashMap<>();
+    private Instant lastLook;
+    private SampleRatio sampleRatio = SampleRatio.UNKNOWN;
+    private String operatorHold;
+
+    public ExperimentMonitor(ExperimentDefinition definition) {
+        this.definition = definition;
+        for (MetricDefinition metric : definition.metrics()) {
+            Map<String, Comparison> byArm = new LinkedHashMap<>();
+            for (String arm : definition.treatments()) {
+                byArm.put(arm, new Comparison(definition, metric, arm));
+            }
+            comparisons.put(metric.name(), byArm);
+        }
+    }
+
+    public ExperimentDefinition definition() {
+        return definition;
+    }
+
+    /** Every comparison, metric by metric, arm by arm. */
+    public List<Comparison> comparisons() {
+        List<Comparison> all = new ArrayList<>();
+        comparisons.values().forEach(m -> all.addAll(m.values()));
+        return all;
+    }
+
+    /** The comparison of {@code arm} on {@code metric}. */
+    public Comparison comparison(String metric, String arm) {
+        Map<String, Comparison> byArm = comparisons.get(metric);
+        Comparison c = byArm == null ? null : byArm.get(arm);
+        if (c == null) {
+            throw new IllegalArgumentException("experiment " + definition.id() + " has no comparison of arm '" + arm
+                    + "' on metric '" + metric + "'");
+        }
+        return c;
+    }
+
+    public SampleRatio sampleRatio() {
+        return sampleRatio;
+    }
+
+    /** Whether a look is due at {@code now}: the first one at once, then every look interval. */
+    public boolean due(Instant now) {
+        return lastLook == null || !now.isBefore(lastLook.plus(definition.lookEvery()));
+    }
+
+    /**
+     * One look at {@code at}.
+     *
+     * @param exposures units (or events) exposed per arm, for the sample-ratio check
+     * @param tallies metric name → arm → tally; metrics or arms missing here are not looked at
+     */
+    public LookReport look(Instant at, Map<String, Long> exposures, Map<String, Map<String, Tally>> tallies) {
+        lastLook = at;
+        sampleRatio = SampleRatio.check(definition, exposures);
+        List<DecisionRecord> records = new ArrayList<>(applyHold(at));
+        List<LookResult> results = new ArrayList<>();
+        for (MetricDefinition metric : definition.metrics()) {
+            Map<String, Tally> byArm = tallies.getOrDefault(metric.name(), Map.of());
+            Tally control = byArm.get(definition.control());
+            for (Comparison c : comparisons.get(metric.name()).values()) {
+                Tally treatment = byArm.get(c.arm());
+                if (treatment == null || (control == null && metric.baseline() == null)) {
+                    continue;
+                }
+                Optional<LookResult> r = c.look(treatment, control, at);
+                r.ifPresent(results::add);
+                r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(x, metric, definition.dryRun())));
+            }
+        }
+        return new LookReport(definition.id(), at, sampleRatio, results, records);
+    }
+
+    /** An operator's hold: suspends every comparison not yet final. */
+    public List<DecisionRecord> hold(Instant at, String reason) {
+        operatorHold = reason == null || reason.isBlank() ? "operator" : reason;
+        return applyHold(at);
+    }
+
+    /** Ends an operator's hold; comparisons stay held while the split is broken. */
+    public List<DecisionRecord> resume(Instant at) {
+        operatorHold = null;
+        return applyHold(at);
+    }
+
+    public boolean held() {
+        return operatorHold != null || sampleRatio.mismatch();
+    }
+
+    private List<DecisionRecord> applyHold(Instant at) {
+        boolean hold = held();
+        String reason = operatorHold != null ? operatorHold : "sample-ratio mismatch";
+        List<DecisionRecord> records = new ArrayList<>();
+        for (Comparison c : comparisons()) {
+            Decision before = c.decision();
+            boolean changed = hold ? c.hold() : c.resume();
+            if (changed) {
+                records.add(DecisionRecord.ofStateChange(definition.id(), c, before, at, definition.dryRun(),
+                        hold ? reason : "resume"));
+            }
+        }
+        return records;
+    }
+}

@@ -1,0 +1,62 @@
+package dev.interim.experiment;
+
+import dev.interim.sequential.SpendingFunction;
+import java.util.regex.Pattern;
+
+/**
+ * One metric of an experiment and the sequential test that watches it. Immutable and validated:
+ * every message names the setting, the value and the rule.
+ *
+ * @param name metric name (letters, digits, '_', '-', '.')
+ * @param kind what is counted and over what
+ * @param role primary or guardrail
+ * @param worse which direction of the metric hurts users
+ * @param alpha type I error for this metric, shared out over the treatment arms (Bonferroni)
+ * @param sides 1 (guardrails: harm only; primary: benefit only) or 2 (primary: either way)
+ * @param spending α-spending function
+ * @param futility β-spending function for non-binding futility (one-sided primary metrics with a
+ *                 powered horizon only), or null
+ * @param horizon the planned information
+ * @param baseline a fixed value to compare each arm with (single-arm rollouts: one-sample tests), or
+ *                 null to compare each treatment with control
+ * @param action what a stop for harm triggers besides the record
+ */
+public record MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, int sides,
+                               SpendingFunction spending, SpendingFunction futility, Horizon horizon,
+                               Double baseline, StopAction action) {
+
+    private static final Pattern NAME = Pattern.compile("[A-Za-z0-9_.-]{1,64}");
+
+    public MetricDefinition {
+        if (name == null || !NAME.matcher(name).matches()) {
+            throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got '" + name + "'");
+        }
+        require(kind != null, "kind is required: event-rate, unit-rate, event-mean or unit-total");
+        require(role != null, "role is required: primary or guardrail");
+        require(worse != null, "worse is required: higher or lower");
+        require(alpha > 0 && alpha < 1, "alpha must lie strictly between 0 and 1, got " + alpha);
+        require(sides == 1 || sides == 2, "sides must be 1 or 2, got " + sides);
+        require(role != Role.GUARDRAIL || sides == 1, "sides must be 1 for a guardrail (it watches for harm only), got " + sides);
+        require(spending != null, "spending is required: obf, pocock, power:RHO or hsd:GAMMA");
+        require(horizon != null, "a horizon is required: max_per_arm, or power with effect");
+        require(futility == null || (role == Role.PRIMARY && sides == 1 && horizon instanceof Horizon.Powered),
+                "futility needs a one-sided primary metric with power and effect");
+        if (baseline != null) {
+            require(Double.isFinite(baseline), "baseline must be a finite number, got " + baseline);
+            require(!kind.isProportion() || (baseline > 0 && baseline < 1),
+                    "baseline of a rate must lie strictly between 0 and 1, got " + baseline);
+        }
+        if (horizon instanceof Horizon.Powered p) {
+            boolean harmful = worse == Worse.HIGHER ? p.effect() > 0 : p.effect() < 0;
+            require(role != Role.GUARDRAIL || harmful,
+                    "effect of a guardrail must point the harmful way (worse: " + worse.name().toLowerCase() + "), got " + p.effect());
+        }
+        require(action != null, "action is required: none, kill or page");
+    }
+
+    private static void require(boolean ok, String message) {
+        if (!ok) {
+            throw new IllegalArgumentException(message);
+        }
+    }
+}

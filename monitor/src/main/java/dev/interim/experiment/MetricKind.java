@@ -1,0 +1,50 @@
+package dev.interim.experiment;
+
+/**
+ * What a metric counts, and over what: per event (each event is an observation) or per unit (each
+ * unit — a user, a session, a device — is one observation, whatever its number of events).
+ */
+public enum MetricKind {
+    /** Share of events meeting a condition (error rate per request). */
+    EVENT_RATE("event-rate", true),
+    /** Share of units that met a condition at least once (users who saw an error). */
+    UNIT_RATE("unit-rate", true),
+    /** Mean of a value over events (latency per request). */
+    EVENT_MEAN("event-mean", false),
+    /** Mean over units of each unit's total (revenue per user). */
+    UNIT_TOTAL("unit-total", false);
+
+    private final String label;
+    private final boolean proportion;
+
+    MetricKind(String label, boolean proportion) {
+        this.label = label;
+        this.proportion = proportion;
+    }
+
+    /** The name used in configuration files. */
+    public String label() {
+        return label;
+    }
+
+    /** True for the rates, whose tally is a count of successes over trials. */
+    public boolean isProportion() {
+        return proportion;
+    }
+
+    /** True when the metric needs per-unit state (and so input keyed by unit). */
+    public boolean perUnit() {
+        return this == UNIT_RATE || this == UNIT_TOTAL;
+    }
+
+    /** Parses a configuration label; the message lists the accepted ones. */
+    public static MetricKind parse(String text) {
+        for (MetricKind k : values()) {
+            if (k.label.equals(text)) {
+                return k;
+            }
+        }
+        throw new IllegalArgumentException("unknown metric kind '" + text
+                + "': use event-rate, unit-rate, event-mean or unit-total");
+    }
+}
