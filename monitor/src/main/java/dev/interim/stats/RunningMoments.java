@@ -56,6 +56,41 @@ public final class RunningMoments {
     }
 
     /**
+     * Removes one observation accepted earlier (Welford's update run backwards), for tallies whose
+     * observations change — a unit's running total is removed and accepted again when it grows.
+     * Removal loses the extra digits of the mean (its residual is reset), which is harmless for
+     * values of ordinary size.
+     *
+     * @throws IllegalArgumentException if the tally is empty or the value is not finite
+     */
+    public void remove(double value) {
+        if (!Double.isFinite(value)) {
+            throw new IllegalArgumentException("RunningMoments can only remove finite values, got " + value);
+        }
+        if (count == 0) {
+            throw new IllegalArgumentException("cannot remove a value from an empty tally");
+        }
+        if (count == 1) {
+            count = 0;
+            mean = Double.NaN;
+            meanResidual = 0;
+            sumSquaredDeviations = 0;
+            return;
+        }
+        long n = count - 1;
+        double exactMean = mean + meanResidual;
+        double delta = value - exactMean;
+        double newMean = exactMean - delta / n;
+        sumSquaredDeviations = Math.max(0, sumSquaredDeviations - delta * (value - newMean));
+        if (n == 1) {
+            sumSquaredDeviations = 0;
+        }
+        count = n;
+        mean = newMean;
+        meanResidual = 0;
+    }
+
+    /**
      * Merges {@code other} (a tally of a disjoint sample) into this one; {@code other} is unchanged.
      *
      * @return this
@@ -67,6 +102,17 @@ public final class RunningMoments {
         meanResidual = merged.meanResidual();
         sumSquaredDeviations = merged.sumSquaredDeviations();
         return this;
+    }
+
+    /** A running tally that starts from {@code moments} (restored state). */
+    public static RunningMoments from(Moments moments) {
+        RunningMoments r = new RunningMoments();
+        Checks.notNull("moments", moments);
+        r.count = moments.count();
+        r.mean = moments.mean();
+        r.meanResidual = moments.meanResidual();
+        r.sumSquaredDeviations = moments.sumSquaredDeviations();
+        return r;
     }
 
     /** Number of observations accepted so far. */

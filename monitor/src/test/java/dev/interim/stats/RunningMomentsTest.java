@@ -172,4 +172,29 @@ class RunningMomentsTest {
         }
         return max;
     }
+
+    /**
+     * Removing what was accepted gives the tally of what remains (checked against a fresh one-pass
+     * tally of the remaining values; exact oracle of the same data, common practice).
+     */
+    @org.junit.jupiter.api.Test
+    void removingAValueLeavesTheTallyOfTheRest() {
+        java.util.SplittableRandom random = new java.util.SplittableRandom(77);
+        double[] values = new double[200];
+        RunningMoments running = new RunningMoments();
+        for (int i = 0; i < values.length; i++) {
+            values[i] = 50 + 10 * random.nextDouble();
+            running.accept(values[i]);
+        }
+        for (int i = 0; i < 150; i++) {
+            running.remove(values[i]);
+        }
+        Moments rest = Moments.ofValues(java.util.Arrays.copyOfRange(values, 150, 200));
+        org.assertj.core.api.Assertions.assertThat(running.count()).isEqualTo(50);
+        org.assertj.core.api.Assertions.assertThat(running.mean()).isCloseTo(rest.mean(), org.assertj.core.api.Assertions.within(1e-12));
+        org.assertj.core.api.Assertions.assertThat(running.snapshot().variance())
+                .isCloseTo(rest.variance(), org.assertj.core.api.Assertions.within(1e-9 * rest.variance()));
+        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new RunningMoments().remove(1))
+                .hasMessageContaining("empty");
+    }
 }
