@@ -1,0 +1,159 @@
+package dev.interim.cli;
+
+import dev.interim.config.ConfigLoader;
+import dev.interim.config.Durations;
+import dev.interim.config.ExperimentConfig;
+import dev.interim.config.InterimConfig;
+import dev.interim.config.KafkaSettings;
+import dev.interim.config.MetricSource;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.Horizon;
+import dev.interim.experiment.MetricDefinition;
+import java.io.PrintWriter;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.concurrent.Callable;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.Spec;
+
+/**
+ * {@code interim check}: reads and validates a configuration without starting anything, and prints
+ * what it understood. An invalid file is bad input: one line naming the file, the key, the value and
+ * the rule, and exit code 2 (see {@link UserErrorHandler}).
+ */
+@Command(name = "check",
+        mixinStandardHelpOptions = true,
+        version = Interim.VERSION,
+        sortOptions = false,
+        description = {
+            "Validate a configuration file without starting anything, and summarise it: the Kafka topics, "
+                    + "the experiments, their arms and the design of each metric.",
+            "The environment variables that hold secrets are read and checked as the daemon would, "
+                    + "unless --without-secrets is given.",
+        },
+        footerHeading = "%nExamples:%n",
+        footer = {
+            "  interim check --config config/interim.example.yaml",
+            "  interim check --config deploy/interim.yaml --without-secrets",
+        })
+public final class CheckCommand implements Callable<Integer> {
+    private final Map<String, String> environment;
+
+    @Spec
+    CommandSpec spec;
+
+    @Option(names = "--config", paramLabel = "FILE", required = true,
+            description = "The YAML configuration to check (reference: docs/configuration.md).")
+    Path config;
+
+    @Option(names = "--without-secrets",
+            description = "Do not read the environment variables that hold secrets (for CI, where they are "
+                    + "absent); everything else is checked.")
+    boolean withoutSecrets;
+
+    public CheckCommand() {
+        this(System.getenv());
+    }
+
+    /** A check that reads secrets from {@code environment} (tests). */
+    CheckCommand(Map<String, String> environment) {
+        this.environment = environment;
+    }
+
+    @Override
+    public Integer call() {
+        InterimConfig c = withoutSecrets ? ConfigLoader.loadWithoutSecrets(config) : ConfigLoader.load(config, environment);
+        PrintWriter out = spec.commandLine().getOut();
+        out.println(config + ": valid" + (withoutSecrets ? " (secrets not read)" : ""));
+        out.println("  kafka:   " + kafka(c.kafka()));
+        out.println("  http:    " + c.http().bindAddress() + ":" + c.http().port()
+                + c.http().adminToken().map(t -> ", admin token from $" + t.variable()).orElse(", no admin token"));
+        out.println("  webhook: " + c.webhook().map(w -> w.url() + ", signed with the key in $" + w.signingKey().variable()
+                + ", " + w.maxAttempts() + " attempts").orElse("none"));
+        for (ExperimentConfig e : c.experiments()) {
+            experiment(out, e);
+        }
+        out.flush();
+        return Interim.OK;
+    }
+
+    private static String kafka(KafkaSettings k) {
+        return (k.embedded() ? "embedded broker" : String.join(",", k.bootstrapServers()))
+                + (k.properties().isEmpty() ? "" : " (" + k.properties().names().size() + " client properties)")
+                + "; input " + String.join(", ", k.inputTopics()) + (k.inputKeyedByUnit() ? " (keyed by unit)" : "")
+                + "; decisions " + k.decisionsTopic() + "; dead letters " + k.deadLetterTopic();
+    }
+
+    private static void experiment(PrintWriter out, ExperimentConfig config) {
+        ExperimentDefinition e = config.definition();
+        double total = e.split().values().stream().mapToDouble(Double::doubleValue).sum();
+        List<String> arms = new ArrayList<>();
+        for (String arm : e.arms()) {
+            String share = Decimals.rounded(100 * e.split().get(arm) / total, 1).toPlainString() + "%";
+            arms.add(arm + (arm.equals(e.control()) ? " (control, " + share + ")" : " (" + share + ")"));
+        }
+        out.println();
+        out.println("experiment " + e.id() + (e.dryRun() ? " [dry run: no kill webhook calls]" : " [LIVE: kill actions call the webhook]"));
+        out.println("  arms: " + String.join(", ", arms));
+        out.println("  looks every " + Durations.format(e.lookEvery()) + " once every arm has " + e.minPerArm()
+                + "; sample ratio mismatch holds decisions below p = " + Decimals.plain(e.sampleRatioThreshold()));
+        List<String[]> rows = new ArrayList<>();
+        rows.add(new String[] {"metric", "kind", "role", "worse", "alpha/comparison", "sides", "spending", "horizon",
+            "on harm", "source"});
+        for (MetricDefinition m : e.metrics()) {
+            rows.add(new String[] {
+                m.name(), m.kind().label(), lower(m.role()), lower(m.worse()),
+                Decimals.plain(e.comparisonAlpha(m)) + (e.treatments().size() > 1 ? " (" + Decimals.plain(m.alpha())
+                        + "/" + e.treatments().size() + ")" : ""),
+                String.valueOf(m.sides()),
+                SpendingNames.describe(m.spending()) + (m.futility() == null ? "" : ", futility "
+                        + SpendingNames.describe(m.futility())),
+                horizon(m.horizon()) + (m.baseline() == null ? "" : ", vs baseline " + Decimals.plain(m.baseline())),
+                lower(m.action()),
+                source(config.source(m)),
+            });
+        }
+        printLeftAligned(out, rows, "  ");
+    }
+
+    private static String horizon(Horizon h) {
+        if (h instanceof Horizon.MaxPerArm max) {
+            return "at most " + max.perArm() + " per arm";
+        }
+        Horizon.Powered p = (Horizon.Powered) h;
+        return "power " + Decimals.plain(p.power()) + " for effect " + Decimals.plain(p.effect()) + ", "
+                + p.plannedLooks() + " planned looks";
+    }
+
+    private static String source(MetricSource s) {
+        if (s instanceof MetricSource.Counted counted) {
+            return counted.field() + " " + counted.countsIf();
+        }
+        return s.field().toString();
+    }
+
+    private static String lower(Enum<?> e) {
+        return e.name().toLowerCase(Locale.ROOT);
+    }
+
+    private static void printLeftAligned(PrintWriter out, List<String[]> rows, String indent) {
+        int[] widths = new int[rows.get(0).length];
+        for (String[] row : rows) {
+            for (int c = 0; c < row.length; c++) {
+                widths[c] = Math.max(widths[c], row[c].length());
+            }
+        }
+        for (String[] row : rows) {
+            StringBuilder line = new StringBuilder(indent);
+            for (int c = 0; c < row.length; c++) {
+                line.append(row[c]).append(c == row.length - 1 ? "" : " ".repeat(widths[c] - row[c].length() + 2));
+            }
+            out.println(line.toString().stripTrailing());
+        }
+    }
+}

@@ -1,0 +1,300 @@
+package dev.interim.config;
+
+import com.fasterxml.jackson.core.JsonPointer;
+import java.net.URI;
+import java.net.URISyntaxException;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.Base64;
+import java.util.LinkedHashMap;
+import java.util.LinkedHashSet;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.Optional;
+import java.util.Set;
+import java.util.regex.Pattern;
+
+/** Reads the sections that connect the daemon to the world: kafka, events, http and webhook. */
+final class ConnectionReaders {
+    static final Set<String> KAFKA_KEYS = keys("bootstrap_servers", "properties", "input_topics", "decisions_topic",
+            "dead_letter_topic", "state_topic_prefix", "consumer_group_prefix", "commit_interval", "input_keyed_by_unit");
+    static final Set<String> EVENTS_KEYS = keys("experiment", "arm", "unit", "time");
+    static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env");
+    static final Set<String> WEBHOOK_KEYS = keys("url", "signing_key_env", "timeout", "max_attempts", "initial_backoff");
+
+    static final String DEFAULT_DECISIONS_TOPIC = "interim.decisions";
+    static final String DEFAULT_DEAD_LETTER_TOPIC = "interim.dead-letters";
+    static final String DEFAULT_STATE_TOPIC_PREFIX = "interim.state";
+    static final String DEFAULT_GROUP_PREFIX = "interim";
+    static final Duration DEFAULT_COMMIT_INTERVAL = Duration.ofMillis(500);
+    static final String DEFAULT_BIND_ADDRESS = "127.0.0.1";
+    static final int DEFAULT_PORT = 8080;
+
+    /** Properties the daemon sets itself: exactly-once and the record format depend on them. */
+    private static final Set<String> RESERVED_PROPERTIES = Set.of("group.id", "group.instance.id", "transactional.id",
+            "enable.idempotence", "isolation.level", "enable.auto.commit", "key.serializer", "value.serializer",
+            "key.deserializer", "value.deserializer");
+    private static final Pattern TOPIC = Pattern.compile("[A-Za-z0-9._-]{1,249}");
+    private static final Pattern PROPERTY_NAME = Pattern.compile("[A-Za-z0-9._-]+");
+    private static final Pattern HOST = Pattern.compile("[A-Za-z0-9._-]+|\\[[0-9A-Fa-f:.]+\\]");
+    private static final int MIN_ADMIN_TOKEN = 16;
+
+    private ConnectionReaders() {}
+
+    static Set<String> keys(String... names) {
+        return new LinkedHashSet<>(List.of(names));
+    }
+
+    // ---- kafka ----
+
+    static KafkaSettings kafka(ConfigNode k, Environment env) {
+        k.mapping(KAFKA_KEYS);
+        List<String> servers = k.optional("bootstrap_servers").map(ConnectionReaders::servers).orElse(List.of());
+        ClientProperties properties = k.optional("properties").map(p -> properties(p, env)).orElse(ClientProperties.none());
+        String decisions = k.optional("decisions_topic").map(ConnectionReaders::topic).orElse(DEFAULT_DECISIONS_TOPIC);
+        String deadLetters = k.optional("dead_letter_topic").map(ConnectionReaders::topic).orElse(DEFAULT_DEAD_LETTER_TOPIC);
+        if (decisions.equals(deadLetters)) {
+            String key = k.has("dead_letter_topic") ? "dead_letter_topic" : "decisions_topic";
+            throw k.required(key, "").error("'" + decisions + "' is used as both decisions_topic and "
+                    + "dead_letter_topic: give each its own topic");
+        }
+        String statePrefix = k.optional("state_topic_prefix").map(ConnectionReaders::topic).orElse(DEFAULT_STATE_TOPIC_PREFIX);
+        String groupPrefix = k.optional("consumer_group_prefix").map(ConnectionReaders::topic).orElse(DEFAULT_GROUP_PREFIX);
+        List<String> inputTopics = inputTopics(k.required("input_topics", "the list of topics carrying experiment events"),
+                decisions, deadLetters, statePrefix);
+        Duration commit = k.optional("commit_interval")
+                .map(d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(1))).orElse(DEFAULT_COMMIT_INTERVAL);
+        boolean keyed = k.optional("input_keyed_by_unit").map(ConfigNode::bool).orElse(false);
+        return new KafkaSettings(servers, properties, inputTopics, decisions, deadLetters, statePrefix, groupPrefix,
+                commit, keyed);
+    }
+
+    private static List<String> servers(ConfigNode at) {
+        List<String> servers = new ArrayList<>();
+        if (at.json().isTextual()) {
+            for (String s : at.text().split(",")) {
+                servers.add(broker(at, s.strip()));
+            }
+        } else {
+            for (ConfigNode item : at.elements("host:port addresses")) {
+                servers.add(broker(item, item.text()));
+            }
+        }
+        if (servers.isEmpty()) {
+            throw at.error("must list at least one host:port, or be left out to start the embedded broker");
+        }
+        return servers;
+    }
+
+    private static String broker(ConfigNode where, String address) {
+        int colon = address.lastIndexOf(':');
+        String host = colon < 0 ? "" : address.substring(0, colon);
+        String port = colon < 0 ? "" : address.substring(colon + 1);
+        if (!HOST.matcher(host).matches() || !port.matches("\\d{1,5}") || Integer.parseInt(port) < 1
+                || Integer.parseInt(port) > 65535) {
+            throw where.error("'" + address + "' is not a broker address: write host:port, such as kafka-1.internal:9092");
+        }
+        return address;
+    }
+
+    private static ClientProperties properties(ConfigNode p, Environment env) {
+        Map<String, String> written = new LinkedHashMap<>();
+        Map<String, String> resolved = new LinkedHashMap<>();
+        for (Map.Entry<String, ConfigNode> e : p.entries("Kafka client property names to values").entrySet()) {
+            String name = e.getKey();
+            ConfigNode value = e.getValue();
+            if (name.equals("bootstrap.servers")) {
+                throw value.error("set the brokers with kafka.bootstrap_servers instead");
+            }
+            if (RESERVED_PROPERTIES.contains(name)) {
+                throw value.error("is set by interim itself (its exactly-once processing depends on it); remove it");
+            }
+            if (!PROPERTY_NAME.matcher(name).matches()) {
+                throw value.error("is not a Kafka client property name (letters, digits, '.', '_', '-')");
+            }
+            if (!value.json().isValueNode() || value.json().isNull()) {
+                throw value.error("must be a single value (text, number or true/false); got " + value.kind()
+                        + ". Write nested property names in full, with dots, such as ssl.truststore.type");
+            }
+            String text = value.json().asText();
+            requireReferenceForCredential(value, name, text);
+            written.put(name, text);
+            if (env.reads()) {
+                resolved.put(name, substitute(value, text, env));
+            } else {
+                substitute(value, text, null);
+            }
+        }
+        return new ClientProperties(written, env.reads() ? resolved : null);
+    }
+
+    /** A credential must come from the environment, so that the file can be kept in version control. */
+    private static void requireReferenceForCredential(ConfigNode at, String name, String text) {
+        String lower = name.toLowerCase(Locale.ROOT);
+        boolean credential = lower.endsWith(".password") || lower.endsWith(".key") || lower.contains("secret")
+                || lower.equals("sasl.jaas.config") && text.toLowerCase(Locale.ROOT).contains("password");
+        if (credential && !text.contains("${")) {
+            throw at.error("holds a credential, which must not be written in the file: put it in an environment "
+                    + "variable and refer to it as ${NAME}, such as ${KAFKA_PASSWORD}");
+        }
+    }
+
+    /**
+     * Replaces each {@code ${NAME}} with the variable's value; {@code $${} writes a literal
+     * {@code ${}. With no environment, only checks the references' form.
+     */
+    private static String substitute(ConfigNode at, String text, Environment env) {
+        StringBuilder out = new StringBuilder();
+        int i = 0;
+        while (i < text.length()) {
+            if (text.startsWith("$${", i)) {
+                out.append("${");
+                i += 3;
+            } else if (text.startsWith("${", i)) {
+                int end = text.indexOf('}', i + 2);
+                if (end < 0) {
+                    throw at.error("has '${' without a closing '}': write ${NAME}, or $${ for a literal ${");
+                }
+                String name = text.substring(i + 2, end);
+                if (!Environment.isName(name)) {
+                    throw at.error("refers to '${" + name + "}', which is not an environment variable name "
+                            + "(letters, digits and '_', not starting with a digit)");
+                }
+                if (env != null) {
+                    out.append(env.value(at, name));
+                }
+                i = end + 1;
+            } else {
+                out.append(text.charAt(i++));
+            }
+        }
+        return out.toString();
+    }
+
+    private static String topic(ConfigNode t) {
+        String name = t.text();
+        if (!TOPIC.matcher(name).matches() || name.equals(".") || name.equals("..")) {
+            throw t.error("'" + name + "' is not a Kafka topic name: up to 249 letters, digits, '.', '_' or '-'");
+        }
+        return name;
+    }
+
+    /** The input topics: distinct, and none of them one the daemon writes (it would read its own output). */
+    private static List<String> inputTopics(ConfigNode inputs, String decisions, String deadLetters, String statePrefix) {
+        List<String> names = new ArrayList<>();
+        for (ConfigNode t : inputs.elements("topic names")) {
+            String name = topic(t);
+            if (names.contains(name)) {
+                throw t.error("topic '" + name + "' is listed twice");
+            }
+            if (name.equals(decisions) || name.equals(deadLetters)) {
+                throw t.error("'" + name + "' is also the " + (name.equals(decisions) ? "decisions_topic" : "dead_letter_topic")
+                        + ": the daemon would read its own output; give them different topics");
+            }
+            if (name.startsWith(statePrefix + ".")) {
+                throw t.error("'" + name + "' starts with the state_topic_prefix '" + statePrefix
+                        + ".', which names the daemon's own state topics; choose another state_topic_prefix");
+            }
+            names.add(name);
+        }
+        if (names.isEmpty()) {
+            throw inputs.error("must list at least one topic");
+        }
+        return names;
+    }
+
+    // ---- events ----
+
+    static EventMapping events(ConfigNode e) {
+        e.mapping(EVENTS_KEYS);
+        JsonPointer experiment = Pointers.field(e.required("experiment", "the JSON Pointer of the experiment id, such as /experiment"));
+        JsonPointer arm = Pointers.field(e.required("arm", "the JSON Pointer of the arm, such as /arm"));
+        Optional<JsonPointer> unit = e.optional("unit").map(Pointers::field);
+        Optional<JsonPointer> time = e.optional("time").map(Pointers::field);
+        return new EventMapping(experiment, arm, unit, time);
+    }
+
+    // ---- http ----
+
+    static HttpSettings http(Optional<ConfigNode> section, Environment env) {
+        if (section.isEmpty()) {
+            return new HttpSettings(DEFAULT_BIND_ADDRESS, DEFAULT_PORT, Optional.empty());
+        }
+        ConfigNode h = section.get().mapping(HTTP_KEYS);
+        String bind = h.optional("bind_address").map(b -> {
+            String text = b.text();
+            if (!HOST.matcher(text).matches()) {
+                throw b.error("'" + text + "' is not an address or host name, such as 127.0.0.1 or 0.0.0.0");
+            }
+            return text;
+        }).orElse(DEFAULT_BIND_ADDRESS);
+        int port = h.optional("port").map(p -> p.smallInteger(0, 65535)).orElse(DEFAULT_PORT);
+        Optional<Secret> token = h.optional("admin_token_env").map(t -> adminToken(t, env));
+        return new HttpSettings(bind, port, token);
+    }
+
+    private static Secret adminToken(ConfigNode at, Environment env) {
+        Secret token = env.secret(at);
+        if (token.isRead() && (token.reveal().length() < MIN_ADMIN_TOKEN || token.reveal().chars().anyMatch(Character::isWhitespace))) {
+            throw at.error("the token in " + token.variable() + " must be at least " + MIN_ADMIN_TOKEN
+                    + " characters without spaces; generate one with: openssl rand -hex 24");
+        }
+        return token;
+    }
+
+    // ---- webhook ----
+
+    static WebhookSettings webhook(ConfigNode w, Environment env) {
+        w.mapping(WEBHOOK_KEYS);
+        URI url = url(w.required("url", "the address the kill webhook is POSTed to, such as https://flags.internal/hooks/interim"));
+        Secret key = signingKey(w.required("signing_key_env",
+                "the name of the environment variable holding the signing key, such as INTERIM_WEBHOOK_KEY"), env);
+        Duration timeout = w.optional("timeout").map(d -> d.duration(Duration.ofMillis(100), Duration.ofMinutes(5)))
+                .orElse(Duration.ofSeconds(5));
+        int attempts = w.optional("max_attempts").map(a -> a.smallInteger(1, 20)).orElse(5);
+        Duration backoff = w.optional("initial_backoff").map(d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(10)))
+                .orElse(Duration.ofSeconds(1));
+        return new WebhookSettings(url, key, timeout, attempts, backoff);
+    }
+
+    private static URI url(ConfigNode at) {
+        String text = at.text();
+        URI uri;
+        try {
+            uri = new URI(text);
+        } catch (URISyntaxException e) {
+            throw at.error("'" + text + "' is not a URL: " + e.getReason());
+        }
+        String scheme = uri.getScheme() == null ? "" : uri.getScheme().toLowerCase(Locale.ROOT);
+        if (!(scheme.equals("http") || scheme.equals("https")) || uri.getHost() == null) {
+            throw at.error("'" + text + "' must be an absolute http or https URL with a host, such as "
+                    + "https://flags.internal/hooks/interim");
+        }
+        if (uri.getRawUserInfo() != null) {
+            throw at.error("must not carry credentials (user:password@): requests are authenticated by their "
+                    + "signature; remove them from the URL");
+        }
+        return uri;
+    }
+
+    /** Standard Webhooks keys: base64 of 24 to 64 random bytes, optionally prefixed {@code whsec_}. */
+    private static Secret signingKey(ConfigNode at, Environment env) {
+        Secret key = env.secret(at);
+        if (key.isRead()) {
+            String text = key.reveal();
+            String body = text.startsWith("whsec_") ? text.substring("whsec_".length()) : text;
+            int bytes;
+            try {
+                bytes = Base64.getDecoder().decode(body).length;
+            } catch (IllegalArgumentException e) {
+                bytes = -1;
+            }
+            if (bytes < 24 || bytes > 64) {
+                throw at.error("the key in " + key.variable() + " must be the base64 of 24 to 64 random bytes, "
+                        + "optionally prefixed whsec_; generate one with: echo whsec_$(openssl rand -base64 32)");
+            }
+        }
+        return key;
+    }
+}

@@ -1,0 +1,138 @@
+package dev.interim.config;
+
+import com.fasterxml.jackson.core.JsonPointer;
+import com.fasterxml.jackson.databind.JsonNode;
+import dev.interim.experiment.Horizon;
+import dev.interim.experiment.MetricDefinition;
+import dev.interim.experiment.MetricKind;
+import dev.interim.experiment.Role;
+import dev.interim.experiment.StopAction;
+import dev.interim.experiment.Worse;
+import dev.interim.sequential.SpendingFunction;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.stream.Collectors;
+
+/** Reads one entry of an experiment's {@code metrics}: its test design and its source in the events. */
+final class MetricReader {
+    static final Set<String> KEYS = ConnectionReaders.keys("name", "kind", "role", "worse", "field", "counts_if",
+            "alpha", "sides", "spending", "futility", "max_per_arm", "power", "effect", "planned_looks", "baseline",
+            "action");
+    static final double DEFAULT_ALPHA = 0.05;
+    static final String DEFAULT_SPENDING = "obf";
+    static final int DEFAULT_PLANNED_LOOKS = 10;
+
+    /** A metric as read: its definition and where it is read. */
+    record Read(MetricDefinition definition, MetricSource source) {
+    }
+
+    private MetricReader() {}
+
+    static Read read(ConfigNode m) {
+        m.mapping(KEYS);
+        String name = m.required("name", "the metric's name, such as checkout-errors").text();
+        MetricKind kind = m.required("kind", "event-rate, unit-rate, event-mean or unit-total").parsed(MetricKind::parse);
+        Role role = m.required("role", "guardrail (watches for harm) or primary").parsed(Role::parse);
+        Worse worse = m.required("worse", "higher or lower: which direction of the metric hurts users").parsed(Worse::parse);
+        MetricSource source = source(m, kind);
+        double alpha = m.optional("alpha").map(ConfigNode::number).orElse(DEFAULT_ALPHA);
+        int sides = m.optional("sides").map(ConfigNode::intValue).orElse(role == Role.GUARDRAIL ? 1 : 2);
+        SpendingFunction spending = m.optional("spending").map(s -> s.parsed(SpendingFunction::parse))
+                .orElseGet(() -> SpendingFunction.parse(DEFAULT_SPENDING));
+        SpendingFunction futility = m.optional("futility").map(f -> f.parsed(SpendingFunction::parse)).orElse(null);
+        Horizon horizon = horizon(m);
+        Double baseline = m.optional("baseline").map(ConfigNode::number).orElse(null);
+        StopAction action = m.optional("action").map(a -> a.parsed(StopAction::parse)).orElse(StopAction.NONE);
+        MetricDefinition definition = Domain.build(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
+                sides, spending, futility, horizon, baseline, action));
+        return new Read(definition, source);
+    }
+
+    private static Horizon horizon(ConfigNode m) {
+        boolean max = m.has("max_per_arm");
+        boolean powered = m.has("power") || m.has("effect");
+        if (max && powered) {
+            throw m.required("max_per_arm", "").error("give either max_per_arm or power with effect, not both");
+        }
+        if (max) {
+            if (m.has("planned_looks")) {
+                throw m.required("planned_looks", "").error("applies to a horizon sized by power and effect; "
+                        + "with max_per_arm, leave it out");
+            }
+            long perArm = m.required("max_per_arm", "").integer();
+            return Domain.build(m, KEYS, () -> new Horizon.MaxPerArm(perArm));
+        }
+        if (!powered) {
+            throw m.error("needs a horizon: max_per_arm (the planned maximum per arm), or power with effect "
+                    + "(the change to detect, in the metric's units)");
+        }
+        double power = m.required("power", "the chance to detect effect, such as 0.8, with effect").number();
+        double effect = m.required("effect", "the change to detect (treatment minus control, in the metric's "
+                + "units), with power").number();
+        int plannedLooks = m.optional("planned_looks").map(ConfigNode::intValue).orElse(DEFAULT_PLANNED_LOOKS);
+        return Domain.build(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks));
+    }
+
+    private static MetricSource source(ConfigNode m, MetricKind kind) {
+        JsonPointer field = Pointers.field(m.required("field", "the JSON Pointer of the field this metric reads, "
+                + (kind.isProportion() ? "such as /response/status" : "such as /timing/total_ms")));
+        if (!kind.isProportion()) {
+            if (m.has("counts_if")) {
+                throw m.required("counts_if", "").error("applies to rates only: a " + kind.label()
+                        + " takes the number in field; leave counts_if out");
+            }
+            return new MetricSource.Value(field);
+        }
+        ConfigNode c = m.required("counts_if", "the condition that counts an " + (kind.perUnit() ? "unit" : "event")
+                + " as a success, such as {at_least: 500} or {equals: purchased}");
+        return new MetricSource.Counted(field, condition(c));
+    }
+
+    /** {@code {OPERATOR: VALUE}} with exactly one of the operators of {@link Condition.Comparison}. */
+    static Condition condition(ConfigNode c) {
+        String accepted = Arrays.stream(Condition.Comparison.values()).map(Condition.Comparison::key)
+                .collect(Collectors.joining(", "));
+        if (!c.json().isObject()) {
+            throw c.error("must be one comparison, such as {at_least: 500} or {in: [declined, timed_out]}; "
+                    + "accepted: " + accepted + "; got " + c.kind());
+        }
+        if (c.json().size() != 1) {
+            throw c.error("must hold exactly one comparison (accepted: " + accepted + "); got "
+                    + (c.json().isEmpty() ? "none" : String.join(", ", c.entries("one comparison").keySet())));
+        }
+        Map.Entry<String, ConfigNode> only = c.entries("one comparison").entrySet().iterator().next();
+        Condition.Comparison comparison = Arrays.stream(Condition.Comparison.values())
+                .filter(k -> k.key().equals(only.getKey())).findFirst()
+                .orElseThrow(() -> only.getValue().error("unknown comparison" + KeyHints.closest(only.getKey(),
+                        Arrays.stream(Condition.Comparison.values()).map(Condition.Comparison::key).toList())
+                        .map(k -> " (did you mean '" + k + "'?)").orElse("") + "; accepted: " + accepted));
+        ConfigNode operand = only.getValue();
+        List<JsonNode> operands = new ArrayList<>();
+        if (comparison.takesList()) {
+            for (ConfigNode v : operand.elements("values to compare with, such as [declined, timed_out]")) {
+                operands.add(scalar(v, comparison));
+            }
+            if (operands.isEmpty()) {
+                throw operand.error("must list at least one value");
+            }
+        } else {
+            operands.add(scalar(operand, comparison));
+        }
+        return new Condition(comparison, operands);
+    }
+
+    private static JsonNode scalar(ConfigNode v, Condition.Comparison comparison) {
+        JsonNode n = v.json();
+        if (comparison.ordering()) {
+            if (!n.isNumber() || !Double.isFinite(n.doubleValue())) {
+                throw v.error(comparison.key() + " compares numbers: give a number; got " + v.kind());
+            }
+        } else if (!(n.isTextual() || n.isNumber() || n.isBoolean())) {
+            throw v.error("must be text, a number or true/false; got " + v.kind());
+        }
+        return n;
+    }
+}

@@ -1,0 +1,172 @@
+package dev.interim.cli;
+
+import static org.assertj.core.api.Assertions.assertThat;
+
+import java.io.IOException;
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Map;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import picocli.CommandLine;
+
+/**
+ * {@code interim check}: exit 0 and a summary for a valid file; exit 2 and one line naming the file,
+ * the key and the rule for an invalid one. Expected values are read off config/interim.example.yaml;
+ * the exit-code convention is the command line's (see {@link Interim}).
+ */
+class CheckCommandTest {
+    /** base64 of 32 bytes, in the Standard Webhooks form. */
+    private static final String HOOK_KEY = "whsec_c2VjcmV0LWtleS1mb3ItdGVzdHMtb25seS0xMjM0NTY=";
+    private static final String ADMIN_TOKEN = "admin-token-never-printed-5521";
+    private static final Map<String, String> ENV = Map.of("INTERIM_WEBHOOK_KEY", HOOK_KEY, "INTERIM_ADMIN_TOKEN", ADMIN_TOKEN);
+
+    @TempDir
+    Path dir;
+
+    /** The real command line, with {@code check} reading secrets from {@code env} instead of the process. */
+    private static Cli.Result check(Map<String, String> env, String... options) {
+        StringWriter out = new StringWriter();
+        StringWriter err = new StringWriter();
+        CommandLine.IFactory factory = new CommandLine.IFactory() {
+            @Override
+            public <K> K create(Class<K> type) throws Exception {
+                return type == CheckCommand.class ? type.cast(new CheckCommand(env)) : CommandLine.defaultFactory().create(type);
+            }
+        };
+        CommandLine cli = new CommandLine(new Interim(), factory);
+        UserErrorHandler errors = new UserErrorHandler();
+        cli.setParameterExceptionHandler(errors);
+        cli.setExecutionExceptionHandler(errors);
+        cli.setOut(new PrintWriter(out, true));
+        cli.setErr(new PrintWriter(err, true));
+        String[] args = new String[options.length + 1];
+        args[0] = "check";
+        System.arraycopy(options, 0, args, 1, options.length);
+        int exit = cli.execute(args);
+        return new Cli.Result(exit, out.toString(), err.toString());
+    }
+
+    private static Path example() {
+        for (Path d = Path.of("").toAbsolutePath(); d != null; d = d.getParent()) {
+            Path candidate = d.resolve("config/interim.example.yaml");
+            if (Files.isRegularFile(candidate)) {
+                return candidate;
+            }
+        }
+        throw new AssertionError("config/interim.example.yaml not found");
+    }
+
+    private Path file(String yaml) throws IOException {
+        return Files.writeString(dir.resolve("interim.yaml"), yaml);
+    }
+
+    @Test
+    void theExampleIsValidAndSummarised() {
+        Path example = example();
+        Cli.Result r = check(ENV, "--config", example.toString());
+
+        assertThat(r.err()).isEmpty();
+        assertThat(r.exit()).isZero();
+        assertThat(r.out()).startsWith(example + ": valid\n")
+                .contains("embedded broker", "input courier.quote-events (keyed by unit)", "decisions interim.decisions")
+                .contains("127.0.0.1:8080, admin token from $INTERIM_ADMIN_TOKEN")
+                .contains("https://flags.courier.example/hooks/interim-kill, signed with the key in $INTERIM_WEBHOOK_KEY")
+                .contains("experiment rate-card-engine-v2 [dry run: no kill webhook calls]")
+                .contains("arms: table-rates (control, 50%), solver-rates (25%), solver-rates-cached (25%)")
+                .contains("looks every 1m once every arm has 500");
+        assertThat(line(r.out(), "quote-errors")).contains("event-rate", "guardrail", "higher", "0.005 (0.01/2)", " 1 ",
+                "O'Brien-Fleming-type", "at most 200000 per arm", "kill", "/quote/http_status at_least: 500");
+        assertThat(line(r.out(), "quote-latency-ms")).contains("event-mean", "Pocock-type", "page", "/quote/elapsed_ms");
+        assertThat(line(r.out(), "label-purchase")).contains("unit-rate", "primary", "lower", "0.025 (0.05/2)", " 2 ",
+                "power 0.8 for effect 0.02, 12 planned looks", "/step equals: label_bought");
+        assertThat(r.out()).doesNotContain(HOOK_KEY, ADMIN_TOKEN);
+    }
+
+    private static String line(String out, String containing) {
+        return out.lines().filter(l -> l.contains(containing)).findFirst()
+                .orElseThrow(() -> new AssertionError("no line with " + containing + " in\n" + out));
+    }
+
+    @Test
+    void withoutSecretsTheExampleChecksInAnEmptyEnvironment() {
+        Cli.Result r = check(Map.of(), "--config", example().toString(), "--without-secrets");
+
+        assertThat(r.exit()).as(r.err()).isZero();
+        assertThat(r.out()).contains(": valid (secrets not read)");
+    }
+
+    @Test
+    void aMissingSecretIsBadInputNamingTheVariable() {
+        Cli.Result r = check(Map.of("INTERIM_ADMIN_TOKEN", ADMIN_TOKEN), "--config", example().toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.out()).isEmpty();
+        assertThat(r.errLines()).singleElement().asString()
+                .startsWith("interim: " + example() + ": webhook.signing_key_env: ")
+                .contains("INTERIM_WEBHOOK_KEY is not set")
+                .doesNotContain(ADMIN_TOKEN);
+    }
+
+    @Test
+    void anInvalidFileGivesOneLineWithTheFileTheKeyAndTheRule() throws IOException {
+        String yaml = Files.readString(example()).replace("alpha: 0.01              # per metric", "alpha: 2 # per metric");
+        assertThat(yaml).contains("alpha: 2");
+        Path f = file(yaml);
+
+        Cli.Result r = check(ENV, "--config", f.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.out()).isEmpty();
+        assertThat(r.errLines()).singleElement().asString()
+                .startsWith("interim: " + f + ": experiments[0].metrics[0].alpha: alpha must lie strictly between 0 and 1")
+                .doesNotContain("Exception", HOOK_KEY, ADMIN_TOKEN);
+    }
+
+    @Test
+    void invalidYamlIsBadInputWithItsLine() throws IOException {
+        Path f = file("kafka:\n  input_topics: [a\nevents: {}\n");
+
+        Cli.Result r = check(ENV, "--config", f.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString().startsWith("interim: " + f + ": is not valid YAML at line");
+    }
+
+    @Test
+    void aMissingFileIsBadInput() {
+        Path missing = dir.resolve("nowhere.yaml");
+
+        Cli.Result r = check(ENV, "--config", missing.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.out()).isEmpty();
+        assertThat(r.errLines()).singleElement().asString().startsWith("interim: " + missing + ": no such file");
+    }
+
+    @Test
+    void aDirectoryIsBadInput() {
+        Cli.Result r = check(ENV, "--config", dir.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString().contains("is a directory");
+    }
+
+    @Test
+    void theConfigOptionIsRequired() {
+        Cli.Result r = check(ENV);
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString().startsWith("interim: ").contains("--config");
+    }
+
+    @Test
+    void checkIsRegisteredOnTheRealCommandLine() {
+        Cli.Result r = Cli.run("check", "--config", dir.resolve("absent.yaml").toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString().contains("no such file");
+    }
+}
