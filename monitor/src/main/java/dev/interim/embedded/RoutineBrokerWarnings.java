@@ -1,0 +1,51 @@
+package dev.interim.embedded;
+
+import ch.qos.logback.classic.Level;
+import ch.qos.logback.classic.spi.ILoggingEvent;
+import ch.qos.logback.core.filter.Filter;
+import ch.qos.logback.core.spi.FilterReply;
+import java.util.List;
+
+/**
+ * A Logback filter that drops the warnings every healthy start and stop of the embedded broker
+ * logs, so that a warning on the console means something. Kafka logs at WARN that the controller
+ * activates (each start) and that its registration channel's client was already closed (each
+ * stop); neither is a fault. Every other warning, from these loggers too, passes.
+ *
+ * <p>Used from {@code logback.xml}: {@code <filter class="dev.interim.embedded.RoutineBrokerWarnings"/>}.
+ */
+public final class RoutineBrokerWarnings extends Filter<ILoggingEvent> {
+
+    /** A routine warning: the logger it comes from, and text found in every such message. */
+    private record Routine(String logger, String... fragments) {
+        boolean matches(ILoggingEvent event) {
+            if (!logger.equals(event.getLoggerName())) {
+                return false;
+            }
+            String message = event.getFormattedMessage();
+            for (String fragment : fragments) {
+                if (message == null || !message.contains(fragment)) {
+                    return false;
+                }
+            }
+            return true;
+        }
+    }
+
+    private static final List<Routine> ROUTINE = List.of(
+            new Routine("org.apache.kafka.controller.QuorumController", "Performing controller activation."),
+            new Routine("org.apache.kafka.clients.NetworkClient", "NodeToControllerChannelManager",
+                    "Attempting to close NetworkClient that has already been closed."));
+
+    @Override
+    public FilterReply decide(ILoggingEvent event) {
+        if (event.getLevel() == Level.WARN) {
+            for (Routine routine : ROUTINE) {
+                if (routine.matches(event)) {
+                    return FilterReply.DENY;
+                }
+            }
+        }
+        return FilterReply.NEUTRAL;
+    }
+}
