@@ -19,6 +19,9 @@ import picocli.CommandLine.Spec;
         description = "Monitors live A/B experiments and rollouts with group-sequential statistics.",
         subcommands = {
             PlanCommand.class,
+            CheckCommand.class,
+            RunCommand.class,
+            DemoCommand.class,
         },
         exitCodeListHeading = "%nExit codes:%n",
         exitCodeList = {

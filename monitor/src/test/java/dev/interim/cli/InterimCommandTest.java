@@ -56,7 +56,7 @@ class InterimCommandTest {
 
         assertThat(r.exit()).isEqualTo(2);
         assertThat(r.errLines()).singleElement().asString()
-                .isEqualTo("interim: unknown command 'forecast': use plan; see 'interim --help'");
+                .isEqualTo("interim: unknown command 'forecast': use plan, check, run, demo; see 'interim --help'");
     }
 
     @Test

@@ -1,0 +1,273 @@
+package dev.interim.daemon;
+
+import dev.interim.config.ExperimentConfig;
+import dev.interim.config.InterimConfig;
+import dev.interim.config.KafkaSettings;
+import dev.interim.embedded.EmbeddedKafka;
+import dev.interim.experiment.DecisionRecord;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.LookReport;
+import dev.interim.experiment.Tally;
+import dev.interim.http.HttpEndpoint;
+import dev.interim.signal.DecisionJson;
+import dev.interim.signal.Meters;
+import dev.interim.signal.WebhookSender;
+import dev.interim.stream.BadEventException;
+import dev.interim.stream.Catalog;
+import dev.interim.stream.JsonEventReader;
+import dev.interim.stream.JudgeStage;
+import dev.interim.stream.StageEvents;
+import dev.interim.stream.StreamSettings;
+import dev.interim.stream.TallyStage;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+import java.util.concurrent.ExecutorService;
+import java.util.concurrent.Executors;
+import java.util.concurrent.TimeUnit;
+import java.util.function.Consumer;
+import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.admin.AdminClientConfig;
+import org.apache.kafka.clients.admin.NewTopic;
+import org.apache.kafka.clients.admin.TopicDescription;
+import org.apache.kafka.common.config.TopicConfig;
+import org.apache.kafka.common.errors.TopicExistsException;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * The monitor daemon, wired: the embedded broker when no bootstrap servers are configured, the
+ * topics, the tally and judge stages on their own threads, meters on {@code /metrics}, the kill
+ * webhook, and one log line per decision. {@link #close()} stops everything in order.
+ */
+public final class Daemon implements AutoCloseable {
+    private static final Logger LOG = LoggerFactory.getLogger(Daemon.class);
+    /** Partitions of the state topics, and of input topics the daemon creates itself. */
+    static final int STATE_PARTITIONS = 3;
+
+    private final EmbeddedKafka broker;
+    private final StreamSettings settings;
+    private final Meters meters;
+    private final HttpEndpoint http;
+    private final TallyStage tally;
+    private final JudgeStage judge;
+    private final List<Thread> threads = new ArrayList<>();
+    private final ExecutorService webhooks;
+
+    /** What a caller may watch besides the records on the decisions topic. */
+    public record Options(Path dataDir, Clock clock, Consumer<DecisionRecord> onDecision) {
+        public Options {
+            clock = clock == null ? Clock.systemUTC() : clock;
+            onDecision = onDecision == null ? d -> { } : onDecision;
+        }
+    }
+
+    private Daemon(InterimConfig config, Options options) {
+        KafkaSettings kafka = config.kafka();
+        if (kafka.embedded()) {
+            Path dir = options.dataDir() != null ? options.dataDir() : Path.of("interim-data");
+            broker = EmbeddedKafka.start(dir.toAbsolutePath());
+            LOG.info("embedded Kafka broker at {} with its data in {}", broker.bootstrapServers(), broker.dataDir());
+        } else {
+            broker = null;
+        }
+        String bootstrap = broker != null ? broker.bootstrapServers() : String.join(",", kafka.bootstrapServers());
+        Map<String, Object> client = new HashMap<>(kafka.properties().forClients());
+        settings = new StreamSettings(bootstrap, client, kafka.inputTopics(), kafka.decisionsTopic(), kafka.deadLetterTopic(),
+                kafka.stateTopicPrefix(), kafka.consumerGroupPrefix(), kafka.commitInterval(), STATE_PARTITIONS);
+        createTopics(settings);
+
+        List<ExperimentDefinition> definitions = config.experiments().stream().map(ExperimentConfig::definition).toList();
+        Catalog catalog = new Catalog(definitions);
+        meters = new Meters();
+        webhooks = Executors.newSingleThreadExecutor(r -> daemonThread(r, "interim-webhook"));
+        WebhookSender sender = config.webhook().map(w -> WebhookSender.to(w.url(),
+                        dev.interim.signal.Secret.parse(w.signingKey().reveal()))
+                .maxAttempts(w.maxAttempts()).backoff(w.initialBackoff(), w.initialBackoff().multipliedBy(32))
+                .requestTimeout(w.timeout()).build()).orElse(null);
+        StageEvents events = new Events(meters, sender, webhooks, options.onDecision());
+        tally = new TallyStage(settings, catalog, new JsonEventReader(config), events);
+        judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write);
+        http = HttpEndpoint.builder().bindAddress(config.http().bindAddress()).port(config.http().port())
+                .metrics(meters::scrape).start();
+        start(tally, "interim-tally");
+        start(judge, "interim-judge");
+        LOG.info("interim watching {} experiment(s) on {}; metrics at {}", definitions.size(),
+                settings.inputTopics(), http.uri().resolve("/metrics"));
+    }
+
+    /** Starts the daemon; returns once its threads run (the stages join their groups on their own). */
+    public static Daemon start(InterimConfig config, Options options) {
+        return new Daemon(config, options);
+    }
+
+    public String bootstrapServers() {
+        return settings.bootstrapServers();
+    }
+
+    public StreamSettings settings() {
+        return settings;
+    }
+
+    public int httpPort() {
+        return http.port();
+    }
+
+    public Meters meters() {
+        return meters;
+    }
+
+    /** The experiments this instance decides now. */
+    public List<ExperimentMonitor> experiments() {
+        return List.copyOf(judge.owned());
+    }
+
+    private void start(Runnable stage, String name) {
+        Thread t = new Thread(() -> {
+            try {
+                stage.run();
+            } catch (RuntimeException e) {
+                LOG.error("{} stopped: {}", name, e.toString(), e);
+            }
+        }, name);
+        t.start();
+        threads.add(t);
+    }
+
+    private static Thread daemonThread(Runnable r, String name) {
+        Thread t = new Thread(r, name);
+        t.setDaemon(true);
+        return t;
+    }
+
+    /** Creates what is missing: input, decisions and dead-letter topics, and the compacted state topics. */
+    static void createTopics(StreamSettings s) {
+        Properties p = new Properties();
+        p.putAll(s.clientProperties());
+        p.put(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, s.bootstrapServers());
+        try (Admin admin = Admin.create(p)) {
+            List<NewTopic> topics = new ArrayList<>();
+            for (String input : s.inputTopics()) {
+                topics.add(new NewTopic(input, STATE_PARTITIONS, (short) 1));
+            }
+            topics.add(new NewTopic(s.decisionsTopic(), STATE_PARTITIONS, (short) 1));
+            topics.add(new NewTopic(s.deadLetterTopic(), 1, (short) 1));
+            topics.add(compacted(s.talliesTopic(), s.statePartitions()));
+            topics.add(compacted(s.looksTopic(), s.statePartitions()));
+            createMissing(admin, topics);
+            int inputPartitions = 1;
+            Map<String, TopicDescription> described = admin.describeTopics(s.inputTopics()).allTopicNames().get(30, TimeUnit.SECONDS);
+            for (TopicDescription d : described.values()) {
+                inputPartitions = Math.max(inputPartitions, d.partitions().size());
+            }
+            createMissing(admin, List.of(compacted(s.unitsTopic(), inputPartitions)));
+        } catch (Exception e) {
+            throw new IllegalStateException("could not create the topics on " + s.bootstrapServers() + ": " + e.getMessage(), e);
+        }
+    }
+
+    private static NewTopic compacted(String name, int partitions) {
+        return new NewTopic(name, partitions, (short) 1).configs(Map.of(TopicConfig.CLEANUP_POLICY_CONFIG,
+                TopicConfig.CLEANUP_POLICY_COMPACT));
+    }
+
+    private static void createMissing(Admin admin, List<NewTopic> topics) throws Exception {
+        for (NewTopic t : topics) {
+            try {
+                admin.createTopics(List.of(t)).all().get(30, TimeUnit.SECONDS);
+            } catch (java.util.concurrent.ExecutionException e) {
+                if (!(e.getCause() instanceof TopicExistsException)) {
+                    throw e;
+                }
+            }
+        }
+    }
+
+    /** Meters, logs and webhooks from the stages' reports. */
+    private static final class Events implements StageEvents {
+        private final Meters meters;
+        private final WebhookSender sender;
+        private final ExecutorService webhooks;
+        private final Consumer<DecisionRecord> onDecision;
+
+        Events(Meters meters, WebhookSender sender, ExecutorService webhooks, Consumer<DecisionRecord> onDecision) {
+            this.meters = meters;
+            this.sender = sender;
+            this.webhooks = webhooks;
+            this.onDecision = onDecision;
+        }
+
+        @Override
+        public void accepted(String experiment, long events) {
+            meters.eventsAccepted(experiment, events);
+        }
+
+        @Override
+        public void rejected(BadEventException.Reason reason) {
+            meters.eventRejected(reason.label());
+        }
+
+        @Override
+        public void owned(ExperimentMonitor monitor) {
+            meters.register(monitor);
+        }
+
+        @Override
+        public void disowned(ExperimentMonitor monitor) {
+            meters.remove(monitor.definition().id());
+        }
+
+        @Override
+        public void looked(LookReport report, Map<String, Map<String, Tally>> tallies, Duration took) {
+            meters.looked(report, tallies, took);
+        }
+
+        @Override
+        public void committed(List<DecisionRecord> decisions) {
+            for (DecisionRecord d : decisions) {
+                meters.decided(d);
+                LOG.info("decision {} {}/{}/{} look {} fraction {} z {} boundary {} alpha_spent {} id {}{}",
+                        d.decision(), d.experiment(), d.arm(), d.metric(), d.look(), fmt(d.fraction()),
+                        fmt(d.statistic()), fmt(d.boundary()), fmt(d.alphaSpent()), d.decisionId(),
+                        d.dryRun() ? " (dry run)" : "");
+                onDecision.accept(d);
+                if (d.killRequested() && sender != null) {
+                    webhooks.submit(() -> meters.webhook(sender.send(d)));
+                }
+            }
+        }
+
+        private static String fmt(double x) {
+            return Double.isFinite(x) ? String.format(java.util.Locale.ROOT, "%.4g", x) : String.valueOf(x);
+        }
+    }
+
+    @Override
+    public void close() {
+        tally.close();
+        judge.close();
+        for (Thread t : threads) {
+            try {
+                t.join(TimeUnit.SECONDS.toMillis(30));
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+            }
+        }
+        webhooks.shutdown();
+        try {
+            webhooks.awaitTermination(10, TimeUnit.SECONDS);
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+        http.close();
+        if (broker != null) {
+            broker.close();
+        }
+    }
+}

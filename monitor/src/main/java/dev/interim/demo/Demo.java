@@ -1,0 +1,150 @@
+package dev.interim.demo;
+
+import dev.interim.config.ConfigLoader;
+import dev.interim.config.InterimConfig;
+import dev.interim.daemon.Daemon;
+import dev.interim.experiment.Comparison;
+import dev.interim.experiment.Decision;
+import dev.interim.experiment.DecisionRecord;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.LookResult;
+import dev.interim.signal.DecisionJson;
+import dev.interim.signal.Secret;
+import java.io.IOException;
+import java.io.InputStream;
+import java.io.PrintWriter;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Path;
+import java.security.SecureRandom;
+import java.time.Duration;
+import java.util.Base64;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.Properties;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.serialization.StringSerializer;
+
+/**
+ * The demonstration: the embedded broker, the invented "tidepool" rollout (three builds, synthetic
+ * shoppers), a local stand-in for the flag service that receives and verifies kill webhooks, and the
+ * daemon. Prints every decision record as one JSON line as it happens, and a summary at the end. It
+ * ends once the harmful build has been switched off and the rest have had a few more looks, or
+ * after a time limit; with {@code keepRunning} it goes on until interrupted.
+ */
+public final class Demo {
+    private final PrintWriter out;
+    private final PrintWriter err;
+    private final Path dataDir;
+    private final Duration limit;
+    private final boolean keepRunning;
+
+    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning) {
+        this.out = out;
+        this.err = err;
+        this.dataDir = dataDir;
+        this.limit = limit;
+        this.keepRunning = keepRunning;
+    }
+
+    /** Runs the scenario; returns true when the harmful build was stopped for harm and the healthy one was not. */
+    public boolean run() throws IOException, InterruptedException {
+        byte[] key = new byte[32];
+        new SecureRandom().nextBytes(key);
+        String secret = Secret.PREFIX + Base64.getEncoder().encodeToString(key);
+        try (FlagServiceStandIn flags = new FlagServiceStandIn(Secret.parse(secret), this::say)) {
+            String yaml = resource("demo.yaml")
+                    .replace("${DEMO_HTTP_PORT}", "0")
+                    .replace("${DEMO_WEBHOOK_URL}", flags.url().toString());
+            InterimConfig config = ConfigLoader.parse(yaml, Map.of("DEMO_WEBHOOK_KEY", secret));
+            say("starting the embedded Kafka broker and the daemon (data in " + dataDir + ")");
+            try (Daemon daemon = Daemon.start(config, new Daemon.Options(dataDir, null, this::print));
+                 KafkaProducer<String, String> producer = producer(daemon.bootstrapServers())) {
+                say("metrics at http://127.0.0.1:" + daemon.httpPort() + "/metrics; shoppers arriving for "
+                        + String.join(", ", DemoTraffic.BUILDS));
+                DemoTraffic traffic = new DemoTraffic(20261202);
+                long start = System.nanoTime();
+                long decidedAt = -1;
+                while (keepRunning || System.nanoTime() - start < limit.toNanos()) {
+                    traffic.shoppers(400, (shopper, json) ->
+                            producer.send(new ProducerRecord<>(config.kafka().inputTopics().get(0), shopper, json)));
+                    producer.flush();
+                    Thread.sleep(250);
+                    if (decidedAt < 0 && !flags.kills().isEmpty()) {
+                        decidedAt = System.nanoTime();
+                    }
+                    if (!keepRunning && decidedAt > 0 && System.nanoTime() - decidedAt > Duration.ofSeconds(8).toNanos()) {
+                        break;
+                    }
+                }
+                return summary(daemon.experiments());
+            }
+        }
+    }
+
+    private boolean summary(List<ExperimentMonitor> experiments) {
+        out.println();
+        out.println("Summary");
+        out.printf(Locale.ROOT, "  %-12s %-20s %-14s %5s %8s %8s %8s%n", "build", "metric", "decision", "look", "fraction", "z", "boundary");
+        boolean harmStopped = false;
+        boolean healthyStopped = false;
+        for (ExperimentMonitor m : experiments) {
+            for (Comparison c : m.comparisons()) {
+                LookResult last = c.last();
+                out.printf(Locale.ROOT, "  %-12s %-20s %-14s %5s %8s %8s %8s%n", c.arm(), c.metric().name(), c.decision().label(),
+                        last == null ? "-" : last.look().number(), last == null ? "-" : fmt(last.look().fraction()),
+                        last == null ? "-" : fmt(last.estimate().z()), last == null ? "-" : fmt(last.boundary()));
+                if (c.arm().equals("candidate-b") && c.decision() == Decision.STOP_HARM) {
+                    harmStopped = true;
+                }
+                if (c.arm().equals("candidate-a") && c.decision() == Decision.STOP_HARM) {
+                    healthyStopped = true;
+                }
+            }
+        }
+        out.println();
+        out.println(harmStopped && !healthyStopped
+                ? "candidate-b was stopped for harm and switched off; candidate-a was not stopped."
+                : "the scenario did not end as expected: candidate-b stopped " + harmStopped + ", candidate-a stopped " + healthyStopped);
+        out.flush();
+        return harmStopped && !healthyStopped;
+    }
+
+    private static String fmt(double x) {
+        return Double.isFinite(x) ? String.format(Locale.ROOT, "%.3f", x) : (x > 0 ? "inf" : x < 0 ? "-inf" : "nan");
+    }
+
+    private void print(DecisionRecord d) {
+        synchronized (out) {
+            out.println(DecisionJson.writeString(d));
+            out.flush();
+        }
+    }
+
+    private void say(String line) {
+        synchronized (err) {
+            err.println("demo: " + line);
+            err.flush();
+        }
+    }
+
+    private static String resource(String name) throws IOException {
+        try (InputStream in = Demo.class.getResourceAsStream(name)) {
+            if (in == null) {
+                throw new IOException("the demo scenario " + name + " is missing from the jar");
+            }
+            return new String(in.readAllBytes(), StandardCharsets.UTF_8);
+        }
+    }
+
+    private static KafkaProducer<String, String> producer(String bootstrap) {
+        Properties p = new Properties();
+        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrap);
+        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
+        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
+        p.put(ProducerConfig.LINGER_MS_CONFIG, 10);
+        return new KafkaProducer<>(p);
+    }
+}

@@ -1,0 +1,160 @@
+package dev.interim.stream;
+
+import com.fasterxml.jackson.core.JsonFactory;
+import com.fasterxml.jackson.core.JsonPointer;
+import com.fasterxml.jackson.core.StreamReadConstraints;
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import dev.interim.config.EventMapping;
+import dev.interim.config.ExperimentConfig;
+import dev.interim.config.InterimConfig;
+import dev.interim.config.MetricSource;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.MetricDefinition;
+import dev.interim.stream.BadEventException.Reason;
+import java.io.IOException;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+
+/**
+ * Reads JSON events through the configured JSON Pointers: experiment, arm, optional unit, and each
+ * metric's field. An event is an exposure of its unit (or itself) to its arm, and an observation of
+ * every metric whose field it carries. Anything that cannot be read is refused with a reason; an
+ * accepted event reaches the sink whole, a refused one not at all.
+ */
+public final class JsonEventReader implements EventReader {
+    /** Events above this size are refused before parsing. */
+    public static final int MAX_BYTES = 1 << 20;
+    private static final int MAX_DEPTH = 64;
+
+    private final ObjectMapper json;
+    private final EventMapping mapping;
+    private final Map<String, Experiment> experiments = new HashMap<>();
+
+    private record Metric(String name, MetricSource source) {}
+
+    private record Experiment(ExperimentDefinition definition, List<Metric> metrics, boolean needsUnit) {}
+
+    public JsonEventReader(InterimConfig config) {
+        this.mapping = config.events();
+        JsonFactory factory = JsonFactory.builder()
+                .streamReadConstraints(StreamReadConstraints.builder()
+                        .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
+                .build();
+        this.json = new ObjectMapper(factory);
+        for (ExperimentConfig e : config.experiments()) {
+            List<Metric> metrics = new ArrayList<>();
+            for (MetricDefinition m : e.definition().metrics()) {
+                metrics.add(new Metric(m.name(), e.source(m)));
+            }
+            experiments.put(e.definition().id(), new Experiment(e.definition(), metrics, e.definition().needsUnits()));
+        }
+    }
+
+    @Override
+    public void read(byte[] value, ObservationSink sink) throws BadEventException {
+        if (value.length > MAX_BYTES) {
+            throw new BadEventException(Reason.TOO_LARGE, "event of " + value.length + " bytes, above " + MAX_BYTES);
+        }
+        JsonNode event;
+        try {
+            event = json.readTree(value);
+        } catch (IOException | RuntimeException e) {
+            throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + firstLine(e.getMessage()));
+        }
+        if (event == null || !event.isObject()) {
+            throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
+        }
+        String experimentId = text(event, mapping.experiment(), "experiment");
+        Experiment experiment = experiments.get(experimentId);
+        if (experiment == null) {
+            throw new BadEventException(Reason.UNKNOWN_EXPERIMENT, "unknown experiment '" + clip(experimentId) + "'");
+        }
+        String arm = text(event, mapping.arm(), "arm");
+        ExperimentDefinition d = experiment.definition();
+        if (!d.control().equals(arm) && !d.treatments().contains(arm)) {
+            throw new BadEventException(Reason.UNKNOWN_ARM, "experiment '" + experimentId + "' has no arm '" + clip(arm) + "'");
+        }
+        String unit = null;
+        if (mapping.unit().isPresent()) {
+            JsonNode u = event.at(mapping.unit().get());
+            if (u.isTextual() || u.isIntegralNumber()) {
+                unit = u.asText();
+            } else if (!u.isMissingNode() && !u.isNull()) {
+                throw new BadEventException(Reason.WRONG_TYPE, "unit at " + mapping.unit().get() + " must be text or an integer");
+            }
+        }
+        if (unit == null && experiment.needsUnit()) {
+            throw new BadEventException(Reason.MISSING_FIELD, "no unit at " + mapping.unit().map(Object::toString).orElse("(unmapped)")
+                    + ": experiment '" + experimentId + "' has per-unit metrics");
+        }
+        // Read every metric first, so that a bad field refuses the whole event.
+        int n = experiment.metrics().size();
+        boolean[] present = new boolean[n];
+        boolean[] success = new boolean[n];
+        double[] numbers = new double[n];
+        for (int i = 0; i < n; i++) {
+            Metric m = experiment.metrics().get(i);
+            JsonNode field = event.at(m.source().field());
+            if (field.isMissingNode() || field.isNull()) {
+                continue;
+            }
+            present[i] = true;
+            if (m.source() instanceof MetricSource.Counted c) {
+                if (c.countsIf().needsNumber() && !field.isNumber()) {
+                    throw new BadEventException(Reason.WRONG_TYPE, m.name() + ": " + m.source().field() + " must be a number");
+                }
+                if (field.isNumber() && !Double.isFinite(field.doubleValue())) {
+                    throw new BadEventException(Reason.NOT_FINITE, m.name() + ": " + m.source().field() + " is not finite");
+                }
+                success[i] = c.countsIf().test(field);
+            } else {
+                if (!field.isNumber()) {
+                    throw new BadEventException(Reason.WRONG_TYPE, m.name() + ": " + m.source().field() + " must be a number");
+                }
+                double v = field.doubleValue();
+                if (!Double.isFinite(v)) {
+                    throw new BadEventException(Reason.NOT_FINITE, m.name() + ": " + m.source().field() + " is not finite");
+                }
+                numbers[i] = v;
+            }
+        }
+        sink.exposure(experimentId, arm, unit);
+        for (int i = 0; i < n; i++) {
+            if (!present[i]) {
+                continue;
+            }
+            Metric m = experiment.metrics().get(i);
+            if (m.source() instanceof MetricSource.Counted) {
+                sink.outcome(experimentId, arm, unit, m.name(), success[i]);
+            } else {
+                sink.value(experimentId, arm, unit, m.name(), numbers[i]);
+            }
+        }
+    }
+
+    private static String text(JsonNode event, JsonPointer pointer, String what) throws BadEventException {
+        JsonNode node = event.at(pointer);
+        if (node.isMissingNode() || node.isNull()) {
+            throw new BadEventException(Reason.MISSING_FIELD, "no " + what + " at " + pointer);
+        }
+        if (!node.isTextual()) {
+            throw new BadEventException(Reason.WRONG_TYPE, what + " at " + pointer + " must be text");
+        }
+        return node.textValue();
+    }
+
+    private static String clip(String s) {
+        return s.length() <= 80 ? s : s.substring(0, 80) + "…";
+    }
+
+    private static String firstLine(String message) {
+        if (message == null) {
+            return "";
+        }
+        int nl = message.indexOf('\n');
+        return clip(nl < 0 ? message : message.substring(0, nl));
+    }
+}

@@ -1,0 +1,304 @@
+package dev.interim.stream;
+
+import dev.interim.experiment.Comparison;
+import dev.interim.experiment.DecisionRecord;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.LookReport;
+import dev.interim.experiment.LookResult;
+import dev.interim.experiment.Tally;
+import dev.interim.stats.Moments;
+import dev.interim.stats.ProportionCounts;
+import java.time.Clock;
+import java.time.Duration;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.Collection;
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+import java.util.Set;
+import java.util.UUID;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.atomic.AtomicBoolean;
+import java.util.function.Function;
+import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.clients.consumer.OffsetAndMetadata;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.KafkaException;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.WakeupException;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * Stage 2: owns experiments — each belongs to one partition of the tallies topic, so one member of
+ * the judge group decides it — merges the latest partial of every input partition (Chan et al. for
+ * moments, sums for counts), looks on the wall-clock schedule of each experiment, and writes in one
+ * transaction the decision records, the look history of every comparison that looked, and its
+ * offsets. On taking over a partition it re-reads the (compacted) tallies from the beginning and
+ * restores the look history, so α already spent is never forgotten and decisions stay absorbing.
+ *
+ * <p>Decisions are handed to {@link StageEvents#committed} only after their transaction commits.
+ */
+public final class JudgeStage implements Runnable, AutoCloseable {
+    private static final Logger LOG = LoggerFactory.getLogger(JudgeStage.class);
+
+    private final StreamSettings settings;
+    private final Catalog catalog;
+    private final Clock clock;
+    private final StageEvents events;
+    private final Function<DecisionRecord, byte[]> decisionJson;
+    private final AtomicBoolean running = new AtomicBoolean(true);
+    /** experiment → source → (arm, metric) → latest cumulative partial. */
+    private final Map<String, Map<String, Map<String, Tally>>> partials = new HashMap<>();
+    private final Map<String, ExperimentMonitor> owned = new ConcurrentHashMap<>();
+    private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
+    private KafkaConsumer<byte[], byte[]> consumer;
+    private KafkaProducer<byte[], byte[]> producer;
+
+    public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
+                      Function<DecisionRecord, byte[]> decisionJson) {
+        this.settings = settings;
+        this.catalog = catalog;
+        this.clock = clock;
+        this.events = events;
+        this.decisionJson = decisionJson;
+    }
+
+    /** The experiments this instance decides now (read by meters and the API; do not mutate). */
+    public Collection<ExperimentMonitor> owned() {
+        return owned.values();
+    }
+
+    @Override
+    public void run() {
+        try {
+            consumer = new KafkaConsumer<>(TallyStage.consumerProperties(settings, settings.judgeGroup()));
+            producer = newProducer();
+            consumer.subscribe(List.of(settings.talliesTopic()), new Rebalance());
+            while (running.get()) {
+                for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
+                    apply(r.key(), r.value());
+                    pending.put(new TopicPartition(r.topic(), r.partition()), new OffsetAndMetadata(r.offset() + 1));
+                }
+                lookWhereDue();
+            }
+        } catch (WakeupException e) {
+            if (running.get()) {
+                throw e;
+            }
+        } finally {
+            safely(() -> producer.close(Duration.ofSeconds(5)));
+            safely(() -> consumer.close(Duration.ofSeconds(5)));
+        }
+    }
+
+    private void apply(byte[] key, byte[] value) {
+        if (value == null) {
+            return;
+        }
+        PartialKey k = PartialKey.parse(StateCodec.key(key));
+        partials.computeIfAbsent(k.experiment(), e -> new HashMap<>())
+                .computeIfAbsent(k.source(), s -> new HashMap<>())
+                .put(k.arm() + '\u001f' + k.metric(), StateCodec.partial(value));
+    }
+
+    /** Looks at every owned experiment that is due, and commits what the looks produced. */
+    private void lookWhereDue() {
+        Instant now = clock.instant();
+        List<DecisionRecord> decisions = new ArrayList<>();
+        List<LookReport> reports = new ArrayList<>();
+        List<Duration> took = new ArrayList<>();
+        List<Map<String, Map<String, Tally>>> given = new ArrayList<>();
+        for (ExperimentMonitor monitor : owned.values()) {
+            if (!monitor.due(now)) {
+                continue;
+            }
+            long start = System.nanoTime();
+            Merged merged = merge(monitor.definition());
+            LookReport report = monitor.look(now, merged.exposures, merged.tallies);
+            took.add(Duration.ofNanos(System.nanoTime() - start));
+            given.add(merged.tallies);
+            reports.add(report);
+            decisions.addAll(report.decisions());
+        }
+        if (reports.isEmpty() && pending.isEmpty()) {
+            return;
+        }
+        try {
+            producer.beginTransaction();
+            for (DecisionRecord d : decisions) {
+                producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
+                        decisionJson.apply(d)));
+            }
+            for (LookReport report : reports) {
+                Set<String> looked = new HashSet<>();
+                for (LookResult r : report.results()) {
+                    looked.add(r.arm() + '\u001f' + r.metric());
+                }
+                for (DecisionRecord d : report.decisions()) {
+                    looked.add(d.arm() + '\u001f' + d.metric());
+                }
+                ExperimentMonitor monitor = owned.get(report.experiment());
+                for (Comparison c : monitor.comparisons()) {
+                    if (looked.contains(c.arm() + '\u001f' + c.metric().name())) {
+                        String key = report.experiment() + '\u001f' + c.arm() + '\u001f' + c.metric().name();
+                        producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(report.experiment()),
+                                StateCodec.key(key), StateCodec.history(c.fractions(), c.decision())));
+                    }
+                }
+            }
+            if (!pending.isEmpty()) {
+                producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
+            }
+            producer.commitTransaction();
+            pending.clear();
+        } catch (KafkaException e) {
+            LOG.warn("judge commit failed ({}); restoring owned experiments from the committed look history", e.toString());
+            safely(producer::abortTransaction);
+            safely(() -> producer.close(Duration.ofSeconds(5)));
+            producer = newProducer();
+            Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
+            disown(assigned);
+            own(assigned);
+            return;
+        }
+        for (int i = 0; i < reports.size(); i++) {
+            events.looked(reports.get(i), given.get(i), took.get(i));
+        }
+        if (!decisions.isEmpty()) {
+            events.committed(decisions);
+        }
+    }
+
+    /** Per-arm tallies of every metric and the exposures, summed over the input partitions. */
+    private Merged merge(ExperimentDefinition definition) {
+        Map<String, Tally> sum = new HashMap<>();
+        for (Map<String, Tally> bySource : partials.getOrDefault(definition.id(), Map.of()).values()) {
+            bySource.forEach((k, t) -> sum.merge(k, t, JudgeStage::plus));
+        }
+        Merged m = new Merged();
+        for (String arm : definition.arms()) {
+            Tally exposures = sum.get(arm + '\u001f' + PartialKey.EXPOSURES);
+            m.exposures.put(arm, exposures == null ? 0L : exposures.count());
+            definition.metrics().forEach(metric -> {
+                Tally t = sum.get(arm + '\u001f' + metric.name());
+                if (t != null) {
+                    m.tallies.computeIfAbsent(metric.name(), x -> new HashMap<>()).put(arm, t);
+                }
+            });
+        }
+        return m;
+    }
+
+    private static final class Merged {
+        final Map<String, Long> exposures = new HashMap<>();
+        final Map<String, Map<String, Tally>> tallies = new HashMap<>();
+    }
+
+    static Tally plus(Tally a, Tally b) {
+        if (a instanceof Tally.Mean x && b instanceof Tally.Mean y) {
+            Moments m = x.moments().plus(y.moments());
+            return new Tally.Mean(m);
+        }
+        ProportionCounts p = ((Tally.Rate) a).counts().plus(((Tally.Rate) b).counts());
+        return new Tally.Rate(p);
+    }
+
+    private void own(Collection<TopicPartition> partitions) {
+        Set<Integer> numbers = new HashSet<>();
+        partitions.forEach(tp -> numbers.add(tp.partition()));
+        List<ExperimentMonitor> fresh = new ArrayList<>();
+        for (ExperimentDefinition e : catalog.experiments()) {
+            if (numbers.contains(settings.stateFor(e.id())) && !owned.containsKey(e.id())) {
+                ExperimentMonitor monitor = new ExperimentMonitor(e);
+                owned.put(e.id(), monitor);
+                fresh.add(monitor);
+            }
+        }
+        if (fresh.isEmpty()) {
+            return;
+        }
+        StateReader.readAll(settings, settings.looksTopic(), numbers, (key, value) -> {
+            String[] k = StateCodec.key(key).split("\u001f", -1);
+            ExperimentMonitor monitor = owned.get(k[0]);
+            if (monitor != null && fresh.contains(monitor) && value != null && k.length == 3) {
+                StateCodec.History h = StateCodec.history(value);
+                try {
+                    monitor.comparison(k[2], k[1]).restore(h.fractions(), h.decision());
+                } catch (IllegalArgumentException gone) {
+                    LOG.info("look history of {} / {} / {} no longer configured; ignored", k[0], k[1], k[2]);
+                }
+            }
+        });
+        // The partials are cumulative and compacted: re-read them from the beginning.
+        consumer.seekToBeginning(partitions);
+        for (ExperimentMonitor m : fresh) {
+            partials.remove(m.definition().id());
+            events.owned(m);
+        }
+        LOG.info("judge owns {} experiment(s): {}", owned.size(), owned.keySet());
+    }
+
+    private void disown(Collection<TopicPartition> partitions) {
+        Set<Integer> numbers = new HashSet<>();
+        partitions.forEach(tp -> numbers.add(tp.partition()));
+        owned.values().removeIf(m -> {
+            boolean leaving = numbers.contains(settings.stateFor(m.definition().id()));
+            if (leaving) {
+                partials.remove(m.definition().id());
+                events.disowned(m);
+            }
+            return leaving;
+        });
+        pending.keySet().removeIf(tp -> numbers.contains(tp.partition()));
+    }
+
+    private KafkaProducer<byte[], byte[]> newProducer() {
+        Properties p = new Properties();
+        p.putAll(settings.clientProperties());
+        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
+        p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, settings.groupPrefix() + "-judge-" + UUID.randomUUID());
+        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+        KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p);
+        producer.initTransactions();
+        return producer;
+    }
+
+    private final class Rebalance implements ConsumerRebalanceListener {
+        @Override
+        public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
+            disown(partitions);
+        }
+
+        @Override
+        public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+            own(partitions);
+        }
+    }
+
+    @Override
+    public void close() {
+        running.set(false);
+        if (consumer != null) {
+            consumer.wakeup();
+        }
+    }
+
+    private static void safely(Runnable action) {
+        try {
+            action.run();
+        } catch (RuntimeException e) {
+            LOG.debug("ignored while stopping: {}", e.toString());
+        }
+    }
+}

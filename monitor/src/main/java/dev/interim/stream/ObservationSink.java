@@ -1,0 +1,17 @@
+package dev.interim.stream;
+
+/**
+ * Where an {@link EventReader} puts what one event says. An event is an exposure of its unit to an
+ * arm, and may also carry observations of metrics.
+ */
+public interface ObservationSink {
+
+    /** The event's unit (null when the input is not keyed by unit) was exposed to {@code arm}. */
+    void exposure(String experiment, String arm, String unit);
+
+    /** A rate metric: this event (or unit) met the metric's condition, or did not. */
+    void outcome(String experiment, String arm, String unit, String metric, boolean success);
+
+    /** A mean or total metric: the event's value. */
+    void value(String experiment, String arm, String unit, String metric, double value);
+}

@@ -1,0 +1,70 @@
+package dev.interim.stream;
+
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+import java.util.Set;
+import java.util.function.BiConsumer;
+import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.common.PartitionInfo;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.serialization.ByteArrayDeserializer;
+
+/**
+ * Reads a compacted state topic from the beginning to its current end, committed records only, and
+ * hands every (key, value) to a callback in offset order per partition (so the last value of a key
+ * wins). Used when a stage takes over partitions after a start, a crash or a rebalance.
+ */
+final class StateReader {
+    private static final Duration DEADLINE = Duration.ofMinutes(2);
+
+    private StateReader() {}
+
+    /**
+     * @param partitions the partitions to read, or null for all of them
+     */
+    static void readAll(StreamSettings settings, String topic, Set<Integer> partitions, BiConsumer<byte[], byte[]> sink) {
+        Properties p = new Properties();
+        p.putAll(settings.clientProperties());
+        p.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
+        p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+        p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
+        p.put(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, 10_000);
+        p.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+        p.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+        try (KafkaConsumer<byte[], byte[]> consumer = new KafkaConsumer<>(p)) {
+            List<TopicPartition> assigned = new ArrayList<>();
+            List<PartitionInfo> infos = consumer.partitionsFor(topic, Duration.ofSeconds(30));
+            if (infos == null) {
+                return;
+            }
+            for (PartitionInfo info : infos) {
+                if (partitions == null || partitions.contains(info.partition())) {
+                    assigned.add(new TopicPartition(topic, info.partition()));
+                }
+            }
+            if (assigned.isEmpty()) {
+                return;
+            }
+            consumer.assign(assigned);
+            consumer.seekToBeginning(assigned);
+            Map<TopicPartition, Long> end = new HashMap<>(consumer.endOffsets(assigned));
+            end.entrySet().removeIf(e -> e.getValue() == 0);
+            long deadline = System.nanoTime() + DEADLINE.toNanos();
+            while (!end.isEmpty()) {
+                if (System.nanoTime() > deadline) {
+                    throw new IllegalStateException("could not read state topic " + topic + " to its end within " + DEADLINE);
+                }
+                for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
+                    sink.accept(r.key(), r.value());
+                }
+                end.entrySet().removeIf(e -> consumer.position(e.getKey()) >= e.getValue());
+            }
+        }
+    }
+}

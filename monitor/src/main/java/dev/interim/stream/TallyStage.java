@@ -1,0 +1,305 @@
+package dev.interim.stream;
+
+import java.nio.charset.StandardCharsets;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.Collection;
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+import java.util.Set;
+import java.util.UUID;
+import java.util.concurrent.atomic.AtomicBoolean;
+import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.ConsumerRecords;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.clients.consumer.OffsetAndMetadata;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.KafkaException;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.WakeupException;
+import org.apache.kafka.common.header.internals.RecordHeader;
+import org.apache.kafka.common.serialization.ByteArrayDeserializer;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * Stage 1: reads the event topics in a consumer group ({@code read_committed}), tallies each input
+ * partition's events in poll batches, and every commit interval writes, in one Kafka transaction,
+ * the changed cumulative partials (compacted tallies topic), the changed unit state (compacted units
+ * topic, partitioned like the input), the dead letters of the interval and the consumed offsets
+ * ({@code sendOffsetsToTransaction} with the group's metadata). A crash between commits loses
+ * nothing and counts nothing twice: the transaction is all or nothing, and a new owner of a
+ * partition restores its partials and units from the state topics before it reads on from the
+ * committed offset. Partials are cumulative, so writing one again is harmless.
+ *
+ * <p>Failure handling: a bad event is a dead letter and processing goes on; a failed commit aborts
+ * the transaction and rebuilds the assigned partitions' state from the committed state topics and
+ * offsets; {@link #close()} commits what is pending and stops.
+ */
+public final class TallyStage implements Runnable, AutoCloseable {
+    private static final Logger LOG = LoggerFactory.getLogger(TallyStage.class);
+    /** Header of a dead letter naming why the event was refused. */
+    public static final String REASON_HEADER = "interim-reason";
+    public static final String DETAIL_HEADER = "interim-detail";
+
+    private final StreamSettings settings;
+    private final Catalog catalog;
+    private final EventReader reader;
+    private final StageEvents events;
+    private final AtomicBoolean running = new AtomicBoolean(true);
+    private final Map<TopicPartition, PartitionState> states = new HashMap<>();
+    private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
+    private KafkaConsumer<byte[], byte[]> consumer;
+    private KafkaProducer<byte[], byte[]> producer;
+    private boolean inTransaction;
+    private long lastCommit = System.nanoTime();
+
+    public TallyStage(StreamSettings settings, Catalog catalog, EventReader reader, StageEvents events) {
+        this.settings = settings;
+        this.catalog = catalog;
+        this.reader = reader;
+        this.events = events;
+    }
+
+    @Override
+    public void run() {
+        try {
+            consumer = new KafkaConsumer<>(consumerProperties(settings, settings.tallyGroup()));
+            producer = newProducer();
+            consumer.subscribe(settings.inputTopics(), new Rebalance());
+            while (running.get()) {
+                ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
+                if (!records.isEmpty()) {
+                    process(records);
+                }
+                if (System.nanoTime() - lastCommit >= settings.commitInterval().toNanos()) {
+                    commit();
+                }
+            }
+            commit();
+        } catch (WakeupException e) {
+            if (running.get()) {
+                throw e;
+            }
+            safely(this::commit);
+        } finally {
+            safely(() -> producer.close(Duration.ofSeconds(5)));
+            safely(() -> consumer.close(Duration.ofSeconds(5)));
+        }
+    }
+
+    private void process(ConsumerRecords<byte[], byte[]> records) {
+        begin();
+        Set<PartitionState> touched = new HashSet<>();
+        for (ConsumerRecord<byte[], byte[]> record : records) {
+            TopicPartition tp = new TopicPartition(record.topic(), record.partition());
+            PartitionState state = states.computeIfAbsent(tp, t -> new PartitionState(source(t), catalog));
+            try {
+                if (record.value() == null) {
+                    throw new BadEventException(BadEventException.Reason.MISSING_FIELD, "the record has no value");
+                }
+                reader.read(record.value(), state);
+                touched.add(state);
+            } catch (BadEventException e) {
+                deadLetter(record, e);
+            }
+            pending.put(tp, new OffsetAndMetadata(record.offset() + 1));
+        }
+        for (PartitionState state : touched) {
+            state.drainAccepted().forEach(events::accepted);
+        }
+    }
+
+    private void deadLetter(ConsumerRecord<byte[], byte[]> record, BadEventException e) {
+        ProducerRecord<byte[], byte[]> letter = new ProducerRecord<>(settings.deadLetterTopic(), null, record.key(),
+                record.value());
+        letter.headers().add(new RecordHeader(REASON_HEADER, e.reason().label().getBytes(StandardCharsets.UTF_8)));
+        String detail = e.getMessage() == null ? "" : e.getMessage();
+        letter.headers().add(new RecordHeader(DETAIL_HEADER,
+                (record.topic() + "-" + record.partition() + "@" + record.offset() + ": " + detail).getBytes(StandardCharsets.UTF_8)));
+        producer.send(letter);
+        events.rejected(e.reason());
+    }
+
+    private void begin() {
+        if (!inTransaction) {
+            producer.beginTransaction();
+            inTransaction = true;
+        }
+    }
+
+    /** Writes the changed state and the offsets in one transaction. */
+    private void commit() {
+        lastCommit = System.nanoTime();
+        boolean changes = !pending.isEmpty();
+        if (!changes && !inTransaction) {
+            return;
+        }
+        begin();
+        try {
+            for (Map.Entry<TopicPartition, PartitionState> e : states.entrySet()) {
+                PartitionState state = e.getValue();
+                for (PartitionState.Partial p : state.drainChangedPartials()) {
+                    producer.send(new ProducerRecord<>(settings.talliesTopic(), settings.stateFor(p.key().experiment()),
+                            StateCodec.key(p.key().text()), StateCodec.partial(p.tally())));
+                }
+                int unitsPartition = e.getKey().partition();
+                for (Map.Entry<String, PartitionState.UnitState> u : state.drainChangedUnits().entrySet()) {
+                    producer.send(new ProducerRecord<>(settings.unitsTopic(), unitsPartition,
+                            StateCodec.key(state.source() + '\u001e' + u.getKey()), StateCodec.unit(u.getValue())));
+                }
+            }
+            if (!pending.isEmpty()) {
+                producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
+            }
+            producer.commitTransaction();
+            inTransaction = false;
+            pending.clear();
+        } catch (KafkaException e) {
+            LOG.warn("tally commit failed ({}); rebuilding the assigned partitions from the committed state", e.toString());
+            recover();
+        }
+    }
+
+    /** After a failed transaction: abort, reload state and offsets as last committed. */
+    private void recover() {
+        safely(producer::abortTransaction);
+        inTransaction = false;
+        pending.clear();
+        safely(() -> producer.close(Duration.ofSeconds(5)));
+        producer = newProducer();
+        Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
+        states.clear();
+        restore(assigned);
+        Map<TopicPartition, OffsetAndMetadata> committed = consumer.committed(assigned);
+        for (TopicPartition tp : assigned) {
+            OffsetAndMetadata o = committed.get(tp);
+            if (o == null) {
+                consumer.seekToBeginning(List.of(tp));
+            } else {
+                consumer.seek(tp, o.offset());
+            }
+        }
+    }
+
+    private KafkaProducer<byte[], byte[]> newProducer() {
+        Properties p = new Properties();
+        p.putAll(settings.clientProperties());
+        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
+        p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, settings.groupPrefix() + "-tally-" + UUID.randomUUID());
+        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+        p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
+        KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p);
+        producer.initTransactions();
+        return producer;
+    }
+
+    /** Restores the partials and units of {@code partitions} from the state topics. */
+    private void restore(Collection<TopicPartition> partitions) {
+        if (partitions.isEmpty()) {
+            return;
+        }
+        Map<String, TopicPartition> bySource = new HashMap<>();
+        for (TopicPartition tp : partitions) {
+            bySource.put(source(tp), tp);
+            states.put(tp, new PartitionState(source(tp), catalog));
+        }
+        StateReader.readAll(settings, settings.talliesTopic(), null, (key, value) -> {
+            PartialKey k = PartialKey.parse(StateCodec.key(key));
+            TopicPartition tp = bySource.get(k.source());
+            if (tp != null && value != null) {
+                states.get(tp).restore(new PartitionState.Partial(k, StateCodec.partial(value)));
+            }
+        });
+        Set<Integer> unitPartitions = new HashSet<>();
+        partitions.forEach(tp -> unitPartitions.add(tp.partition()));
+        StateReader.readAll(settings, settings.unitsTopic(), unitPartitions, (key, value) -> {
+            String k = StateCodec.key(key);
+            int cut = k.indexOf('\u001e');
+            TopicPartition tp = bySource.get(k.substring(0, cut));
+            if (tp != null && value != null) {
+                states.get(tp).restoreUnit(k.substring(cut + 1), StateCodec.unit(value));
+            }
+        });
+        LOG.info("tally stage owns {} input partition(s); state restored", partitions.size());
+    }
+
+    static String source(TopicPartition tp) {
+        return tp.topic() + "-" + tp.partition();
+    }
+
+    static Properties consumerProperties(StreamSettings settings, String group) {
+        Properties p = new Properties();
+        p.putAll(settings.clientProperties());
+        p.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
+        p.put(ConsumerConfig.GROUP_ID_CONFIG, group);
+        p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+        p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
+        p.put(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
+        p.put(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, 5000);
+        p.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+        p.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+        return p;
+    }
+
+    /** Commits before partitions leave (so their new owner starts from this state), restores when they arrive. */
+    private final class Rebalance implements ConsumerRebalanceListener {
+        @Override
+        public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
+            commit();
+            partitions.forEach(states::remove);
+        }
+
+        @Override
+        public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+            List<TopicPartition> fresh = new ArrayList<>();
+            for (TopicPartition tp : partitions) {
+                if (!states.containsKey(tp)) {
+                    fresh.add(tp);
+                }
+            }
+            restore(fresh);
+        }
+
+        @Override
+        public void onPartitionsLost(Collection<TopicPartition> partitions) {
+            // Another member owns them now; what was not committed is theirs to redo.
+            if (inTransaction) {
+                safely(producer::abortTransaction);
+                inTransaction = false;
+            }
+            pending.keySet().removeAll(partitions);
+            partitions.forEach(states::remove);
+        }
+    }
+
+    /** Total units held in memory (for meters and tests). */
+    public int units() {
+        return states.values().stream().mapToInt(PartitionState::unitCount).sum();
+    }
+
+    @Override
+    public void close() {
+        running.set(false);
+        if (consumer != null) {
+            consumer.wakeup();
+        }
+    }
+
+    private static void safely(Runnable action) {
+        try {
+            action.run();
+        } catch (RuntimeException e) {
+            LOG.debug("ignored while stopping: {}", e.toString());
+        }
+    }
+}
