@@ -7,6 +7,8 @@ import java.nio.file.Path;
 import java.util.Map;
 import java.util.Properties;
 import java.util.TreeMap;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
 
 /**
  * The configuration of the embedded single-node KRaft broker: one process that is both broker and
@@ -21,6 +23,8 @@ final class BrokerSettings {
     static final String CONFIG_FILE_NAME = "broker.properties";
 
     private static final int MIB = 1024 * 1024;
+    private static final Pattern BROKER_PORT = Pattern.compile("PLAINTEXT://[^,]*:(\\d+)");
+    private static final Pattern CONTROLLER_PORT = Pattern.compile("CONTROLLER://[^,]*:(\\d+)");
 
     private BrokerSettings() {
     }
@@ -76,6 +80,33 @@ final class BrokerSettings {
         Properties properties = new Properties();
         properties.putAll(settings);
         return properties;
+    }
+
+    /**
+     * The broker and controller ports of the last start in {@code dataDir}, {@link FreePorts#ANY}
+     * where unknown. Listening on them again matters after a crash: the controller keeps the old
+     * registration until its session expires, and meanwhile the broker's own transaction
+     * coordinator calls the old address.
+     */
+    static int[] previousPorts(Path dataDir) {
+        Path file = dataDir.resolve(CONFIG_FILE_NAME);
+        Properties previous = new Properties();
+        try (var reader = Files.newBufferedReader(file, StandardCharsets.UTF_8)) {
+            previous.load(reader);
+        } catch (IOException | IllegalArgumentException unreadable) {
+            return new int[] {FreePorts.ANY, FreePorts.ANY};
+        }
+        String listeners = previous.getProperty("listeners", "");
+        return new int[] {port(BROKER_PORT, listeners), port(CONTROLLER_PORT, listeners)};
+    }
+
+    private static int port(Pattern pattern, String listeners) {
+        Matcher matcher = pattern.matcher(listeners);
+        if (!matcher.find()) {
+            return FreePorts.ANY;
+        }
+        int port = Integer.parseInt(matcher.group(1));
+        return port >= 1 && port <= 65_535 ? port : FreePorts.ANY;
     }
 
     /**

@@ -69,8 +69,9 @@ public final class EmbeddedKafka implements AutoCloseable {
     }
 
     /**
-     * Starts a broker on a free port of 127.0.0.1, with its data in {@code dataDir} (created if
-     * missing, formatted if new, reused otherwise), and returns once it serves requests.
+     * Starts a broker on 127.0.0.1, with its data in {@code dataDir} (created if missing,
+     * formatted if new, reused otherwise), and returns once it serves requests. It listens on the
+     * port of its last start in that directory when that port is free, otherwise on any free port.
      *
      * @throws IllegalStateException if another embedded broker uses the directory, or the broker
      *     does not start or answer within a minute
@@ -95,7 +96,8 @@ public final class EmbeddedKafka implements AutoCloseable {
         try {
             for (int attempt = 1; ; attempt++) {
                 try {
-                    return startOnce(directory, port, lock);
+                    int[] preferred = attempt == 1 ? BrokerSettings.previousPorts(directory) : new int[2];
+                    return startOnce(directory, port, preferred, lock);
                 } catch (PortTakenException e) {
                     if (e.port == port || attempt >= START_ATTEMPTS_ON_PORT_CLASH) {
                         throw new IllegalStateException("embedded Kafka broker could not bind its port ("
@@ -119,11 +121,18 @@ public final class EmbeddedKafka implements AutoCloseable {
         }
     }
 
-    private static EmbeddedKafka startOnce(Path directory, int requestedPort, DataDirLock lock) {
+    private static EmbeddedKafka startOnce(Path directory, int requestedPort, int[] preferred, DataDirLock lock) {
         long startedAt = System.nanoTime();
-        int[] ports = FreePorts.pick(2);
-        int brokerPort = requestedPort == FreePorts.ANY ? ports[0] : requestedPort;
-        int controllerPort = ports[1];
+        int brokerPort;
+        int controllerPort;
+        if (requestedPort == FreePorts.ANY) {
+            int[] ports = FreePorts.pick(preferred[0], preferred[1]);
+            brokerPort = ports[0];
+            controllerPort = ports[1];
+        } else {
+            brokerPort = requestedPort;
+            controllerPort = FreePorts.pick(preferred[1] == requestedPort ? FreePorts.ANY : preferred[1])[0];
+        }
         Properties settings = BrokerSettings.of(directory, brokerPort, controllerPort);
         String clusterId;
         try {

@@ -6,8 +6,9 @@ import java.net.InetAddress;
 import java.net.ServerSocket;
 
 /**
- * Free TCP ports on 127.0.0.1, found by binding port 0 and releasing it. Another process may take
- * such a port before the broker binds it; {@link EmbeddedKafka#start} then tries again.
+ * Free TCP ports on 127.0.0.1, found by binding them (or port 0) and releasing them. Another
+ * process may take such a port before the broker binds it; {@link EmbeddedKafka#start} then tries
+ * again.
  */
 final class FreePorts {
     /** "Choose a free port": the value a caller passes for no fixed port. */
@@ -16,14 +17,18 @@ final class FreePorts {
     private FreePorts() {
     }
 
-    /** {@code count} distinct free ports (all held open together while choosing, so they differ). */
-    static int[] pick(int count) {
-        ServerSocket[] sockets = new ServerSocket[count];
+    /**
+     * One free port for each entry of {@code preferred}: that port if it can be bound, otherwise
+     * any free one ({@link #ANY} prefers none). All are held open together while choosing, so they
+     * differ.
+     */
+    static int[] pick(int... preferred) {
+        ServerSocket[] sockets = new ServerSocket[preferred.length];
         try {
             InetAddress loopback = InetAddress.getByName(BrokerSettings.HOST);
-            int[] ports = new int[count];
-            for (int i = 0; i < count; i++) {
-                sockets[i] = new ServerSocket(0, 1, loopback);
+            int[] ports = new int[preferred.length];
+            for (int i = 0; i < preferred.length; i++) {
+                sockets[i] = bind(preferred[i], loopback);
                 ports[i] = sockets[i].getLocalPort();
             }
             return ports;
@@ -34,6 +39,17 @@ final class FreePorts {
                 closeQuietly(socket);
             }
         }
+    }
+
+    private static ServerSocket bind(int preferred, InetAddress address) throws IOException {
+        if (preferred != ANY) {
+            try {
+                return new ServerSocket(preferred, 1, address);
+            } catch (IOException taken) {
+                // Fall through to any free port.
+            }
+        }
+        return new ServerSocket(ANY, 1, address);
     }
 
     private static void closeQuietly(ServerSocket socket) {

@@ -173,6 +173,9 @@ class DaemonIntegrationTest {
             String scrape = daemon.meters().scrape();
             assertThat(scrape).contains("interim_events_rejected_total{reason=\"not-json\"}");
             assertThat(scrape).contains("router-canary");
+            // The decision gauge of the stopped comparison reads 1 (stop-harm), of the healthy one 0.
+            assertThat(scrape).containsPattern("interim_decision\\{[^}]*arm=\"flaky\"[^}]*metric=\"failures\"[^}]*\\} 1(\\.0)?\\b");
+            assertThat(scrape).containsPattern("interim_decision\\{[^}]*arm=\"steady\"[^}]*metric=\"failures\"[^}]*\\} 0(\\.0)?\\b");
         }
     }
 
