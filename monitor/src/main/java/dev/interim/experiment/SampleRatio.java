@@ -22,6 +22,11 @@ public record SampleRatio(double pValue, boolean mismatch) {
     static final double MIN_EXPECTED = 5;
 
     static SampleRatio check(ExperimentDefinition experiment, Map<String, Long> exposures) {
+        if (experiment.metrics().stream().allMatch(m -> m.baseline() != null)) {
+            // A single-arm rollout compared with fixed baselines: the control arm carries no traffic
+            // and there is no split to check.
+            return UNKNOWN;
+        }
         List<String> arms = experiment.arms();
         long[] observed = new long[arms.size()];
         double[] shares = new double[arms.size()];

@@ -221,7 +221,8 @@ class ExperimentMonitorTest {
                 m.accept(150 + 40 * dev.interim.reference.Draws.gaussian(random));
             }
             Map<String, Map<String, Tally>> tallies = Map.of("latency_ms", Map.of("candidate", new Tally.Mean(m.snapshot())));
-            monitor.look(T0.plusSeconds(60L * look), Map.of(), tallies);
+            LookReport report = monitor.look(T0.plusSeconds(60L * look), Map.of("candidate", m.count()), tallies);
+            assertThat(report.sampleRatio().mismatch()).as("no split to check without control traffic").isFalse();
             decision = monitor.comparison("latency_ms", "candidate").decision();
         }
         assertThat(decision).isEqualTo(Decision.STOP_HARM);
