@@ -13,14 +13,22 @@ import java.util.regex.Pattern;
 /**
  * The configuration of the embedded single-node KRaft broker: one process that is both broker and
  * its own controller, with a static quorum of one voter. A static quorum (not the dynamic
- * {@code --standalone} one) because the controller port is chosen afresh at every start, and a
- * dynamic quorum would remember the old endpoint in its log.
+ * {@code --standalone} one) because the controller port may change between starts (when the last
+ * one is taken), and a dynamic quorum would remember the old endpoint in its log.
  */
 final class BrokerSettings {
     static final String HOST = "127.0.0.1";
     static final int NODE_ID = 1;
     static final String LOG_DIR_NAME = "kafka-logs";
     static final String CONFIG_FILE_NAME = "broker.properties";
+
+    /**
+     * How long the controller keeps a broker registration without heartbeats (Kafka: 9 s). After a
+     * crash the restarted broker cannot register until its previous registration has expired, so
+     * this is how much longer such a start takes. The broker beats every second to a controller in
+     * the same JVM, which leaves room for three missed beats.
+     */
+    static final int SESSION_TIMEOUT_MS = 4_000;
 
     private static final int MIB = 1024 * 1024;
     private static final Pattern BROKER_PORT = Pattern.compile("PLAINTEXT://[^,]*:(\\d+)");
@@ -67,6 +75,8 @@ final class BrokerSettings {
         // A consumer group starts at once instead of waiting 3 s for more members.
         settings.put("group.initial.rebalance.delay.ms", "0");
 
+        settings.put("broker.session.timeout.ms", Integer.toString(SESSION_TIMEOUT_MS));
+        settings.put("broker.heartbeat.interval.ms", "1000");
         // Controlled shutdown stays on (the default), though there is no other broker to hand
         // leadership to: without it the controller keeps the old registration after a restart, and
         // the transaction coordinator spends ~10 s calling the previous port.
@@ -84,9 +94,9 @@ final class BrokerSettings {
 
     /**
      * The broker and controller ports of the last start in {@code dataDir}, {@link FreePorts#ANY}
-     * where unknown. Listening on them again matters after a crash: the controller keeps the old
-     * registration until its session expires, and meanwhile the broker's own transaction
-     * coordinator calls the old address.
+     * where unknown. Listening on them again keeps the address stable across restarts, for the
+     * clients and tools an operator pointed at it, and for the metadata, which still names the
+     * old address until the restarted broker has registered.
      */
     static int[] previousPorts(Path dataDir) {
         Path file = dataDir.resolve(CONFIG_FILE_NAME);

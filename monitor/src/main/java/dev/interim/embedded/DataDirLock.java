@@ -11,8 +11,9 @@ import java.nio.file.StandardOpenOption;
 /**
  * An exclusive lock on a data directory, held for the life of an embedded broker. Kafka locks its
  * log directory only when the broker part starts, after the controller part has opened the
- * metadata log in the same directory: a second broker on a directory in use would write into the
- * first one's files before failing. This lock refuses it before anything is touched.
+ * metadata log in the same directory: a second broker on a directory in use writes into the first
+ * one's files (with Kafka 4.4: its checkpoints) and then waits minutes to shut down. This lock
+ * refuses it before anything is touched.
  */
 final class DataDirLock implements AutoCloseable {
     static final String FILE_NAME = "interim.lock";

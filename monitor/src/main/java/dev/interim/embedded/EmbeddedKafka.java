@@ -123,24 +123,11 @@ public final class EmbeddedKafka implements AutoCloseable {
 
     private static EmbeddedKafka startOnce(Path directory, int requestedPort, int[] preferred, DataDirLock lock) {
         long startedAt = System.nanoTime();
-        int brokerPort;
-        int controllerPort;
-        if (requestedPort == FreePorts.ANY) {
-            int[] ports = FreePorts.pick(preferred[0], preferred[1]);
-            brokerPort = ports[0];
-            controllerPort = ports[1];
-        } else {
-            brokerPort = requestedPort;
-            controllerPort = FreePorts.pick(preferred[1] == requestedPort ? FreePorts.ANY : preferred[1])[0];
-        }
+        int[] ports = choosePorts(requestedPort, preferred);
+        int brokerPort = ports[0];
+        int controllerPort = ports[1];
         Properties settings = BrokerSettings.of(directory, brokerPort, controllerPort);
-        String clusterId;
-        try {
-            Path configFile = BrokerSettings.write(settings, directory);
-            clusterId = StorageFormat.ensureFormatted(configFile, BrokerSettings.logDir(directory));
-        } catch (IOException e) {
-            throw new UncheckedIOException("cannot prepare the Kafka data directory " + directory, e);
-        }
+        String clusterId = prepareStorage(directory, settings);
 
         KafkaRaftServer server = new KafkaRaftServer(KafkaConfig.fromProps(settings, false), Time.SYSTEM);
         String bootstrapServers = BrokerSettings.HOST + ":" + brokerPort;
@@ -166,6 +153,31 @@ public final class EmbeddedKafka implements AutoCloseable {
         log.info("Embedded Kafka broker ready at {} in {} ms (data directory {}, cluster id {})",
                 bootstrapServers, millis, directory, clusterId);
         return new EmbeddedKafka(directory, bootstrapServers, clusterId, server, lock);
+    }
+
+    /** The broker and controller ports: the requested one, else the preferred ones if free, else any. */
+    private static int[] choosePorts(int requestedPort, int[] preferred) {
+        if (requestedPort == FreePorts.ANY) {
+            return FreePorts.pick(preferred[0], preferred[1]);
+        }
+        int controllerPreferred = preferred[1] == requestedPort ? FreePorts.ANY : preferred[1];
+        return new int[] {requestedPort, FreePorts.pick(controllerPreferred)[0]};
+    }
+
+    /** Writes the configuration, formats new storage, and returns the cluster id. */
+    private static String prepareStorage(Path directory, Properties settings) {
+        Path logDir = BrokerSettings.logDir(directory);
+        if (!StorageFormat.stoppedCleanly(logDir)) {
+            log.info("The last broker on {} did not stop in order: Kafka recovers its logs, and the broker "
+                    + "registers once the old registration expires (up to {} ms)", directory,
+                    BrokerSettings.SESSION_TIMEOUT_MS);
+        }
+        try {
+            Path configFile = BrokerSettings.write(settings, directory);
+            return StorageFormat.ensureFormatted(configFile, logDir);
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot prepare the Kafka data directory " + directory, e);
+        }
     }
 
     /** {@code host:port} for the {@code bootstrap.servers} client setting. */

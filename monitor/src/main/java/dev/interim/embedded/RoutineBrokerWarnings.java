@@ -7,10 +7,12 @@ import ch.qos.logback.core.spi.FilterReply;
 import java.util.List;
 
 /**
- * A Logback filter that drops the warnings every healthy start and stop of the embedded broker
- * logs, so that a warning on the console means something. Kafka logs at WARN that the controller
- * activates (each start) and that its registration channel's client was already closed (each
- * stop); neither is a fault. Every other warning, from these loggers too, passes.
+ * A Logback filter that drops the warnings the embedded broker logs when all is well, so that a
+ * warning on the console means something. Kafka logs at WARN that the controller activates (each
+ * start), that its registration channel's client was already closed (each stop), and, every 50 ms
+ * while a broker restarted after a crash waits for its old registration to expire, that its
+ * transaction coordinator cannot reach the broker yet. None is a fault. Every other warning, from
+ * these loggers too, passes.
  *
  * <p>Used from {@code logback.xml}: {@code <filter class="dev.interim.embedded.RoutineBrokerWarnings"/>}.
  */
@@ -35,7 +37,9 @@ public final class RoutineBrokerWarnings extends Filter<ILoggingEvent> {
     private static final List<Routine> ROUTINE = List.of(
             new Routine("org.apache.kafka.controller.QuorumController", "Performing controller activation."),
             new Routine("org.apache.kafka.clients.NetworkClient", "NodeToControllerChannelManager",
-                    "Attempting to close NetworkClient that has already been closed."));
+                    "Attempting to close NetworkClient that has already been closed."),
+            new Routine("org.apache.kafka.clients.NetworkClient", "[TransactionCoordinator id=",
+                    "could not be established. Node may not be available."));
 
     @Override
     public FilterReply decide(ILoggingEvent event) {

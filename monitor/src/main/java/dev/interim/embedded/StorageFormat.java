@@ -20,6 +20,8 @@ import org.slf4j.LoggerFactory;
 final class StorageFormat {
     /** Written by the format into every log directory; its presence means "formatted". */
     static final String META_PROPERTIES = "meta.properties";
+    /** Written by a broker that stopped in order; removed once a broker has started. */
+    static final String CLEAN_SHUTDOWN_MARKER = ".kafka_cleanshutdown";
 
     private static final Logger log = LoggerFactory.getLogger(StorageFormat.class);
 
@@ -53,6 +55,11 @@ final class StorageFormat {
                     + describe(output));
         }
         log.debug("Storage tool: {}", output.toString(StandardCharsets.UTF_8).strip());
+    }
+
+    /** Whether the last broker on formatted storage stopped in order (true for new storage). */
+    static boolean stoppedCleanly(Path logDir) {
+        return !Files.exists(logDir.resolve(META_PROPERTIES)) || Files.exists(logDir.resolve(CLEAN_SHUTDOWN_MARKER));
     }
 
     static String clusterIdOf(Path metaProperties) throws IOException {

@@ -81,8 +81,8 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     @Override
     public void run() {
         try {
-            consumer = new KafkaConsumer<>(TallyStage.consumerProperties(settings, settings.judgeGroup()));
-            producer = newProducer();
+            consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.judgeGroup()));
+            producer = Clients.transactionalProducer(settings, "judge");
             consumer.subscribe(List.of(settings.talliesTopic()), new Rebalance());
             while (running.get()) {
                 for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
@@ -96,8 +96,8 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 throw e;
             }
         } finally {
-            safely(() -> producer.close(Duration.ofSeconds(5)));
-            safely(() -> consumer.close(Duration.ofSeconds(5)));
+            Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            Clients.quietly(LOG, () -> consumer.close(Duration.ofSeconds(5)));
         }
     }
 
@@ -163,9 +163,9 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             pending.clear();
         } catch (KafkaException e) {
             LOG.warn("judge commit failed ({}); restoring owned experiments from the committed look history", e.toString());
-            safely(producer::abortTransaction);
-            safely(() -> producer.close(Duration.ofSeconds(5)));
-            producer = newProducer();
+            Clients.quietly(LOG, producer::abortTransaction);
+            Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            producer = Clients.transactionalProducer(settings, "judge");
             Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
             disown(assigned);
             own(assigned);
@@ -262,18 +262,6 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         pending.keySet().removeIf(tp -> numbers.contains(tp.partition()));
     }
 
-    private KafkaProducer<byte[], byte[]> newProducer() {
-        Properties p = new Properties();
-        p.putAll(settings.clientProperties());
-        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
-        p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, settings.groupPrefix() + "-judge-" + UUID.randomUUID());
-        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
-        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
-        KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p);
-        producer.initTransactions();
-        return producer;
-    }
-
     private final class Rebalance implements ConsumerRebalanceListener {
         @Override
         public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
@@ -291,14 +279,6 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         running.set(false);
         if (consumer != null) {
             consumer.wakeup();
-        }
-    }
-
-    private static void safely(Runnable action) {
-        try {
-            action.run();
-        } catch (RuntimeException e) {
-            LOG.debug("ignored while stopping: {}", e.toString());
         }
     }
 }

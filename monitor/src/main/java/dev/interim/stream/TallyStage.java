@@ -72,8 +72,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
     @Override
     public void run() {
         try {
-            consumer = new KafkaConsumer<>(consumerProperties(settings, settings.tallyGroup()));
-            producer = newProducer();
+            consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.tallyGroup()));
+            producer = Clients.transactionalProducer(settings, "tally");
             consumer.subscribe(settings.inputTopics(), new Rebalance());
             while (running.get()) {
                 ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
@@ -89,10 +89,10 @@ public final class TallyStage implements Runnable, AutoCloseable {
             if (running.get()) {
                 throw e;
             }
-            safely(this::commit);
+            Clients.quietly(LOG, this::commit);
         } finally {
-            safely(() -> producer.close(Duration.ofSeconds(5)));
-            safely(() -> consumer.close(Duration.ofSeconds(5)));
+            Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            Clients.quietly(LOG, () -> consumer.close(Duration.ofSeconds(5)));
         }
     }
 
@@ -171,11 +171,11 @@ public final class TallyStage implements Runnable, AutoCloseable {
 
     /** After a failed transaction: abort, reload state and offsets as last committed. */
     private void recover() {
-        safely(producer::abortTransaction);
+        Clients.quietly(LOG, producer::abortTransaction);
         inTransaction = false;
         pending.clear();
-        safely(() -> producer.close(Duration.ofSeconds(5)));
-        producer = newProducer();
+        Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+        producer = Clients.transactionalProducer(settings, "tally");
         Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
         states.clear();
         restore(assigned);
@@ -188,19 +188,6 @@ public final class TallyStage implements Runnable, AutoCloseable {
                 consumer.seek(tp, o.offset());
             }
         }
-    }
-
-    private KafkaProducer<byte[], byte[]> newProducer() {
-        Properties p = new Properties();
-        p.putAll(settings.clientProperties());
-        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
-        p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, settings.groupPrefix() + "-tally-" + UUID.randomUUID());
-        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
-        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
-        p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
-        KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p);
-        producer.initTransactions();
-        return producer;
     }
 
     /** Restores the partials and units of {@code partitions} from the state topics. */
@@ -237,20 +224,6 @@ public final class TallyStage implements Runnable, AutoCloseable {
         return tp.topic() + "-" + tp.partition();
     }
 
-    static Properties consumerProperties(StreamSettings settings, String group) {
-        Properties p = new Properties();
-        p.putAll(settings.clientProperties());
-        p.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
-        p.put(ConsumerConfig.GROUP_ID_CONFIG, group);
-        p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
-        p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
-        p.put(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
-        p.put(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, 5000);
-        p.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
-        p.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
-        return p;
-    }
-
     /** Commits before partitions leave (so their new owner starts from this state), restores when they arrive. */
     private final class Rebalance implements ConsumerRebalanceListener {
         @Override
@@ -274,7 +247,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         public void onPartitionsLost(Collection<TopicPartition> partitions) {
             // Another member owns them now; what was not committed is theirs to redo.
             if (inTransaction) {
-                safely(producer::abortTransaction);
+                Clients.quietly(LOG, producer::abortTransaction);
                 inTransaction = false;
             }
             pending.keySet().removeAll(partitions);
@@ -292,14 +265,6 @@ public final class TallyStage implements Runnable, AutoCloseable {
         running.set(false);
         if (consumer != null) {
             consumer.wakeup();
-        }
-    }
-
-    private static void safely(Runnable action) {
-        try {
-            action.run();
-        } catch (RuntimeException e) {
-            LOG.debug("ignored while stopping: {}", e.toString());
         }
     }
 }

@@ -8,7 +8,7 @@ import ch.qos.logback.classic.spi.LoggingEvent;
 import ch.qos.logback.core.spi.FilterReply;
 import org.junit.jupiter.api.Test;
 
-/** The messages are those Kafka 4.4 logged on a start and a stop of the embedded broker. */
+/** The messages are those Kafka 4.4 logged on starts, stops and a restart after a crash of the embedded broker. */
 class RoutineBrokerWarningsTest {
     private static final String CONTROLLER = "org.apache.kafka.controller.QuorumController";
     private static final String NETWORK_CLIENT = "org.apache.kafka.clients.NetworkClient";
@@ -32,10 +32,18 @@ class RoutineBrokerWarningsTest {
     }
 
     @Test
+    void dropsTheTransactionCoordinatorCallingItsOwnBrokerWhileARestartAfterACrashRegisters() {
+        assertThat(decide(NETWORK_CLIENT, Level.WARN, "[TransactionCoordinator id=1] Connection to node 1 "
+                + "(/127.0.0.1:40529) could not be established. Node may not be available.")).isEqualTo(FilterReply.DENY);
+    }
+
+    @Test
     void letsEveryOtherMessagePass() {
         // The same text from a client of our own, or at another level, or another warning of the logger.
         assertThat(decide(NETWORK_CLIENT, Level.WARN, "[Producer clientId=p1] "
                 + "Attempting to close NetworkClient that has already been closed.")).isEqualTo(FilterReply.NEUTRAL);
+        assertThat(decide(NETWORK_CLIENT, Level.WARN, "[Consumer clientId=c1, groupId=tally] Connection to node 1 "
+                + "(/127.0.0.1:9092) could not be established. Node may not be available.")).isEqualTo(FilterReply.NEUTRAL);
         assertThat(decide(CONTROLLER, Level.ERROR, "[QuorumController id=1] Performing controller activation."))
                 .isEqualTo(FilterReply.NEUTRAL);
         assertThat(decide(CONTROLLER, Level.WARN, "[QuorumController id=1] Renouncing the leadership due to a "
