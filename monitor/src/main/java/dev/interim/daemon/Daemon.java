@@ -9,6 +9,8 @@ import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.Tally;
+import dev.interim.experiment.ExperimentView;
+import dev.interim.http.ExperimentApi;
 import dev.interim.http.HttpEndpoint;
 import dev.interim.signal.DecisionJson;
 import dev.interim.signal.Meters;
@@ -28,6 +30,7 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Properties;
+import java.util.concurrent.CompletableFuture;
 import java.util.concurrent.ExecutorService;
 import java.util.concurrent.Executors;
 import java.util.concurrent.TimeUnit;
@@ -96,6 +99,22 @@ public final class Daemon implements AutoCloseable {
         judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write);
         http = HttpEndpoint.builder().bindAddress(config.http().bindAddress()).port(config.http().port())
                 .metrics(meters::scrape).start();
+        ExperimentApi.install(http, new ExperimentApi.Operations() {
+            @Override
+            public Map<String, ExperimentView> views() {
+                return judge.views();
+            }
+
+            @Override
+            public CompletableFuture<List<DecisionRecord>> hold(String experiment, String reason) {
+                return judge.hold(experiment, reason);
+            }
+
+            @Override
+            public CompletableFuture<List<DecisionRecord>> resume(String experiment) {
+                return judge.resume(experiment);
+            }
+        }, () -> config.http().adminToken().filter(dev.interim.config.Secret::isRead).map(dev.interim.config.Secret::reveal));
         start(tally, "interim-tally");
         start(judge, "interim-judge");
         LOG.info("interim watching {} experiment(s) on {}; metrics at {}", definitions.size(),
@@ -126,6 +145,11 @@ public final class Daemon implements AutoCloseable {
     /** The experiments this instance decides now. */
     public List<ExperimentMonitor> experiments() {
         return List.copyOf(judge.owned());
+    }
+
+    /** Immutable pictures of the experiments this instance decides, as of their last look. */
+    public Map<String, ExperimentView> views() {
+        return judge.views();
     }
 
     private void start(Runnable stage, String name) {

@@ -38,6 +38,9 @@ public final class Comparison {
     private final List<Double> fractions = new ArrayList<>();
     private Decision decision = Decision.CONTINUE;
     private LookResult last;
+    /** Looks kept for views and charts; beyond this, every other older point is dropped. */
+    static final int KEPT_POINTS = 4096;
+    private final List<LookPoint> points = new ArrayList<>();
 
     Comparison(ExperimentDefinition experiment, MetricDefinition metric, String arm) {
         this.experiment = experiment;
@@ -159,7 +162,32 @@ public final class Comparison {
         }
         ConfidenceInterval interval = RepeatedConfidenceInterval.at(design, look, e.effect(), e.standardError());
         last = new LookResult(experiment.id(), arm, metric.name(), previous, decision, look, e, interval, at);
+        keep(LookPoint.of(last));
         return Optional.of(last);
+    }
+
+    private void keep(LookPoint p) {
+        points.add(p);
+        if (points.size() > KEPT_POINTS) {
+            // Thin the older half: keep every other point of it, so the whole run stays drawable.
+            List<LookPoint> thinned = new ArrayList<>(KEPT_POINTS);
+            int half = points.size() / 2;
+            for (int i = 0; i < half; i += 2) {
+                thinned.add(points.get(i));
+            }
+            thinned.addAll(points.subList(half, points.size()));
+            points.clear();
+            points.addAll(thinned);
+        }
+    }
+
+    /** An immutable view of this comparison (call on the owning thread). */
+    ExperimentView.ComparisonView view() {
+        return new ExperimentView.ComparisonView(arm, metric.name(), metric.kind().label(),
+                metric.role().name().toLowerCase(java.util.Locale.ROOT), metric.worse().name().toLowerCase(java.util.Locale.ROOT),
+                metric.action().name().toLowerCase(java.util.Locale.ROOT), design.alpha(),
+                design.alternative().name().toLowerCase(java.util.Locale.ROOT), design.efficacyLabel(), decision,
+                points);
     }
 
     /**

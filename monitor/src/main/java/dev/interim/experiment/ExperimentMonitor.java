@@ -25,6 +25,7 @@ public final class ExperimentMonitor {
     private Instant lastLook;
     private SampleRatio sampleRatio = SampleRatio.UNKNOWN;
     private String operatorHold;
+    private Map<String, Long> lastExposures = Map.of();
 
     public ExperimentMonitor(ExperimentDefinition definition) {
         this.definition = definition;
@@ -76,6 +77,7 @@ public final class ExperimentMonitor {
      */
     public LookReport look(Instant at, Map<String, Long> exposures, Map<String, Map<String, Tally>> tallies) {
         lastLook = at;
+        lastExposures = Map.copyOf(exposures);
         sampleRatio = SampleRatio.check(definition, exposures);
         List<DecisionRecord> records = new ArrayList<>(applyHold(at));
         List<LookResult> results = new ArrayList<>();
@@ -105,6 +107,17 @@ public final class ExperimentMonitor {
     public List<DecisionRecord> resume(Instant at) {
         operatorHold = null;
         return applyHold(at);
+    }
+
+    /** An immutable picture of the experiment now (call on the owning thread). */
+    public ExperimentView view() {
+        List<ExperimentView.ComparisonView> views = new ArrayList<>();
+        for (Comparison c : comparisons()) {
+            views.add(c.view());
+        }
+        String reason = operatorHold != null ? operatorHold : sampleRatio.mismatch() ? "sample-ratio mismatch" : null;
+        return new ExperimentView(definition.id(), definition.control(), definition.treatments(), definition.dryRun(),
+                held(), reason, sampleRatio, lastLook, lastExposures, views);
     }
 
     public boolean held() {

@@ -59,9 +59,15 @@ public final class HttpEndpoint implements AutoCloseable {
      *
      * @param headers request headers (names without regard to case)
      */
-    public record Request(String method, String path, String query, Headers headers, byte[] body) {
+    public record Request(String method, String path, String query, Headers headers, byte[] body,
+                          Map<String, String> params) {
         public String bodyText() {
             return new String(body, StandardCharsets.UTF_8);
+        }
+
+        /** A path parameter of a templated route such as {@code /api/experiments/{id}}. */
+        public String param(String name) {
+            return params.get(name);
         }
     }
 
@@ -97,7 +103,11 @@ public final class HttpEndpoint implements AutoCloseable {
         return new Builder();
     }
 
-    /** Serves {@code handler} for {@code method} on exactly {@code path}; a route of the same method and path is replaced. */
+    /**
+     * Serves {@code handler} for {@code method} on {@code path}; a route of the same method and path is
+     * replaced. A segment written {@code {name}} matches any one segment and is handed to the handler
+     * as a parameter ({@link Request#param}); exact paths win over templates.
+     */
     public HttpEndpoint route(String method, String path, Handler handler) {
         Objects.requireNonNull(handler, "handler");
         if (path == null || !path.startsWith("/") || method == null || method.isBlank()) {
@@ -105,6 +115,37 @@ public final class HttpEndpoint implements AutoCloseable {
         }
         routes.computeIfAbsent(path, p -> new ConcurrentHashMap<>()).put(method.toUpperCase(java.util.Locale.ROOT), handler);
         return this;
+    }
+
+    /** The routes of the template that matches {@code path}, with its parameters; null when none does. */
+    private Map<String, Handler> template(String path, Map<String, String> params) {
+        String[] segments = path.split("/", -1);
+        for (Map.Entry<String, Map<String, Handler>> e : routes.entrySet()) {
+            String template = e.getKey();
+            if (!template.contains("{")) {
+                continue;
+            }
+            String[] parts = template.split("/", -1);
+            if (parts.length != segments.length) {
+                continue;
+            }
+            Map<String, String> found = new java.util.HashMap<>();
+            boolean match = true;
+            for (int i = 0; i < parts.length && match; i++) {
+                if (parts[i].startsWith("{") && parts[i].endsWith("}")) {
+                    match = !segments[i].isEmpty();
+                    found.put(parts[i].substring(1, parts[i].length() - 1),
+                            java.net.URLDecoder.decode(segments[i], StandardCharsets.UTF_8));
+                } else {
+                    match = parts[i].equals(segments[i]);
+                }
+            }
+            if (match) {
+                params.putAll(found);
+                return e.getValue();
+            }
+        }
+        return null;
     }
 
     /** The bound port (the one chosen by the system when built with port 0). */
@@ -133,7 +174,11 @@ public final class HttpEndpoint implements AutoCloseable {
     private void dispatch(HttpExchange exchange) throws IOException {
         try (exchange) {
             String path = exchange.getRequestURI().getPath();
+            Map<String, String> params = new java.util.HashMap<>();
             Map<String, Handler> byMethod = routes.get(path);
+            if (byMethod == null) {
+                byMethod = template(path, params);
+            }
             if (byMethod == null) {
                 send(exchange, Response.text(404, "not found"));
                 return;
@@ -152,7 +197,7 @@ public final class HttpEndpoint implements AutoCloseable {
             Response response;
             try {
                 response = handler.handle(new Request(exchange.getRequestMethod(), path, exchange.getRequestURI().getRawQuery(),
-                        exchange.getRequestHeaders(), body));
+                        exchange.getRequestHeaders(), body, Map.copyOf(params)));
             } catch (Exception e) {
                 LOG.error("handler of {} {} failed", exchange.getRequestMethod(), path, e);
                 response = Response.text(500, "internal error");

@@ -4,6 +4,7 @@ import dev.interim.experiment.Comparison;
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
 import dev.interim.experiment.Tally;
@@ -20,7 +21,9 @@ import java.util.List;
 import java.util.Map;
 import java.util.Properties;
 import java.util.Set;
-import java.util.UUID;
+import java.util.Queue;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ConcurrentLinkedQueue;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.function.Function;
@@ -61,6 +64,8 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final Map<String, Map<String, Map<String, Tally>>> partials = new HashMap<>();
     private final Map<String, ExperimentMonitor> owned = new ConcurrentHashMap<>();
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
+    private final Map<String, ExperimentView> views = new ConcurrentHashMap<>();
+    private final Queue<Command> commands = new ConcurrentLinkedQueue<>();
     private KafkaConsumer<byte[], byte[]> consumer;
     private KafkaProducer<byte[], byte[]> producer;
 
@@ -73,9 +78,43 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         this.decisionJson = decisionJson;
     }
 
-    /** The experiments this instance decides now (read by meters and the API; do not mutate). */
+    /** The experiments this instance decides now (read by meters; do not mutate). */
     public Collection<ExperimentMonitor> owned() {
         return owned.values();
+    }
+
+    /** Immutable pictures of the owned experiments, as of their last look or operator action. */
+    public Map<String, ExperimentView> views() {
+        return Map.copyOf(views);
+    }
+
+    /** An operator's action on an owned experiment, run on the judge's thread and committed like a look. */
+    private record Command(String experiment, Function<ExperimentMonitor, List<DecisionRecord>> action,
+                           CompletableFuture<List<DecisionRecord>> done) {}
+
+    /** Holds every comparison of {@code experiment} not yet final; completes once the records are committed. */
+    public CompletableFuture<List<DecisionRecord>> hold(String experiment, String reason) {
+        return submit(experiment, m -> m.hold(clock.instant(), reason));
+    }
+
+    /** Ends an operator's hold; completes once the records are committed. */
+    public CompletableFuture<List<DecisionRecord>> resume(String experiment) {
+        return submit(experiment, m -> m.resume(clock.instant()));
+    }
+
+    private CompletableFuture<List<DecisionRecord>> submit(String experiment,
+                                                           Function<ExperimentMonitor, List<DecisionRecord>> action) {
+        CompletableFuture<List<DecisionRecord>> done = new CompletableFuture<>();
+        commands.add(new Command(experiment, action, done));
+        return done;
+    }
+
+    /** Thrown (through the future) when another instance owns the experiment, or nobody does. */
+    public static final class NotOwnedException extends RuntimeException {
+        NotOwnedException(String experiment) {
+            super("experiment '" + experiment + "' is not decided by this instance (unknown, or owned by another)", null,
+                    false, false);
+        }
     }
 
     @Override
@@ -111,13 +150,28 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 .put(k.arm() + '\u001f' + k.metric(), StateCodec.partial(value));
     }
 
-    /** Looks at every owned experiment that is due, and commits what the looks produced. */
+    /** Runs the operators' actions and the looks that are due, and commits what they produced. */
     private void lookWhereDue() {
         Instant now = clock.instant();
         List<DecisionRecord> decisions = new ArrayList<>();
         List<LookReport> reports = new ArrayList<>();
         List<Duration> took = new ArrayList<>();
         List<Map<String, Map<String, Tally>>> given = new ArrayList<>();
+        Set<String> changed = new HashSet<>();          // experiment \u001f arm \u001f metric
+        List<Command> done = new ArrayList<>();
+        List<List<DecisionRecord>> doneRecords = new ArrayList<>();
+        for (Command c; (c = commands.poll()) != null; ) {
+            ExperimentMonitor monitor = owned.get(c.experiment());
+            if (monitor == null) {
+                c.done().completeExceptionally(new NotOwnedException(c.experiment()));
+                continue;
+            }
+            List<DecisionRecord> records = c.action().apply(monitor);
+            decisions.addAll(records);
+            records.forEach(d -> changed.add(d.experiment() + '\u001f' + d.arm() + '\u001f' + d.metric()));
+            done.add(c);
+            doneRecords.add(records);
+        }
         for (ExperimentMonitor monitor : owned.values()) {
             if (!monitor.due(now)) {
                 continue;
@@ -129,8 +183,14 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             given.add(merged.tallies);
             reports.add(report);
             decisions.addAll(report.decisions());
+            for (LookResult r : report.results()) {
+                changed.add(report.experiment() + '\u001f' + r.arm() + '\u001f' + r.metric());
+            }
+            for (DecisionRecord d : report.decisions()) {
+                changed.add(d.experiment() + '\u001f' + d.arm() + '\u001f' + d.metric());
+            }
         }
-        if (reports.isEmpty() && pending.isEmpty()) {
+        if (changed.isEmpty() && reports.isEmpty() && pending.isEmpty()) {
             return;
         }
         try {
@@ -139,22 +199,11 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
                         decisionJson.apply(d)));
             }
-            for (LookReport report : reports) {
-                Set<String> looked = new HashSet<>();
-                for (LookResult r : report.results()) {
-                    looked.add(r.arm() + '\u001f' + r.metric());
-                }
-                for (DecisionRecord d : report.decisions()) {
-                    looked.add(d.arm() + '\u001f' + d.metric());
-                }
-                ExperimentMonitor monitor = owned.get(report.experiment());
-                for (Comparison c : monitor.comparisons()) {
-                    if (looked.contains(c.arm() + '\u001f' + c.metric().name())) {
-                        String key = report.experiment() + '\u001f' + c.arm() + '\u001f' + c.metric().name();
-                        producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(report.experiment()),
-                                StateCodec.key(key), StateCodec.history(c.fractions(), c.decision())));
-                    }
-                }
+            for (String key : changed) {
+                String[] k = key.split("\u001f", -1);
+                Comparison c = owned.get(k[0]).comparison(k[2], k[1]);
+                producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(k[0]),
+                        StateCodec.key(key), StateCodec.history(c.fractions(), c.decision())));
             }
             if (!pending.isEmpty()) {
                 producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
@@ -166,10 +215,23 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             Clients.quietly(LOG, producer::abortTransaction);
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
             producer = Clients.transactionalProducer(settings, "judge");
+            done.forEach(c -> c.done().completeExceptionally(e));
             Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
             disown(assigned);
             own(assigned);
             return;
+        }
+        Set<String> experiments = new HashSet<>();
+        changed.forEach(k -> experiments.add(k.substring(0, k.indexOf('\u001f'))));
+        reports.forEach(r -> experiments.add(r.experiment()));
+        for (String id : experiments) {
+            ExperimentMonitor m = owned.get(id);
+            if (m != null) {
+                views.put(id, m.view());
+            }
+        }
+        for (int i = 0; i < done.size(); i++) {
+            done.get(i).done().complete(doneRecords.get(i));
         }
         for (int i = 0; i < reports.size(); i++) {
             events.looked(reports.get(i), given.get(i), took.get(i));
@@ -243,6 +305,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         consumer.seekToBeginning(partitions);
         for (ExperimentMonitor m : fresh) {
             partials.remove(m.definition().id());
+            views.put(m.definition().id(), m.view());
             events.owned(m);
         }
         LOG.info("judge owns {} experiment(s): {}", owned.size(), owned.keySet());
@@ -255,6 +318,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             boolean leaving = numbers.contains(settings.stateFor(m.definition().id()));
             if (leaving) {
                 partials.remove(m.definition().id());
+                views.remove(m.definition().id());
                 events.disowned(m);
             }
             return leaving;

@@ -1,0 +1,35 @@
+package dev.interim.experiment;
+
+import java.time.Instant;
+import java.util.List;
+import java.util.Map;
+
+/**
+ * An immutable picture of one experiment after a look: safe to hand to other threads (the HTTP API,
+ * the dashboard) while the judge goes on looking.
+ *
+ * @param exposures exposures per arm at the last look
+ * @param lastLook when the last look ran (null before the first)
+ */
+public record ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
+                             String holdReason, SampleRatio sampleRatio, Instant lastLook, Map<String, Long> exposures,
+                             List<ComparisonView> comparisons) {
+
+    public ExperimentView {
+        treatments = List.copyOf(treatments);
+        exposures = Map.copyOf(exposures);
+        comparisons = List.copyOf(comparisons);
+    }
+
+    /**
+     * One treatment on one metric: its design and its looks so far (the most recent ones; older looks
+     * are thinned once there are more than {@link Comparison#KEPT_POINTS}).
+     */
+    public record ComparisonView(String arm, String metric, String kind, String role, String worse, String action,
+                                 double alpha, String alternative, String spending, Decision decision,
+                                 List<LookPoint> looks) {
+        public ComparisonView {
+            looks = List.copyOf(looks);
+        }
+    }
+}

@@ -1,0 +1,210 @@
+package dev.interim.http;
+
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.interim.experiment.DecisionRecord;
+import dev.interim.experiment.ExperimentView;
+import dev.interim.experiment.LookPoint;
+import dev.interim.http.HttpEndpoint.Request;
+import dev.interim.http.HttpEndpoint.Response;
+import dev.interim.signal.DecisionJson;
+import java.nio.charset.StandardCharsets;
+import java.security.MessageDigest;
+import java.security.NoSuchAlgorithmException;
+import java.util.Comparator;
+import java.util.List;
+import java.util.Map;
+import java.util.Optional;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ExecutionException;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.TimeoutException;
+import java.util.function.Supplier;
+
+/**
+ * The JSON API over the experiments this instance decides:
+ * <ul>
+ *   <li>{@code GET /api/experiments} — every experiment with its state and each comparison's
+ *       current decision;</li>
+ *   <li>{@code GET /api/experiments/{id}} — one experiment with every arm × metric look history
+ *       (fraction, statistic, boundaries, α spent, estimate and interval, decision);</li>
+ *   <li>{@code POST /api/experiments/{id}/hold} (optional JSON body {@code {"reason": "..."}}) and
+ *       {@code POST /api/experiments/{id}/resume} — operator actions, which need
+ *       {@code Authorization: Bearer <token>} with the token from the environment variable named by
+ *       {@code http.admin_token_env}, compared in constant time. Without a configured token they are
+ *       disabled.</li>
+ * </ul>
+ * Numbers that are not finite (an infinite boundary before any α is spent) are written as null.
+ */
+public final class ExperimentApi {
+    private static final ObjectMapper JSON = new ObjectMapper();
+
+    /** What the API needs from the daemon. */
+    public interface Operations {
+        Map<String, ExperimentView> views();
+
+        CompletableFuture<List<DecisionRecord>> hold(String experiment, String reason);
+
+        CompletableFuture<List<DecisionRecord>> resume(String experiment);
+    }
+
+    private final Operations operations;
+    private final Supplier<Optional<String>> adminToken;
+
+    private ExperimentApi(Operations operations, Supplier<Optional<String>> adminToken) {
+        this.operations = operations;
+        this.adminToken = adminToken;
+    }
+
+    /** Adds the API's routes to {@code endpoint}. */
+    public static void install(HttpEndpoint endpoint, Operations operations, Supplier<Optional<String>> adminToken) {
+        ExperimentApi api = new ExperimentApi(operations, adminToken);
+        endpoint.route("GET", "/api/experiments", api::list);
+        endpoint.route("GET", "/api/experiments/{id}", api::one);
+        endpoint.route("POST", "/api/experiments/{id}/hold", r -> api.act(r, true));
+        endpoint.route("POST", "/api/experiments/{id}/resume", r -> api.act(r, false));
+    }
+
+    private Response list(Request request) throws Exception {
+        ArrayNode out = JSON.createArrayNode();
+        operations.views().values().stream().sorted(Comparator.comparing(ExperimentView::id))
+                .forEach(v -> out.add(summary(v, false)));
+        return Response.json(200, JSON.writeValueAsBytes(out));
+    }
+
+    private Response one(Request request) throws Exception {
+        ExperimentView v = operations.views().get(request.param("id"));
+        if (v == null) {
+            return error(404, "no experiment '" + request.param("id") + "' is decided here; GET /api/experiments lists them");
+        }
+        return Response.json(200, JSON.writeValueAsBytes(summary(v, true)));
+    }
+
+    private Response act(Request request, boolean hold) throws Exception {
+        Optional<String> token = adminToken.get();
+        if (token.isEmpty()) {
+            return error(403, "operator actions are disabled: set http.admin_token_env to a variable holding a token");
+        }
+        if (!authorised(request, token.get())) {
+            return error(401, "operator actions need the header 'Authorization: Bearer <token>' with the admin token");
+        }
+        String id = request.param("id");
+        if (!operations.views().containsKey(id)) {
+            return error(404, "no experiment '" + id + "' is decided here; GET /api/experiments lists them");
+        }
+        String reason = "operator";
+        if (hold && request.body().length > 0) {
+            try {
+                reason = JSON.readTree(request.body()).path("reason").asText("operator");
+            } catch (java.io.IOException e) {
+                return error(400, "the body must be JSON such as {\"reason\": \"incident 42\"}");
+            }
+            reason = reason.length() > 200 ? reason.substring(0, 200) : reason;
+        }
+        CompletableFuture<List<DecisionRecord>> done = hold ? operations.hold(id, reason) : operations.resume(id);
+        List<DecisionRecord> records;
+        try {
+            records = done.get(30, TimeUnit.SECONDS);
+        } catch (ExecutionException e) {
+            return error(409, e.getCause() == null ? "the action failed" : e.getCause().getMessage());
+        } catch (TimeoutException e) {
+            return error(503, "the action was not committed within 30 s; it may still take effect");
+        }
+        ArrayNode out = JSON.createArrayNode();
+        for (DecisionRecord d : records) {
+            out.add(JSON.readTree(DecisionJson.write(d)));
+        }
+        return Response.json(200, JSON.writeValueAsBytes(out));
+    }
+
+    /** Compares the bearer token in constant time (digests of equal length, MessageDigest.isEqual). */
+    static boolean authorised(Request request, String expected) {
+        String header = request.headers().getFirst("Authorization");
+        if (header == null || !header.regionMatches(true, 0, "Bearer ", 0, 7)) {
+            return false;
+        }
+        return MessageDigest.isEqual(sha256(header.substring(7).trim()), sha256(expected));
+    }
+
+    private static byte[] sha256(String s) {
+        try {
+            return MessageDigest.getInstance("SHA-256").digest(s.getBytes(StandardCharsets.UTF_8));
+        } catch (NoSuchAlgorithmException e) {
+            throw new IllegalStateException("SHA-256 is part of every Java runtime", e);
+        }
+    }
+
+    private static ObjectNode summary(ExperimentView v, boolean withLooks) {
+        ObjectNode n = JSON.createObjectNode();
+        n.put("id", v.id());
+        n.put("control", v.control());
+        ArrayNode treatments = n.putArray("treatments");
+        v.treatments().forEach(treatments::add);
+        n.put("dry_run", v.dryRun());
+        n.put("held", v.held());
+        if (v.holdReason() != null) {
+            n.put("hold_reason", v.holdReason());
+        }
+        ObjectNode srm = n.putObject("sample_ratio");
+        number(srm, "p_value", v.sampleRatio().pValue());
+        srm.put("mismatch", v.sampleRatio().mismatch());
+        if (v.lastLook() != null) {
+            n.put("last_look", v.lastLook().toString());
+        }
+        ObjectNode exposures = n.putObject("exposures");
+        v.exposures().forEach(exposures::put);
+        ArrayNode comparisons = n.putArray("comparisons");
+        for (ExperimentView.ComparisonView c : v.comparisons()) {
+            ObjectNode cn = comparisons.addObject();
+            cn.put("arm", c.arm());
+            cn.put("metric", c.metric());
+            cn.put("kind", c.kind());
+            cn.put("role", c.role());
+            cn.put("worse", c.worse());
+            cn.put("action", c.action());
+            cn.put("alpha", c.alpha());
+            cn.put("alternative", c.alternative());
+            cn.put("spending", c.spending());
+            cn.put("decision", c.decision().label());
+            List<LookPoint> looks = c.looks();
+            if (!looks.isEmpty()) {
+                cn.set("last", point(looks.get(looks.size() - 1)));
+            }
+            if (withLooks) {
+                ArrayNode history = cn.putArray("looks");
+                looks.forEach(p -> history.add(point(p)));
+            }
+        }
+        return n;
+    }
+
+    private static ObjectNode point(LookPoint p) {
+        ObjectNode n = JSON.createObjectNode();
+        n.put("look", p.look());
+        n.put("at", p.at().toString());
+        number(n, "fraction", p.fraction());
+        number(n, "statistic", p.statistic());
+        number(n, "upper", p.upper());
+        number(n, "lower", p.lower());
+        number(n, "alpha_spent", p.alphaSpent());
+        ObjectNode estimate = n.putObject("estimate");
+        number(estimate, "value", p.estimate());
+        number(estimate, "lower", p.intervalLower());
+        number(estimate, "upper", p.intervalUpper());
+        n.put("decision", p.decision().label());
+        return n;
+    }
+
+    private static void number(ObjectNode n, String field, double value) {
+        if (Double.isFinite(value)) {
+            n.put(field, value);
+        } else {
+            n.putNull(field);
+        }
+    }
+
+    private static Response error(int status, String message) throws Exception {
+        return Response.json(status, JSON.writeValueAsBytes(JSON.createObjectNode().put("error", message)));
+    }
+}
