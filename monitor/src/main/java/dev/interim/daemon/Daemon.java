@@ -62,6 +62,7 @@ public final class Daemon implements AutoCloseable {
     private final JudgeStage judge;
     private final List<Thread> threads = new ArrayList<>();
     private final ExecutorService webhooks;
+    private final KafkaDeliveryLog deliveries;
 
     /** What a caller may watch besides the records on the decisions topic. */
     public record Options(Path dataDir, Clock clock, Consumer<DecisionRecord> onDecision) {
@@ -90,10 +91,11 @@ public final class Daemon implements AutoCloseable {
         Catalog catalog = new Catalog(definitions);
         meters = new Meters();
         webhooks = Executors.newSingleThreadExecutor(r -> daemonThread(r, "interim-webhook"));
+        deliveries = config.webhook().isPresent() ? new KafkaDeliveryLog(settings, settings.deliveriesTopic()) : null;
         WebhookSender sender = config.webhook().map(w -> WebhookSender.to(w.url(),
                         dev.interim.signal.Secret.parse(w.signingKey().reveal()))
                 .maxAttempts(w.maxAttempts()).backoff(w.initialBackoff(), w.initialBackoff().multipliedBy(32))
-                .requestTimeout(w.timeout()).build()).orElse(null);
+                .requestTimeout(w.timeout()).deliveryLog(deliveries).build()).orElse(null);
         StageEvents events = new Events(meters, sender, webhooks, options.onDecision());
         tally = new TallyStage(settings, catalog, new JsonEventReader(config), events);
         judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write);
@@ -117,6 +119,9 @@ public final class Daemon implements AutoCloseable {
         }, () -> config.http().adminToken().filter(dev.interim.config.Secret::isRead).map(dev.interim.config.Secret::reveal));
         start(tally, "interim-tally");
         start(judge, "interim-judge");
+        if (sender != null) {
+            webhooks.submit(() -> redeliver(sender));
+        }
         LOG.info("interim watching {} experiment(s) on {}; metrics at {}", definitions.size(),
                 settings.inputTopics(), http.uri().resolve("/metrics"));
     }
@@ -152,6 +157,39 @@ public final class Daemon implements AutoCloseable {
         return judge.views();
     }
 
+    /**
+     * Kill decisions committed before a crash or restart whose webhook was never acknowledged are
+     * delivered now, once: the decisions topic is the record of what was decided, the deliveries
+     * topic of what was delivered. (Receivers should still treat webhook-id as an idempotency key, as
+     * the Standard Webhooks specification asks: with several instances, each may redeliver.)
+     */
+    private void redeliver(WebhookSender sender) {
+        List<DecisionRecord> undelivered = new ArrayList<>();
+        try {
+            dev.interim.stream.StateReader.readAll(settings, settings.decisionsTopic(), null, (key, value) -> {
+                if (value == null) {
+                    return;
+                }
+                try {
+                    DecisionRecord d = DecisionJson.read(value);
+                    if (d.killRequested() && !deliveries.delivered(d.decisionId())) {
+                        undelivered.add(d);
+                    }
+                } catch (RuntimeException unreadable) {
+                    LOG.warn("a record on {} is not a decision record; skipped", settings.decisionsTopic());
+                }
+            });
+        } catch (RuntimeException e) {
+            LOG.warn("could not scan {} for undelivered kills: {}", settings.decisionsTopic(), e.toString());
+            return;
+        }
+        for (DecisionRecord d : undelivered) {
+            LOG.info("delivering kill decision {} ({}/{}/{}) left undelivered before the restart", d.decisionId(),
+                    d.experiment(), d.arm(), d.metric());
+            meters.webhook(sender.send(d));
+        }
+    }
+
     private void start(Runnable stage, String name) {
         Thread t = new Thread(() -> {
             try {
@@ -184,6 +222,7 @@ public final class Daemon implements AutoCloseable {
             topics.add(new NewTopic(s.deadLetterTopic(), 1, (short) 1));
             topics.add(compacted(s.talliesTopic(), s.statePartitions()));
             topics.add(compacted(s.looksTopic(), s.statePartitions()));
+            topics.add(compacted(s.deliveriesTopic(), 1));
             createMissing(admin, topics);
             int inputPartitions = 1;
             Map<String, TopicDescription> described = admin.describeTopics(s.inputTopics()).allTopicNames().get(30, TimeUnit.SECONDS);
@@ -290,6 +329,9 @@ public final class Daemon implements AutoCloseable {
             Thread.currentThread().interrupt();
         }
         http.close();
+        if (deliveries != null) {
+            deliveries.close();
+        }
         if (broker != null) {
             broker.close();
         }

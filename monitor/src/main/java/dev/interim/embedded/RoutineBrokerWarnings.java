@@ -11,8 +11,9 @@ import java.util.List;
  * warning on the console means something. Kafka logs at WARN that the controller activates (each
  * start), that its registration channel's client was already closed (each stop), and, every 50 ms
  * while a broker restarted after a crash waits for its old registration to expire, that its
- * transaction coordinator cannot reach the broker yet. None is a fault. Every other warning, from
- * these loggers too, passes.
+ * transaction coordinator cannot reach the broker yet; and, at ERROR, that a restarted node's
+ * controller registration arrived a moment before the controller was active (it is retried). None
+ * is a fault. Every other warning and error, from these loggers too, passes.
  *
  * <p>Used from {@code logback.xml}: {@code <filter class="dev.interim.embedded.RoutineBrokerWarnings"/>}.
  */
@@ -25,6 +26,9 @@ public final class RoutineBrokerWarnings extends Filter<ILoggingEvent> {
                 return false;
             }
             String message = event.getFormattedMessage();
+            for (ch.qos.logback.classic.spi.IThrowableProxy t = event.getThrowableProxy(); t != null; t = t.getCause()) {
+                message = message + " | " + t.getClassName() + ": " + t.getMessage();
+            }
             for (String fragment : fragments) {
                 if (message == null || !message.contains(fragment)) {
                     return false;
@@ -39,11 +43,14 @@ public final class RoutineBrokerWarnings extends Filter<ILoggingEvent> {
             new Routine("org.apache.kafka.clients.NetworkClient", "NodeToControllerChannelManager",
                     "Attempting to close NetworkClient that has already been closed."),
             new Routine("org.apache.kafka.clients.NetworkClient", "[TransactionCoordinator id=",
-                    "could not be established. Node may not be available."));
+                    "could not be established. Node may not be available."),
+            // Logged at ERROR when a restarted single node registers its controller a moment before
+            // the controller is active; the registration is retried and succeeds.
+            new Routine("kafka.server.ControllerApis", "CONTROLLER_REGISTRATION", "NotControllerException"));
 
     @Override
     public FilterReply decide(ILoggingEvent event) {
-        if (event.getLevel() == Level.WARN) {
+        if (event.getLevel() == Level.WARN || event.getLevel() == Level.ERROR) {
             for (Routine routine : ROUTINE) {
                 if (routine.matches(event)) {
                     return FilterReply.DENY;

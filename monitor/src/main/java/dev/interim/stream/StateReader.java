@@ -20,7 +20,7 @@ import org.apache.kafka.common.serialization.ByteArrayDeserializer;
  * hands every (key, value) to a callback in offset order per partition (so the last value of a key
  * wins). Used when a stage takes over partitions after a start, a crash or a rebalance.
  */
-final class StateReader {
+public final class StateReader {
     private static final Duration DEADLINE = Duration.ofMinutes(2);
 
     private StateReader() {}
@@ -28,7 +28,7 @@ final class StateReader {
     /**
      * @param partitions the partitions to read, or null for all of them
      */
-    static void readAll(StreamSettings settings, String topic, Set<Integer> partitions, BiConsumer<byte[], byte[]> sink) {
+    public static void readAll(StreamSettings settings, String topic, Set<Integer> partitions, BiConsumer<byte[], byte[]> sink) {
         Properties p = new Properties();
         p.putAll(settings.clientProperties());
         p.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());

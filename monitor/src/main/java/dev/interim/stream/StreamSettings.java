@@ -48,6 +48,11 @@ public record StreamSettings(String bootstrapServers, Map<String, Object> client
         return statePrefix + "-looks";
     }
 
+    /** Compacted: ids of the decisions whose kill webhook was delivered. */
+    public String deliveriesTopic() {
+        return statePrefix + "-deliveries";
+    }
+
     public String tallyGroup() {
         return groupPrefix + "-tally";
     }
