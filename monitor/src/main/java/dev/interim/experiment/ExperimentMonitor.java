@@ -26,6 +26,7 @@ public final class ExperimentMonitor {
     private SampleRatio sampleRatio = SampleRatio.UNKNOWN;
     private String operatorHold;
     private Map<String, Long> lastExposures = Map.of();
+    private Map<String, Map<String, Tally>> lastTallies = Map.of();
 
     public ExperimentMonitor(ExperimentDefinition definition) {
         this.definition = definition;
@@ -78,6 +79,7 @@ public final class ExperimentMonitor {
     public LookReport look(Instant at, Map<String, Long> exposures, Map<String, Map<String, Tally>> tallies) {
         lastLook = at;
         lastExposures = Map.copyOf(exposures);
+        lastTallies = tallies;
         sampleRatio = SampleRatio.check(definition, exposures);
         List<DecisionRecord> records = new ArrayList<>(applyHold(at));
         List<LookResult> results = new ArrayList<>();
@@ -117,7 +119,7 @@ public final class ExperimentMonitor {
         }
         String reason = operatorHold != null ? operatorHold : sampleRatio.mismatch() ? "sample-ratio mismatch" : null;
         return new ExperimentView(definition.id(), definition.control(), definition.treatments(), definition.dryRun(),
-                held(), reason, sampleRatio, lastLook, lastExposures, views);
+                held(), reason, sampleRatio, lastLook, lastExposures, lastTallies, views);
     }
 
     public boolean held() {

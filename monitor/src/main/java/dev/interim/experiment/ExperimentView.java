@@ -9,15 +9,19 @@ import java.util.Map;
  * the dashboard) while the judge goes on looking.
  *
  * @param exposures exposures per arm at the last look
+ * @param tallies the sufficient statistics at the last look, metric → arm → tally (every event counted once)
  * @param lastLook when the last look ran (null before the first)
  */
 public record ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
                              String holdReason, SampleRatio sampleRatio, Instant lastLook, Map<String, Long> exposures,
-                             List<ComparisonView> comparisons) {
+                             Map<String, Map<String, Tally>> tallies, List<ComparisonView> comparisons) {
 
     public ExperimentView {
         treatments = List.copyOf(treatments);
         exposures = Map.copyOf(exposures);
+        Map<String, Map<String, Tally>> copy = new java.util.HashMap<>();
+        tallies.forEach((metric, byArm) -> copy.put(metric, Map.copyOf(byArm)));
+        tallies = Map.copyOf(copy);
         comparisons = List.copyOf(comparisons);
     }
 

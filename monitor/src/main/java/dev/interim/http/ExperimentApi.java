@@ -154,6 +154,21 @@ public final class ExperimentApi {
         }
         ObjectNode exposures = n.putObject("exposures");
         v.exposures().forEach(exposures::put);
+        ObjectNode tallies = n.putObject("tallies");
+        v.tallies().forEach((metric, byArm) -> {
+            ObjectNode m = tallies.putObject(metric);
+            byArm.forEach((arm, t) -> {
+                ObjectNode a = m.putObject(arm);
+                a.put("count", t.count());
+                if (t instanceof dev.interim.experiment.Tally.Rate r) {
+                    a.put("successes", r.counts().successes());
+                } else if (t instanceof dev.interim.experiment.Tally.Mean mean && mean.moments().count() > 0) {
+                    number(a, "mean", mean.moments().mean());
+                    number(a, "sum", mean.moments().mean() * mean.moments().count());
+                    number(a, "sd", mean.moments().standardDeviation());
+                }
+            });
+        });
         ArrayNode comparisons = n.putArray("comparisons");
         for (ExperimentView.ComparisonView c : v.comparisons()) {
             ObjectNode cn = comparisons.addObject();
