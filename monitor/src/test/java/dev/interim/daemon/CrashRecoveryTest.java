@@ -51,7 +51,7 @@ class CrashRecoveryTest {
         try (EmbeddedKafka broker = EmbeddedKafka.start(dir.resolve("broker"))) {
             Map<String, double[]> truth = new HashMap<>();   // experiment/arm/metric → {count, successes or sum}
             SplittableRandom random = new SplittableRandom(4242);
-            Thread producer = new Thread(() -> produce(broker.bootstrapServers(), truth, new SplittableRandom(77)));
+            Thread producer = new Thread(() -> produce(broker.bootstrapServers(), truth, new SplittableRandom(77), 0, EVENTS));
             DaemonProcess daemon = new DaemonProcess(broker.bootstrapServers(), dir);
             daemon.start();
             producer.start();
@@ -64,6 +64,14 @@ class CrashRecoveryTest {
             }
             producer.join();
             JsonNode experiments = waitForTruth(daemon, truth, Duration.ofSeconds(180));
+            checkTallies(experiments, truth);
+            daemon.kill();
+            checkDecisionChains(broker.bootstrapServers());
+        }
+    }
+
+    /** Counts equal, successes equal, sums within 1e-9 relative. */
+    static void checkTallies(JsonNode experiments, Map<String, double[]> truth) {
             for (String e : EXPERIMENTS) {
                 JsonNode tallies = find(experiments, e).path("tallies");
                 for (String arm : ARMS) {
@@ -76,15 +84,12 @@ class CrashRecoveryTest {
                             .isCloseTo(latency[1], within(1e-9 * latency[1]));
                 }
             }
-            daemon.kill();
-            checkDecisionChains(broker.bootstrapServers());
-        }
     }
 
     /** Writes the stream at a steady pace (about 20 s) and records what it wrote. */
-    private static void produce(String bootstrap, Map<String, double[]> truth, SplittableRandom random) {
+    static void produce(String bootstrap, Map<String, double[]> truth, SplittableRandom random, int from, int to) {
         try (KafkaProducer<String, String> p = DaemonIntegrationTest.producer(bootstrap)) {
-            for (int i = 0; i < EVENTS; i++) {
+            for (int i = from; i < to; i++) {
                 String e = EXPERIMENTS[i % 3];
                 String arm = ARMS[random.nextInt(2)];
                 boolean error = random.nextDouble() < (e.equals("harbor-b") && arm.equals("trial") ? 0.03 : 0.01);
@@ -108,7 +113,7 @@ class CrashRecoveryTest {
         }
     }
 
-    private JsonNode waitForTruth(DaemonProcess daemon, Map<String, double[]> truth, Duration limit) throws Exception {
+    JsonNode waitForTruth(DaemonProcess daemon, Map<String, double[]> truth, Duration limit) throws Exception {
         long deadline = System.nanoTime() + limit.toNanos();
         JsonNode last = null;
         while (System.nanoTime() < deadline) {
@@ -155,7 +160,7 @@ class CrashRecoveryTest {
     }
 
     /** Every decision once; each comparison's records form a chain (each one's previous is the last one's decision). */
-    private void checkDecisionChains(String bootstrap) throws Exception {
+    void checkDecisionChains(String bootstrap) throws Exception {
         List<JsonNode> records = DaemonIntegrationTest.readAll(bootstrap, "harbor.decisions");
         Set<String> ids = new HashSet<>();
         Map<String, String> state = new HashMap<>();
@@ -189,14 +194,28 @@ class CrashRecoveryTest {
             this.dir = dir;
         }
 
+        boolean alive() {
+            return process != null && process.isAlive();
+        }
+
+        /** SIGTERM: the daemon's orderly shutdown (commits, leaves the groups). */
+        void stop() throws InterruptedException {
+            process.destroy();
+            assertThat(process.waitFor(60, TimeUnit.SECONDS)).isTrue();
+        }
+
         void start() throws IOException {
             try (ServerSocket s = new ServerSocket(0)) {
                 port = s.getLocalPort();
             }
+            Files.createDirectories(dir);
             Path config = dir.resolve("daemon-" + starts + ".yaml");
             Files.writeString(config, """
                     kafka:
                       bootstrap_servers: [%s]
+                      properties:
+                        session.timeout.ms: "6000"
+                        heartbeat.interval.ms: "1000"
                       input_topics: [harbor.events]
                       decisions_topic: harbor.decisions
                       dead_letter_topic: harbor.dead
