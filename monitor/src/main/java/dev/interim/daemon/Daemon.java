@@ -116,6 +116,16 @@ public final class Daemon implements AutoCloseable {
             public CompletableFuture<List<DecisionRecord>> resume(String experiment) {
                 return judge.resume(experiment);
             }
+
+            @Override
+            public CompletableFuture<List<DecisionRecord>> forceStop(String experiment, String arm, String reason) {
+                return judge.forceStop(experiment, arm, reason);
+            }
+
+            @Override
+            public CompletableFuture<List<DecisionRecord>> acknowledge(String experiment) {
+                return judge.acknowledge(experiment);
+            }
         }, () -> config.http().adminToken().filter(dev.interim.config.Secret::isRead).map(dev.interim.config.Secret::reveal));
         start(tally, "interim-tally");
         start(judge, "interim-judge");

@@ -123,6 +123,18 @@ public final class Comparison {
         return true;
     }
 
+    /**
+     * An operator's stop for harm: final, like a boundary's, and with the same consequences (the
+     * metric's action, the kill webhook outside dry-run). Returns whether the state changed.
+     */
+    boolean forceStop() {
+        if (decision.isFinal()) {
+            return false;
+        }
+        decision = Decision.STOP_HARM;
+        return true;
+    }
+
     /** Ends a hold. Returns whether the state changed. */
     boolean resume() {
         if (decision != Decision.HELD) {

@@ -25,6 +25,7 @@ public final class ExperimentMonitor {
     private Instant lastLook;
     private SampleRatio sampleRatio = SampleRatio.UNKNOWN;
     private String operatorHold;
+    private boolean acknowledged;
     private Map<String, Long> lastExposures = Map.of();
     private Map<String, Map<String, Tally>> lastTallies = Map.of();
 
@@ -94,6 +95,9 @@ public final class ExperimentMonitor {
                 Optional<LookResult> r = c.look(treatment, control, at);
                 r.ifPresent(results::add);
                 r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(x, metric, definition.dryRun())));
+                if (r.isPresent() && r.get().changed() && r.get().decision() == Decision.STOP_HARM) {
+                    acknowledged = false;
+                }
             }
         }
         return new LookReport(definition.id(), at, sampleRatio, results, records);
@@ -103,6 +107,37 @@ public final class ExperimentMonitor {
     public List<DecisionRecord> hold(Instant at, String reason) {
         operatorHold = reason == null || reason.isBlank() ? "operator" : reason;
         return applyHold(at);
+    }
+
+    /**
+     * An operator stops {@code arm} for harm on every metric not yet decided: the records carry the
+     * metrics' actions, so a kill action calls the webhook (outside dry-run) as a boundary crossing
+     * would.
+     */
+    public List<DecisionRecord> forceStop(Instant at, String arm, String reason) {
+        if (!definition.treatments().contains(arm)) {
+            throw new IllegalArgumentException("experiment " + definition.id() + " has no treatment arm '" + arm
+                    + "'; its treatments are " + definition.treatments());
+        }
+        acknowledged = false;
+        List<DecisionRecord> records = new ArrayList<>();
+        for (Comparison c : comparisons()) {
+            Decision before = c.decision();
+            if (c.arm().equals(arm) && c.forceStop()) {
+                records.add(DecisionRecord.ofStateChange(definition.id(), c, before, at, definition.dryRun(),
+                        reason == null || reason.isBlank() ? "operator stop" : reason));
+            }
+        }
+        return records;
+    }
+
+    /** An operator has seen the stops for harm: the paging signal clears until a new stop. */
+    public void acknowledge() {
+        acknowledged = true;
+    }
+
+    public boolean acknowledged() {
+        return acknowledged;
     }
 
     /** Ends an operator's hold; comparisons stay held while the split is broken. */

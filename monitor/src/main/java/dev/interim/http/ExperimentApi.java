@@ -29,8 +29,11 @@ import java.util.function.Supplier;
  *       current decision;</li>
  *   <li>{@code GET /api/experiments/{id}} — one experiment with every arm × metric look history
  *       (fraction, statistic, boundaries, α spent, estimate and interval, decision);</li>
- *   <li>{@code POST /api/experiments/{id}/hold} (optional JSON body {@code {"reason": "..."}}) and
- *       {@code POST /api/experiments/{id}/resume} — operator actions, which need
+ *   <li>{@code POST /api/experiments/{id}/hold} (optional JSON body {@code {"reason": "..."}}),
+ *       {@code POST /api/experiments/{id}/resume}, {@code POST /api/experiments/{id}/acknowledge}
+ *       (clears the paging signal until the next stop) and
+ *       {@code POST /api/experiments/{id}/arms/{arm}/stop} (an operator's stop for harm of one arm,
+ *       with the metrics' actions) — operator actions, which need
  *       {@code Authorization: Bearer <token>} with the token from the environment variable named by
  *       {@code http.admin_token_env}, compared in constant time. Without a configured token they are
  *       disabled.</li>
@@ -47,6 +50,10 @@ public final class ExperimentApi {
         CompletableFuture<List<DecisionRecord>> hold(String experiment, String reason);
 
         CompletableFuture<List<DecisionRecord>> resume(String experiment);
+
+        CompletableFuture<List<DecisionRecord>> forceStop(String experiment, String arm, String reason);
+
+        CompletableFuture<List<DecisionRecord>> acknowledge(String experiment);
     }
 
     private final Operations operations;
@@ -62,8 +69,10 @@ public final class ExperimentApi {
         ExperimentApi api = new ExperimentApi(operations, adminToken);
         endpoint.route("GET", "/api/experiments", api::list);
         endpoint.route("GET", "/api/experiments/{id}", api::one);
-        endpoint.route("POST", "/api/experiments/{id}/hold", r -> api.act(r, true));
-        endpoint.route("POST", "/api/experiments/{id}/resume", r -> api.act(r, false));
+        endpoint.route("POST", "/api/experiments/{id}/hold", r -> api.act(r, Action.HOLD));
+        endpoint.route("POST", "/api/experiments/{id}/resume", r -> api.act(r, Action.RESUME));
+        endpoint.route("POST", "/api/experiments/{id}/acknowledge", r -> api.act(r, Action.ACKNOWLEDGE));
+        endpoint.route("POST", "/api/experiments/{id}/arms/{arm}/stop", r -> api.act(r, Action.STOP));
     }
 
     private Response list(Request request) throws Exception {
@@ -81,7 +90,9 @@ public final class ExperimentApi {
         return Response.json(200, JSON.writeValueAsBytes(summary(v, true)));
     }
 
-    private Response act(Request request, boolean hold) throws Exception {
+    private enum Action { HOLD, RESUME, ACKNOWLEDGE, STOP }
+
+    private Response act(Request request, Action action) throws Exception {
         Optional<String> token = adminToken.get();
         if (token.isEmpty()) {
             return error(403, "operator actions are disabled: set http.admin_token_env to a variable holding a token");
@@ -94,7 +105,7 @@ public final class ExperimentApi {
             return error(404, "no experiment '" + id + "' is decided here; GET /api/experiments lists them");
         }
         String reason = "operator";
-        if (hold && request.body().length > 0) {
+        if ((action == Action.HOLD || action == Action.STOP) && request.body().length > 0) {
             try {
                 reason = JSON.readTree(request.body()).path("reason").asText("operator");
             } catch (java.io.IOException e) {
@@ -102,7 +113,12 @@ public final class ExperimentApi {
             }
             reason = reason.length() > 200 ? reason.substring(0, 200) : reason;
         }
-        CompletableFuture<List<DecisionRecord>> done = hold ? operations.hold(id, reason) : operations.resume(id);
+        CompletableFuture<List<DecisionRecord>> done = switch (action) {
+            case HOLD -> operations.hold(id, reason);
+            case RESUME -> operations.resume(id);
+            case ACKNOWLEDGE -> operations.acknowledge(id);
+            case STOP -> operations.forceStop(id, request.param("arm"), reason);
+        };
         List<DecisionRecord> records;
         try {
             records = done.get(30, TimeUnit.SECONDS);

@@ -213,6 +213,9 @@ public final class Meters {
     }
 
     static double paging(ExperimentMonitor monitor) {
+        if (monitor.acknowledged()) {
+            return 0;
+        }
         for (Comparison c : monitor.comparisons()) {
             StopAction action = c.metric().action();
             if (c.decision() == Decision.STOP_HARM && (action == StopAction.PAGE || action == StopAction.KILL)) {

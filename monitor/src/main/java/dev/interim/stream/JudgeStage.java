@@ -97,6 +97,19 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         return submit(experiment, m -> m.hold(clock.instant(), reason));
     }
 
+    /** Stops {@code arm} for harm by an operator's decision; completes once the records are committed. */
+    public CompletableFuture<List<DecisionRecord>> forceStop(String experiment, String arm, String reason) {
+        return submit(experiment, m -> m.forceStop(clock.instant(), arm, reason));
+    }
+
+    /** Clears the experiment's paging signal; completes at the next commit. */
+    public CompletableFuture<List<DecisionRecord>> acknowledge(String experiment) {
+        return submit(experiment, m -> {
+            m.acknowledge();
+            return List.of();
+        });
+    }
+
     /** Ends an operator's hold; completes once the records are committed. */
     public CompletableFuture<List<DecisionRecord>> resume(String experiment) {
         return submit(experiment, m -> m.resume(clock.instant()));
@@ -166,7 +179,13 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 c.done().completeExceptionally(new NotOwnedException(c.experiment()));
                 continue;
             }
-            List<DecisionRecord> records = c.action().apply(monitor);
+            List<DecisionRecord> records;
+            try {
+                records = c.action().apply(monitor);
+            } catch (RuntimeException refused) {
+                c.done().completeExceptionally(refused);   // e.g. an unknown arm: the operator's mistake, not ours
+                continue;
+            }
             decisions.addAll(records);
             records.forEach(d -> changed.add(d.experiment() + '\u001f' + d.arm() + '\u001f' + d.metric()));
             done.add(c);
@@ -191,6 +210,9 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             }
         }
         if (changed.isEmpty() && reports.isEmpty() && pending.isEmpty()) {
+            for (int i = 0; i < done.size(); i++) {
+                done.get(i).done().complete(doneRecords.get(i));
+            }
             return;
         }
         try {

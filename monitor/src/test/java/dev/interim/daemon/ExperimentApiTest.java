@@ -50,6 +50,7 @@ class ExperimentApiTest {
                     field: /ok
                     counts_if: {equals: false}
                     max_per_arm: 100000
+                    action: page
             """;
     private final HttpClient client = HttpClient.newHttpClient();
     private final ObjectMapper json = new ObjectMapper();
@@ -99,6 +100,17 @@ class ExperimentApiTest {
             HttpResponse<String> resumed = post(base + "/api/experiments/atlas-tiles/resume", TOKEN);
             assertThat(resumed.statusCode()).isEqualTo(200);
             assertThat(json.readTree(resumed.body()).path(0).path("decision").asText()).isEqualTo("continue");
+            HttpResponse<String> unknownArm = post(base + "/api/experiments/atlas-tiles/arms/nobody/stop", TOKEN);
+            assertThat(unknownArm.statusCode()).isEqualTo(409);
+            assertThat(unknownArm.body()).contains("no treatment arm 'nobody'");
+            HttpResponse<String> stopped = post(base + "/api/experiments/atlas-tiles/arms/new/stop", TOKEN);
+            assertThat(stopped.statusCode()).isEqualTo(200);
+            assertThat(json.readTree(stopped.body()).path(0).path("decision").asText()).isEqualTo("stop-harm");
+            assertThat(daemon.meters().scrape()).containsPattern("interim_paging\\{[^}]*\\} 1(\\.0)?\\b");
+            assertThat(post(base + "/api/experiments/atlas-tiles/acknowledge", TOKEN).statusCode()).isEqualTo(200);
+            assertThat(daemon.meters().scrape()).containsPattern("interim_paging\\{[^}]*\\} 0(\\.0)?\\b");
+            assertThat(json.readTree(get(base + "/api/experiments/atlas-tiles").body()).path("comparisons").path(0)
+                    .path("decision").asText()).isEqualTo("stop-harm");
             assertThat(held.body() + resumed.body() + daemon.meters().scrape()).doesNotContain(TOKEN);
         }
     }
