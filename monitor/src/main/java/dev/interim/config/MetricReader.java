@@ -18,12 +18,13 @@ import java.util.stream.Collectors;
 
 /** Reads one entry of an experiment's {@code metrics}: its test design and its source in the events. */
 final class MetricReader {
-    static final Set<String> KEYS = ConnectionReaders.keys("name", "kind", "role", "worse", "field", "counts_if",
+    static final Set<String> KEYS = ConnectionReaders.keys("name", "kind", "role", "worse", "field", "counts_if", "range",
             "alpha", "sides", "spending", "futility", "max_per_arm", "power", "effect", "planned_looks", "baseline",
             "action");
     static final double DEFAULT_ALPHA = 0.05;
     static final String DEFAULT_SPENDING = "obf";
     static final int DEFAULT_PLANNED_LOOKS = 10;
+    static final Set<String> RANGE_KEYS = ConnectionReaders.keys("min", "max");
 
     /** A metric as read: its definition and where it is read. */
     record Read(MetricDefinition definition, MetricSource source) {
@@ -84,11 +85,39 @@ final class MetricReader {
                 throw m.required("counts_if", "").error("applies to rates only: a " + kind.label()
                         + " takes the number in field; leave counts_if out");
             }
-            return new MetricSource.Value(field);
+            ValueRange range = m.optional("range").map(MetricReader::range).orElse(ValueRange.ANY);
+            return new MetricSource.Value(field, range);
+        }
+        if (m.has("range")) {
+            throw m.required("range", "").error("applies to means and totals only: a " + kind.label()
+                    + " counts the events that meet counts_if; leave range out");
         }
         ConfigNode c = m.required("counts_if", "the condition that counts an " + (kind.perUnit() ? "unit" : "event")
                 + " as a success, such as {at_least: 500} or {equals: purchased}");
         return new MetricSource.Counted(field, condition(c));
+    }
+
+    /** {@code {min: X, max: Y}}, either end optional but not both; each end a finite number, min ≤ max. */
+    private static ValueRange range(ConfigNode r) {
+        r.mapping(RANGE_KEYS);
+        if (!r.has("min") && !r.has("max")) {
+            throw r.error("must give min, max or both, such as {min: 0} or {min: 0, max: 60000}");
+        }
+        double min = r.optional("min").map(MetricReader::finite).orElse(Double.NEGATIVE_INFINITY);
+        double max = r.optional("max").map(MetricReader::finite).orElse(Double.POSITIVE_INFINITY);
+        if (min > max) {
+            throw r.error("min " + r.required("min", "").shown() + " is above max " + r.required("max", "").shown()
+                    + ": no value would be allowed");
+        }
+        return new ValueRange(min, max);
+    }
+
+    private static double finite(ConfigNode n) {
+        double v = n.number();
+        if (!Double.isFinite(v)) {
+            throw n.error("must be a finite number (leave the key out for an open end); got " + n.kind());
+        }
+        return v;
     }
 
     /** {@code {OPERATOR: VALUE}} with exactly one of the operators of {@link Condition.Comparison}. */

@@ -3,16 +3,23 @@ package dev.interim.stream;
 import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.core.StreamReadConstraints;
+import com.fasterxml.jackson.core.StreamReadFeature;
+import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.json.JsonMapper;
 import dev.interim.config.EventMapping;
 import dev.interim.config.ExperimentConfig;
 import dev.interim.config.InterimConfig;
 import dev.interim.config.MetricSource;
+import dev.interim.config.ValueRange;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.stream.BadEventException.Reason;
 import java.io.IOException;
+import java.nio.ByteBuffer;
+import java.nio.charset.CharacterCodingException;
+import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
 import java.util.HashMap;
 import java.util.List;
@@ -23,10 +30,24 @@ import java.util.Map;
  * metric's field. An event is an exposure of its unit (or itself) to its arm, and an observation of
  * every metric whose field it carries. Anything that cannot be read is refused with a reason; an
  * accepted event reaches the sink whole, a refused one not at all.
+ *
+ * <p>What counts as JSON is RFC 8259, strictly: one object and nothing after it but whitespace, each
+ * key once in its object (a second "arm" would make the event say two things), UTF-8 well-formed
+ * (Unicode §3.9, Table 3-7: no overlong forms, encoded surrogates or code points above U+10FFFF;
+ * one leading byte order mark is allowed, §8.1). The experiment, arm and unit must also be Unicode
+ * text: a JSON escape can write an unpaired surrogate ({@code "\ud800"}), which UTF-8 cannot carry,
+ * so two such units would become one key in the state topics.
  */
 public final class JsonEventReader implements EventReader {
     /** Events above this size are refused before parsing. */
     public static final int MAX_BYTES = 1 << 20;
+    /**
+     * The largest magnitude a mean's or total's value may have. The tallies keep sums of squared
+     * deviations in doubles: below 1e100 a unit's total over 2^63 events, squared and summed over
+     * 2^63 units, stays far under Double.MAX_VALUE (about 1.8e308), so no accepted value can make them
+     * overflow (which they refuse with an exception that would stop the tally stage).
+     */
+    public static final double MAX_MAGNITUDE = 1e100;
     private static final int MAX_DEPTH = 64;
 
     private final ObjectMapper json;
@@ -42,8 +63,9 @@ public final class JsonEventReader implements EventReader {
         JsonFactory factory = JsonFactory.builder()
                 .streamReadConstraints(StreamReadConstraints.builder()
                         .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
+                .enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION)
                 .build();
-        this.json = new ObjectMapper(factory);
+        this.json = JsonMapper.builder(factory).enable(DeserializationFeature.FAIL_ON_TRAILING_TOKENS).build();
         for (ExperimentConfig e : config.experiments()) {
             List<Metric> metrics = new ArrayList<>();
             for (MetricDefinition m : e.definition().metrics()) {
@@ -57,6 +79,9 @@ public final class JsonEventReader implements EventReader {
     public void read(byte[] value, ObservationSink sink) throws BadEventException {
         if (value.length > MAX_BYTES) {
             throw new BadEventException(Reason.TOO_LARGE, "event of " + value.length + " bytes, above " + MAX_BYTES);
+        }
+        if (!wellFormedUtf8(value)) {
+            throw new BadEventException(Reason.NOT_JSON, "not UTF-8: the event holds an ill-formed byte sequence");
         }
         JsonNode event;
         try {
@@ -80,6 +105,10 @@ public final class JsonEventReader implements EventReader {
         String unit = null;
         if (mapping.unit().isPresent()) {
             JsonNode u = event.at(mapping.unit().get());
+            if (u.isTextual() && !isUnicode(u.textValue())) {
+                throw new BadEventException(Reason.WRONG_TYPE, "unit at " + mapping.unit().get()
+                        + " is not Unicode text: it holds an unpaired surrogate escape");
+            }
             if (u.isTextual() || u.isIntegralNumber()) {
                 unit = u.asText();
             } else if (!u.isMissingNode() && !u.isNull()) {
@@ -103,6 +132,10 @@ public final class JsonEventReader implements EventReader {
             }
             present[i] = true;
             if (m.source() instanceof MetricSource.Counted c) {
+                if (field.isContainerNode()) {
+                    throw new BadEventException(Reason.WRONG_TYPE, m.name() + ": " + m.source().field()
+                            + " must be a number, text or true/false, not " + (field.isArray() ? "a list" : "an object"));
+                }
                 if (c.countsIf().needsNumber() && !field.isNumber()) {
                     throw new BadEventException(Reason.WRONG_TYPE, m.name() + ": " + m.source().field() + " must be a number");
                 }
@@ -117,6 +150,15 @@ public final class JsonEventReader implements EventReader {
                 double v = field.doubleValue();
                 if (!Double.isFinite(v)) {
                     throw new BadEventException(Reason.NOT_FINITE, m.name() + ": " + m.source().field() + " is not finite");
+                }
+                if (Math.abs(v) > MAX_MAGNITUDE) {
+                    throw new BadEventException(Reason.FORBIDDEN_VALUE, m.name() + ": " + m.source().field() + " is " + v
+                            + ", beyond ±" + MAX_MAGNITUDE + ", the largest magnitude the tallies take");
+                }
+                ValueRange range = ((MetricSource.Value) m.source()).range();
+                if (!range.contains(v)) {
+                    throw new BadEventException(Reason.FORBIDDEN_VALUE, m.name() + ": " + m.source().field() + " is " + v
+                            + ", outside its range " + range);
                 }
                 numbers[i] = v;
             }
@@ -143,7 +185,45 @@ public final class JsonEventReader implements EventReader {
         if (!node.isTextual()) {
             throw new BadEventException(Reason.WRONG_TYPE, what + " at " + pointer + " must be text");
         }
+        if (!isUnicode(node.textValue())) {
+            throw new BadEventException(Reason.WRONG_TYPE, what + " at " + pointer
+                    + " is not Unicode text: it holds an unpaired surrogate escape");
+        }
         return node.textValue();
+    }
+
+    /**
+     * Whether {@code value} is well-formed UTF-8. Jackson's own decoding lets overlong forms, encoded
+     * surrogates and code points above U+10FFFF through, so the JDK's strict decoder checks the bytes
+     * from the first non-ASCII one on; an all-ASCII event, the usual case, costs one pass.
+     */
+    private static boolean wellFormedUtf8(byte[] value) {
+        int first = 0;
+        while (first < value.length && value[first] >= 0) {
+            first++;
+        }
+        if (first == value.length) {
+            return true;
+        }
+        try {
+            StandardCharsets.UTF_8.newDecoder().decode(ByteBuffer.wrap(value, first, value.length - first));
+            return true;
+        } catch (CharacterCodingException e) {
+            return false;
+        }
+    }
+
+    /** Whether every surrogate in {@code s} is half of a pair. */
+    private static boolean isUnicode(String s) {
+        for (int i = 0; i < s.length(); i++) {
+            char c = s.charAt(i);
+            if (Character.isHighSurrogate(c) && i + 1 < s.length() && Character.isLowSurrogate(s.charAt(i + 1))) {
+                i++;
+            } else if (Character.isSurrogate(c)) {
+                return false;
+            }
+        }
+        return true;
     }
 
     private static String clip(String s) {
