@@ -40,6 +40,8 @@ public final class Comparison {
     private LookResult last;
     /** Looks kept for views and charts; beyond this, every other older point is dropped. */
     static final int KEPT_POINTS = 4096;
+    /** Recent fractions kept in memory; the state itself is the monitor's snapshot. */
+    static final int KEPT_FRACTIONS = 10_000;
     private final List<LookPoint> points = new ArrayList<>();
 
     Comparison(ExperimentDefinition experiment, MetricDefinition metric, String arm) {
@@ -98,9 +100,21 @@ public final class Comparison {
         return last;
     }
 
-    /** Information fractions of the looks so far, in order: with the decision, the whole state. */
+    /** Information fractions of the recent looks, in order (at most {@link #KEPT_FRACTIONS}; for tests and tools). */
     public List<Double> fractions() {
         return List.copyOf(fractions);
+    }
+
+    /** The sequential state, a few kilobytes whatever the number of looks: with the decision, all a restart needs. */
+    public SequentialMonitor.Snapshot snapshot() {
+        return monitor.snapshot();
+    }
+
+    /** Rebuilds the state after a restart from a {@link #snapshot()} and the decision. */
+    public void restore(SequentialMonitor.Snapshot snapshot, Decision restored) {
+        monitor = SequentialMonitor.restore(design, snapshot);
+        fractions.clear();
+        decision = restored == null ? Decision.CONTINUE : restored;
     }
 
     /** Rebuilds the state after a restart: the same looks, the same α spent, the same decision. */
@@ -168,6 +182,9 @@ public final class Comparison {
         }
         Look look = monitor.lookAt(fraction);
         fractions.add(fraction);
+        if (fractions.size() > KEPT_FRACTIONS) {
+            fractions.subList(0, fractions.size() - KEPT_FRACTIONS).clear();
+        }
         Decision previous = decision;
         if (look.informationAdded()) {
             decision = decide(look, e.z());

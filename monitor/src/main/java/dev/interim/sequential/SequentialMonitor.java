@@ -43,6 +43,71 @@ public final class SequentialMonitor {
         }
     }
 
+    /**
+     * The whole state of a monitor, a few kilobytes whatever the number of looks: the last look, the
+     * error spent, and the carried sub-densities. {@link #restore} continues from it exactly as the
+     * monitor that made it would have.
+     */
+    public record Snapshot(Look last, double alphaSpent, double betaSpent, double[] nullState,
+                           double[] alternativeState) {
+        public Snapshot {
+            nullState = nullState.clone();
+            alternativeState = alternativeState == null ? null : alternativeState.clone();
+        }
+
+        @Override
+        public double[] nullState() {
+            return nullState.clone();
+        }
+
+        @Override
+        public double[] alternativeState() {
+            return alternativeState == null ? null : alternativeState.clone();
+        }
+    }
+
+    /** This monitor's state, to be restored with {@link #restore}. */
+    public Snapshot snapshot() {
+        return new Snapshot(previous, alphaSpent, betaSpent, pack(underNull.state()),
+                underAlternative == null ? null : pack(underAlternative.state()));
+    }
+
+    /** A monitor of {@code design} that goes on from {@code snapshot}. */
+    public static SequentialMonitor restore(GroupSequentialDesign design, Snapshot snapshot) {
+        SequentialMonitor m = design.monitor();
+        m.previous = snapshot.last();
+        m.alphaSpent = snapshot.alphaSpent();
+        m.betaSpent = snapshot.betaSpent();
+        m.underNull = SubDensity.of(unpack(snapshot.nullState()));
+        if (snapshot.alternativeState() != null && design.futility() != null) {
+            m.underAlternative = SubDensity.of(unpack(snapshot.alternativeState()));
+        }
+        return m;
+    }
+
+    /** [fraction, drift, resolution, n, x..., f..., d...] */
+    private static double[] pack(SubDensity.State s) {
+        int n = s.x().length;
+        double[] out = new double[4 + 3 * n];
+        out[0] = s.fraction();
+        out[1] = s.drift();
+        out[2] = s.resolution();
+        out[3] = n;
+        System.arraycopy(s.x(), 0, out, 4, n);
+        System.arraycopy(s.f(), 0, out, 4 + n, n);
+        System.arraycopy(s.d(), 0, out, 4 + 2 * n, n);
+        return out;
+    }
+
+    private static SubDensity.State unpack(double[] p) {
+        int n = (int) p[3];
+        if (p.length != 4 + 3 * n) {
+            throw new IllegalArgumentException("not a sub-density state: " + p.length + " numbers for " + n + " nodes");
+        }
+        return new SubDensity.State(p[0], p[1], (int) p[2], java.util.Arrays.copyOfRange(p, 4, 4 + n),
+                java.util.Arrays.copyOfRange(p, 4 + n, 4 + 2 * n), java.util.Arrays.copyOfRange(p, 4 + 2 * n, 4 + 3 * n));
+    }
+
     /** A monitor that has already looked at {@code fractions}, in order. */
     public static SequentialMonitor replay(GroupSequentialDesign design, double... fractions) {
         SequentialMonitor m = design.monitor();

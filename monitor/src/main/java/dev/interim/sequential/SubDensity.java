@@ -85,6 +85,26 @@ final class SubDensity {
         return 0.8 / resolution;
     }
 
+    /** Everything that defines this sub-density: what a restarted monitor needs to go on exactly. */
+    record State(double fraction, double drift, int resolution, double[] x, double[] f, double[] d) {
+        public State {
+            if (x.length != f.length || x.length != d.length) {
+                throw new IllegalArgumentException("a sub-density state needs as many values and slopes as nodes");
+            }
+            x = x.clone();
+            f = f.clone();
+            d = d.clone();
+        }
+    }
+
+    State state() {
+        return new State(fraction, drift, resolution, x, f, d);
+    }
+
+    static SubDensity of(State s) {
+        return new SubDensity(s.fraction(), s.drift(), s.resolution(), s.x().clone(), s.f().clone(), s.d().clone());
+    }
+
     /** The state before the first look: no information, the score is 0 with certainty. */
     static SubDensity origin(double drift, int resolution) {
         return new SubDensity(0, drift, resolution, new double[0], new double[0], new double[0]);

@@ -225,7 +225,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 String[] k = key.split("\u001f", -1);
                 Comparison c = owned.get(k[0]).comparison(k[2], k[1]);
                 producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(k[0]),
-                        StateCodec.key(key), StateCodec.history(c.fractions(), c.decision())));
+                        StateCodec.key(key), StateCodec.history(c.snapshot(), c.decision())));
             }
             if (!pending.isEmpty()) {
                 producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
@@ -317,7 +317,12 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             if (monitor != null && fresh.contains(monitor) && value != null && k.length == 3) {
                 StateCodec.History h = StateCodec.history(value);
                 try {
-                    monitor.comparison(k[2], k[1]).restore(h.fractions(), h.decision());
+                    Comparison c = monitor.comparison(k[2], k[1]);
+                    if (h.snapshot() != null) {
+                        c.restore(h.snapshot(), h.decision());
+                    } else {
+                        c.restore(h.fractions(), h.decision());
+                    }
                 } catch (IllegalArgumentException gone) {
                     LOG.info("look history of {} / {} / {} no longer configured; ignored", k[0], k[1], k[2]);
                 }

@@ -5,6 +5,9 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.interim.experiment.Decision;
+import dev.interim.sequential.Look;
+import dev.interim.sequential.SequentialMonitor;
+import dev.interim.stats.Alternative;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
@@ -76,21 +79,67 @@ final class StateCodec {
         return u;
     }
 
-    /** The look history of one comparison: its fractions in order and its decision. */
-    record History(List<Double> fractions, Decision decision) {}
+    /**
+     * The state of one comparison: its decision and its sequential monitor's snapshot (version 2), or,
+     * in records of version 1, the fractions of every look, replayed on restore.
+     */
+    record History(List<Double> fractions, SequentialMonitor.Snapshot snapshot, Decision decision) {}
 
-    static byte[] history(List<Double> fractions, Decision decision) {
-        ObjectNode n = JSON.createObjectNode().put("v", 1).put("decision", decision.name());
-        ArrayNode a = n.putArray("fractions");
-        fractions.forEach(a::add);
+    static byte[] history(SequentialMonitor.Snapshot s, Decision decision) {
+        ObjectNode n = JSON.createObjectNode().put("v", 2).put("decision", decision.name());
+        n.put("alpha_spent", doubles(new double[] {s.alphaSpent(), s.betaSpent()}));
+        n.put("null_state", doubles(s.nullState()));
+        if (s.alternativeState() != null) {
+            n.put("alternative_state", doubles(s.alternativeState()));
+        }
+        Look l = s.last();
+        if (l != null) {
+            n.put("last_look", l.number()).put("last_alternative", l.alternative().name())
+                    .put("last_flags", (l.informationAdded() ? 1 : 0) + (l.last() ? 2 : 0))
+                    .put("last_values", doubles(new double[] {l.fraction(), l.upper(), l.lower(), l.alphaSpent(),
+                        l.alphaIncrement(), l.betaSpent()}));
+        }
         return write(n);
     }
 
     static History history(byte[] bytes) {
         JsonNode n = read(bytes);
-        List<Double> fractions = new ArrayList<>();
-        n.path("fractions").forEach(f -> fractions.add(f.asDouble()));
-        return new History(fractions, Decision.valueOf(n.path("decision").asText(Decision.CONTINUE.name())));
+        Decision decision = Decision.valueOf(n.path("decision").asText(Decision.CONTINUE.name()));
+        if (n.path("v").asInt() < 2) {
+            List<Double> fractions = new ArrayList<>();
+            n.path("fractions").forEach(f -> fractions.add(f.asDouble()));
+            return new History(fractions, null, decision);
+        }
+        double[] spent = doubles(n.path("alpha_spent").asText());
+        Look last = null;
+        if (n.has("last_look")) {
+            double[] v = doubles(n.path("last_values").asText());
+            int flags = n.path("last_flags").asInt();
+            last = new Look(n.path("last_look").asInt(), v[0], v[1], v[2], Alternative.valueOf(n.path("last_alternative").asText()),
+                    v[3], v[4], v[5], (flags & 1) != 0, (flags & 2) != 0);
+        }
+        SequentialMonitor.Snapshot snapshot = new SequentialMonitor.Snapshot(last, spent[0], spent[1],
+                doubles(n.path("null_state").asText()),
+                n.has("alternative_state") ? doubles(n.path("alternative_state").asText()) : null);
+        return new History(null, snapshot, decision);
+    }
+
+    /** Doubles as base64 of their IEEE 754 bits: exact, infinities included, and compact. */
+    private static String doubles(double[] values) {
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(8 * values.length);
+        for (double v : values) {
+            b.putDouble(v);
+        }
+        return java.util.Base64.getEncoder().encodeToString(b.array());
+    }
+
+    private static double[] doubles(String text) {
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.wrap(java.util.Base64.getDecoder().decode(text));
+        double[] out = new double[b.remaining() / 8];
+        for (int i = 0; i < out.length; i++) {
+            out[i] = b.getDouble();
+        }
+        return out;
     }
 
     private static byte[] write(JsonNode n) {

@@ -97,6 +97,27 @@ class SequentialMonitorEdgeCaseTest {
         assertThat(restored.lookAt(0.97)).isEqualTo(live.lookAt(0.97));
     }
 
+    /**
+     * A snapshot (a few kilobytes, whatever the number of looks) restores a monitor that goes on
+     * exactly as the original: same boundaries, same α, bit for bit. This is what a restarted daemon
+     * keeps instead of every fraction it ever saw.
+     */
+    @Test
+    void aSnapshotRestoresTheMonitorExactly() {
+        GroupSequentialDesign design = GroupSequentialDesign.spending(0.025, Alternative.GREATER, SpendingFunction.parse("hsd:-2"))
+                .withFutility(new Futility(0.1, SpendingFunction.parse("obf"), 3));
+        SequentialMonitor live = design.monitor();
+        for (int k = 1; k <= 300; k++) {
+            live.lookAt(k / 400.0);
+        }
+        SequentialMonitor restored = SequentialMonitor.restore(design, live.snapshot());
+        assertThat(restored.lastLook()).isEqualTo(live.lastLook());
+        for (int k = 301; k <= 420; k++) {
+            assertThat(restored.lookAt(k / 400.0)).isEqualTo(live.lookAt(k / 400.0));
+        }
+        assertThat(live.snapshot().nullState().length).as("state size does not grow with looks").isLessThan(4000);
+    }
+
     @Test
     void aLessDesignIsTheMirrorImageOfAGreaterOne() {
         SpendingFunction f = SpendingFunction.parse("hsd:-2");
