@@ -35,8 +35,8 @@ import java.util.Map;
  * key once in its object (a second "arm" would make the event say two things), UTF-8 well-formed
  * (Unicode §3.9, Table 3-7: no overlong forms, encoded surrogates or code points above U+10FFFF;
  * one leading byte order mark is allowed, §8.1). The experiment, arm and unit must also be Unicode
- * text: a JSON escape can write an unpaired surrogate ({@code "\ud800"}), which UTF-8 cannot carry,
- * so two such units would become one key in the state topics.
+ * text: a JSON escape can write an unpaired surrogate (U+D800 alone), which UTF-8 cannot carry, so
+ * two such units would become one key in the state topics.
  */
 public final class JsonEventReader implements EventReader {
     /** Events above this size are refused before parsing. */
@@ -48,6 +48,11 @@ public final class JsonEventReader implements EventReader {
      * overflow (which they refuse with an exception that would stop the tally stage).
      */
     public static final double MAX_MAGNITUDE = 1e100;
+    /**
+     * The longest unit id, in UTF-16 characters. Every unit is held in memory and written as a key to
+     * the units topic; an id near the record size limit would make that write fail.
+     */
+    public static final int MAX_UNIT_LENGTH = 1024;
     private static final int MAX_DEPTH = 64;
 
     private final ObjectMapper json;
@@ -111,6 +116,10 @@ public final class JsonEventReader implements EventReader {
             }
             if (u.isTextual() || u.isIntegralNumber()) {
                 unit = u.asText();
+                if (unit.length() > MAX_UNIT_LENGTH) {
+                    throw new BadEventException(Reason.TOO_LARGE, "unit at " + mapping.unit().get() + " is " + unit.length()
+                            + " characters, above " + MAX_UNIT_LENGTH);
+                }
             } else if (!u.isMissingNode() && !u.isNull()) {
                 throw new BadEventException(Reason.WRONG_TYPE, "unit at " + mapping.unit().get() + " must be text or an integer");
             }
