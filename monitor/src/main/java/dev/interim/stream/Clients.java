@@ -26,6 +26,8 @@ final class Clients {
         p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
         p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
         p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
+        // The broker's default record limit is 1 MiB; ours stay far below (dead letters are capped).
+        p.putIfAbsent(ProducerConfig.MAX_REQUEST_SIZE_CONFIG, 1024 * 1024);
         KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p);
         producer.initTransactions();
         return producer;

@@ -57,6 +57,9 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private final AtomicBoolean running = new AtomicBoolean(true);
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
+    /** Counts reported to meters only once their transaction has committed (an aborted one is redone). */
+    private final Map<String, Long> uncommittedAccepted = new HashMap<>();
+    private final Map<BadEventException.Reason, Long> uncommittedRejected = new HashMap<>();
     private KafkaConsumer<byte[], byte[]> consumer;
     private KafkaProducer<byte[], byte[]> producer;
     private boolean inTransaction;
@@ -114,19 +117,34 @@ public final class TallyStage implements Runnable, AutoCloseable {
             pending.put(tp, new OffsetAndMetadata(record.offset() + 1));
         }
         for (PartitionState state : touched) {
-            state.drainAccepted().forEach(events::accepted);
+            state.drainAccepted().forEach((experiment, n) -> uncommittedAccepted.merge(experiment, n, Long::sum));
         }
     }
 
+    /**
+     * Dead letters keep at most this much of the refused record: a refused record near the broker's
+     * size limit must not make every commit fail (the dead letter's headers would push it over).
+     */
+    public static final int DEAD_LETTER_MAX_BYTES = 256 * 1024;
+    public static final String ORIGINAL_SIZE_HEADER = "interim-original-bytes";
+
     private void deadLetter(ConsumerRecord<byte[], byte[]> record, BadEventException e) {
-        ProducerRecord<byte[], byte[]> letter = new ProducerRecord<>(settings.deadLetterTopic(), null, record.key(),
-                record.value());
+        byte[] value = record.value();
+        byte[] key = record.key();
+        boolean cut = value != null && value.length > DEAD_LETTER_MAX_BYTES;
+        ProducerRecord<byte[], byte[]> letter = new ProducerRecord<>(settings.deadLetterTopic(), null,
+                key != null && key.length > 4096 ? java.util.Arrays.copyOf(key, 4096) : key,
+                cut ? java.util.Arrays.copyOf(value, DEAD_LETTER_MAX_BYTES) : value);
+        if (cut) {
+            letter.headers().add(new RecordHeader(ORIGINAL_SIZE_HEADER,
+                    Integer.toString(value.length).getBytes(StandardCharsets.UTF_8)));
+        }
         letter.headers().add(new RecordHeader(REASON_HEADER, e.reason().label().getBytes(StandardCharsets.UTF_8)));
         String detail = e.getMessage() == null ? "" : e.getMessage();
         letter.headers().add(new RecordHeader(DETAIL_HEADER,
                 (record.topic() + "-" + record.partition() + "@" + record.offset() + ": " + detail).getBytes(StandardCharsets.UTF_8)));
         producer.send(letter);
-        events.rejected(e.reason());
+        uncommittedRejected.merge(e.reason(), 1L, Long::sum);
     }
 
     private void begin() {
@@ -163,6 +181,14 @@ public final class TallyStage implements Runnable, AutoCloseable {
             producer.commitTransaction();
             inTransaction = false;
             pending.clear();
+            uncommittedAccepted.forEach(events::accepted);
+            uncommittedRejected.forEach((reason, n) -> {
+                for (long i = 0; i < n; i++) {
+                    events.rejected(reason);
+                }
+            });
+            uncommittedAccepted.clear();
+            uncommittedRejected.clear();
         } catch (KafkaException e) {
             LOG.warn("tally commit failed ({}); rebuilding the assigned partitions from the committed state", e.toString());
             recover();
@@ -174,6 +200,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
         Clients.quietly(LOG, producer::abortTransaction);
         inTransaction = false;
         pending.clear();
+        uncommittedAccepted.clear();
+        uncommittedRejected.clear();
         Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
         producer = Clients.transactionalProducer(settings, "tally");
         Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
@@ -249,6 +277,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
             if (inTransaction) {
                 Clients.quietly(LOG, producer::abortTransaction);
                 inTransaction = false;
+                uncommittedAccepted.clear();
+                uncommittedRejected.clear();
             }
             pending.keySet().removeAll(partitions);
             partitions.forEach(states::remove);
