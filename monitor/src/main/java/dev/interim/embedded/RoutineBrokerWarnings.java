@@ -20,9 +20,9 @@ import java.util.List;
 public final class RoutineBrokerWarnings extends Filter<ILoggingEvent> {
 
     /** A routine warning: the logger it comes from, and text found in every such message. */
-    private record Routine(String logger, String... fragments) {
+    private record Routine(Level level, String logger, String... fragments) {
         boolean matches(ILoggingEvent event) {
-            if (!logger.equals(event.getLoggerName())) {
+            if (!level.equals(event.getLevel()) || !logger.equals(event.getLoggerName())) {
                 return false;
             }
             String message = event.getFormattedMessage();
@@ -39,14 +39,14 @@ public final class RoutineBrokerWarnings extends Filter<ILoggingEvent> {
     }
 
     private static final List<Routine> ROUTINE = List.of(
-            new Routine("org.apache.kafka.controller.QuorumController", "Performing controller activation."),
-            new Routine("org.apache.kafka.clients.NetworkClient", "NodeToControllerChannelManager",
+            new Routine(Level.WARN, "org.apache.kafka.controller.QuorumController", "Performing controller activation."),
+            new Routine(Level.WARN, "org.apache.kafka.clients.NetworkClient", "NodeToControllerChannelManager",
                     "Attempting to close NetworkClient that has already been closed."),
-            new Routine("org.apache.kafka.clients.NetworkClient", "[TransactionCoordinator id=",
+            new Routine(Level.WARN, "org.apache.kafka.clients.NetworkClient", "[TransactionCoordinator id=",
                     "could not be established. Node may not be available."),
             // Logged at ERROR when a restarted single node registers its controller a moment before
             // the controller is active; the registration is retried and succeeds.
-            new Routine("kafka.server.ControllerApis", "CONTROLLER_REGISTRATION", "NotControllerException"));
+            new Routine(Level.ERROR, "kafka.server.ControllerApis", "CONTROLLER_REGISTRATION", "NotControllerException"));
 
     @Override
     public FilterReply decide(ILoggingEvent event) {

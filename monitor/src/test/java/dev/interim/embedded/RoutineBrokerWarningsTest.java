@@ -38,6 +38,15 @@ class RoutineBrokerWarningsTest {
     }
 
     @Test
+    void dropsTheRegistrationRaceOfARestartedSingleNodeButNoOtherError() {
+        assertThat(decide("kafka.server.ControllerApis", Level.ERROR, "[ControllerApis nodeId=1] Unexpected error handling "
+                + "request RequestHeader(apiKey=CONTROLLER_REGISTRATION, apiVersion=0) -- NotControllerException"))
+                .isEqualTo(FilterReply.DENY);
+        assertThat(decide("kafka.server.ControllerApis", Level.ERROR, "[ControllerApis nodeId=1] Unexpected error handling "
+                + "request RequestHeader(apiKey=PRODUCE, apiVersion=11)")).isEqualTo(FilterReply.NEUTRAL);
+    }
+
+    @Test
     void letsEveryOtherMessagePass() {
         // The same text from a client of our own, or at another level, or another warning of the logger.
         assertThat(decide(NETWORK_CLIENT, Level.WARN, "[Producer clientId=p1] "
