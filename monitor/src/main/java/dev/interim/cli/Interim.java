@@ -22,6 +22,8 @@ import picocli.CommandLine.Spec;
             CheckCommand.class,
             RunCommand.class,
             DemoCommand.class,
+            ReplayCommand.class,
+            SimulateCommand.class,
         },
         exitCodeListHeading = "%nExit codes:%n",
         exitCodeList = {

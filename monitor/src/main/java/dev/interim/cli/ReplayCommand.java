@@ -1,0 +1,109 @@
+package dev.interim.cli;
+
+import dev.interim.config.ConfigLoader;
+import dev.interim.config.InterimConfig;
+import dev.interim.experiment.DecisionRecord;
+import dev.interim.replay.ProgressBar;
+import dev.interim.replay.Replay;
+import dev.interim.replay.ReplayListener;
+import dev.interim.replay.ReplayResult;
+import dev.interim.replay.ReplayText;
+import dev.interim.signal.DecisionJson;
+import java.io.PrintWriter;
+import java.nio.file.Path;
+import java.util.Locale;
+import java.util.concurrent.Callable;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.Spec;
+
+/**
+ * {@code interim replay}: the daemon's engine over a file of past events, looking on each
+ * experiment's schedule of event time (see {@link Replay}). Prints the decision timeline as it
+ * happens and a summary; a progress line on stderr when on a terminal. Nothing is sent anywhere.
+ */
+@Command(name = "replay",
+        mixinStandardHelpOptions = true,
+        version = Interim.VERSION,
+        sortOptions = false,
+        description = {
+            "Replay a file of past events through the same engine as the daemon, without Kafka: the same reading, "
+                    + "tallies, boundaries and decisions, with each experiment looking every look_every of EVENT time "
+                    + "(the time at events.time, which replay requires).",
+            "Prints every decision as it happens and a summary: events read, accepted and refused by reason, looks, "
+                    + "and per experiment, arm and metric the final decision with its look, fraction, z, boundary and "
+                    + "estimate. No webhook is called and nothing is written to Kafka.",
+        },
+        footerHeading = "%nLook timing:%n",
+        footer = {
+            "  An experiment's first event starts its clock t0; its looks are due at",
+            "  t0 + k * look_every. When an event stamped at or after the next due",
+            "  instant arrives, that look runs first, at the due instant, then the event",
+            "  counts. At the end of the file a final look runs at the instant then due.",
+            "",
+            "Examples:",
+            "  interim replay --config interim.yaml --events yesterday.ndjson.gz",
+            "  interim replay --config interim.yaml --events day.ndjson --format jsonl",
+        })
+public final class ReplayCommand implements Callable<Integer> {
+    @Spec
+    CommandSpec spec;
+
+    @Option(names = "--config", paramLabel = "FILE", required = true,
+            description = "The YAML configuration (as for run); it must set events.time. Secrets are not read.")
+    Path config;
+
+    @Option(names = "--events", paramLabel = "FILE", required = true,
+            description = "The events: one JSON event per line (NDJSON), in the order they happened; gzip-compressed "
+                    + "when the name ends in .gz or the content starts with the gzip magic bytes.")
+    Path events;
+
+    @Option(names = "--format", paramLabel = "text|jsonl", defaultValue = "text",
+            description = "The timeline on stdout: a readable line per decision (text, the default), or each decision "
+                    + "record as one line of JSON as the daemon publishes it (jsonl; the summary then goes to stderr).")
+    String format;
+
+    /** Whether stderr is a terminal; null: ask {@link System#console()}. Tests set it. */
+    Boolean terminal;
+
+    @Override
+    public Integer call() throws Exception {
+        boolean jsonl = jsonl(format);
+        InterimConfig c = ConfigLoader.loadWithoutSecrets(config);
+        if (c.events().time().isEmpty()) {
+            throw new IllegalArgumentException(config + ": " + Replay.missingTime());
+        }
+        PrintWriter out = spec.commandLine().getOut();
+        PrintWriter err = spec.commandLine().getErr();
+        ReplayText text = new ReplayText(c);
+        ProgressBar bar = (terminal != null ? terminal : System.console() != null) ? new ProgressBar(err) : null;
+        ReplayResult result = new Replay(c).run(events, new ReplayListener() {
+            @Override
+            public void decided(DecisionRecord d) {
+                if (bar != null) {
+                    bar.clear();
+                }
+                out.println(jsonl ? DecisionJson.writeString(d) : text.line(d));
+                out.flush();
+            }
+
+            @Override
+            public void progressed(Progress p) {
+                if (bar != null) {
+                    bar.show(p);
+                }
+            }
+        });
+        text.summary(result, events.toString(), jsonl ? err : out);
+        return Interim.OK;
+    }
+
+    private static boolean jsonl(String format) {
+        String f = format.strip().toLowerCase(Locale.ROOT);
+        if (!f.equals("text") && !f.equals("jsonl")) {
+            throw new IllegalArgumentException("unknown --format '" + format + "': use text or jsonl");
+        }
+        return f.equals("jsonl");
+    }
+}

@@ -1,0 +1,184 @@
+package dev.interim.replay;
+
+import dev.interim.config.Durations;
+import dev.interim.config.ExperimentConfig;
+import dev.interim.config.InterimConfig;
+import dev.interim.experiment.DecisionRecord;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.ExperimentView;
+import dev.interim.experiment.LookResult;
+import dev.interim.stats.ConfidenceInterval;
+import java.io.PrintWriter;
+import java.math.BigDecimal;
+import java.math.MathContext;
+import java.math.RoundingMode;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+
+/**
+ * A replay as people read it: one aligned line per decision as it happens, and a summary at the
+ * end. Numbers are locale-independent; an infinite boundary or interval end prints as {@code inf}.
+ */
+public final class ReplayText {
+    private final int experimentWidth;
+    private final int armWidth;
+    private final int metricWidth;
+
+    /** Columns sized to the names in {@code config}, so the timeline lines up as it streams. */
+    public ReplayText(InterimConfig config) {
+        int e = 0;
+        int a = 0;
+        int m = 0;
+        for (ExperimentConfig x : config.experiments()) {
+            ExperimentDefinition d = x.definition();
+            e = Math.max(e, d.id().length());
+            for (String arm : d.treatments()) {
+                a = Math.max(a, arm.length());
+            }
+            for (var metric : d.metrics()) {
+                m = Math.max(m, metric.name().length());
+            }
+        }
+        this.experimentWidth = e;
+        this.armWidth = a;
+        this.metricWidth = m;
+    }
+
+    /**
+     * One decision: {@code TIME  EXPERIMENT  ARM  METRIC  DECISION  look N  fraction F  z Z  boundary B}.
+     * A hold or resume before any look has no numbers and ends after the decision.
+     */
+    public String line(DecisionRecord d) {
+        StringBuilder s = new StringBuilder(160);
+        s.append(d.at()).append("  ");
+        s.append(pad(d.experiment(), experimentWidth)).append("  ");
+        s.append(pad(d.arm(), armWidth)).append("  ");
+        s.append(pad(d.metric(), metricWidth)).append("  ");
+        s.append(pad(d.decision(), 13));
+        if (d.look() > 0) {
+            s.append("  look ").append(d.look())
+                    .append("  fraction ").append(fixed(d.fraction(), 3))
+                    .append("  z ").append(fixed(d.statistic(), 3))
+                    .append("  boundary ").append(fixed(d.boundary(), 3));
+        }
+        return s.toString().stripTrailing();
+    }
+
+    /** The summary: counts, then per experiment its exposures and a row per arm × metric. */
+    public void summary(ReplayResult r, String file, PrintWriter out) {
+        double seconds = r.elapsed().toNanos() / 1e9;
+        out.println();
+        out.println("Replay of " + file + ": " + count(r.events()) + " events in " + fixed(seconds, 1) + " s ("
+                + count(seconds > 0 ? Math.round(r.events() / seconds) : r.events()) + " events/s)");
+        out.println("  accepted  " + count(r.accepted()));
+        StringBuilder reasons = new StringBuilder();
+        r.rejected().forEach((reason, n) -> reasons.append(reasons.length() == 0 ? "" : ", ").append(reason).append(' ')
+                .append(count(n)));
+        out.println("  rejected  " + count(r.rejectedTotal()) + (reasons.length() == 0 ? "" : " (" + reasons + ")"));
+        r.firstRejections().forEach((reason, where) -> out.println("    first " + reason + ": " + where));
+        out.println("  looks     " + count(r.looks()) + "   decisions " + count(r.decisions().size()));
+        for (ExperimentOutcome e : r.experiments()) {
+            experiment(e, out);
+        }
+        out.flush();
+    }
+
+    private void experiment(ExperimentOutcome e, PrintWriter out) {
+        ExperimentView v = e.view();
+        out.println();
+        if (e.events() == 0) {
+            out.println(e.id() + ": no events");
+            return;
+        }
+        out.println(e.id() + ": " + count(e.events()) + " events from " + e.firstEvent() + "; " + count(e.looks())
+                + " looks every " + Durations.format(e.lookEvery()) + ", the last at " + v.lastLook() + (e.late() > 0 ? "; " + count(e.late()) + " late events" : ""));
+        List<String> exposures = new ArrayList<>();
+        for (String arm : concat(v.control(), v.treatments())) {
+            exposures.add(arm + " " + count(v.exposures().getOrDefault(arm, 0L)));
+        }
+        out.println("  exposures: " + String.join(", ", exposures) + "; sample ratio p = "
+                + significant(v.sampleRatio().pValue(), 3) + (v.held() ? "; HELD (" + v.holdReason() + ")" : ""));
+        List<String[]> rows = new ArrayList<>();
+        rows.add(new String[] {"arm", "metric", "role", "decision", "look", "fraction", "z", "boundary", "estimate",
+            "interval"});
+        for (ComparisonOutcome c : e.comparisons()) {
+            LookResult l = c.last();
+            if (l == null) {
+                rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(), "-", "-", "-", "-", "-",
+                    "too few observations to look"});
+                continue;
+            }
+            rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(),
+                String.valueOf(l.look().number()), fixed(l.look().fraction(), 3), fixed(l.estimate().z(), 3),
+                fixed(l.boundary(), 3), significant(l.estimate().effect(), 4), interval(l.interval())});
+        }
+        table(rows, out);
+    }
+
+    /** Left-aligned names, right-aligned numbers, the interval left-aligned last. */
+    private static void table(List<String[]> rows, PrintWriter out) {
+        int columns = rows.get(0).length;
+        int[] widths = new int[columns];
+        for (String[] row : rows) {
+            for (int c = 0; c < columns; c++) {
+                widths[c] = Math.max(widths[c], row[c].length());
+            }
+        }
+        for (String[] row : rows) {
+            StringBuilder line = new StringBuilder("  ");
+            for (int c = 0; c < columns; c++) {
+                boolean left = c < 4 || c == columns - 1;
+                String gap = " ".repeat(widths[c] - row[c].length());
+                line.append(c == 0 ? "" : "  ").append(left ? row[c] + gap : gap + row[c]);
+            }
+            out.println(line.toString().stripTrailing());
+        }
+    }
+
+    private static List<String> concat(String first, List<String> rest) {
+        List<String> all = new ArrayList<>();
+        all.add(first);
+        all.addAll(rest);
+        return all;
+    }
+
+    private static String interval(ConfidenceInterval i) {
+        String lower = Double.isInfinite(i.lower()) ? "(-inf" : "[" + significant(i.lower(), 4);
+        String upper = Double.isInfinite(i.upper()) ? "inf)" : significant(i.upper(), 4) + "]";
+        return lower + ", " + upper + " " + significant(100 * i.level(), 4) + "%";
+    }
+
+    private static String pad(String s, int width) {
+        return s.length() >= width ? s : s + " ".repeat(width - s.length());
+    }
+
+    /** Fixed decimals; {@code inf}, {@code -inf}, {@code nan} for the rest. */
+    static String fixed(double x, int places) {
+        if (!Double.isFinite(x)) {
+            return nonFinite(x);
+        }
+        return String.format(Locale.ROOT, "%." + places + "f", x);
+    }
+
+    /** {@code digits} significant digits, plain (no exponent), trailing zeros dropped. */
+    static String significant(double x, int digits) {
+        if (!Double.isFinite(x)) {
+            return nonFinite(x);
+        }
+        if (x == 0) {
+            return "0";
+        }
+        BigDecimal d = new BigDecimal(x).round(new MathContext(digits, RoundingMode.HALF_EVEN)).stripTrailingZeros();
+        return d.scale() < 0 ? d.setScale(0).toPlainString() : d.toPlainString();
+    }
+
+    private static String nonFinite(double x) {
+        return Double.isNaN(x) ? "nan" : x > 0 ? "inf" : "-inf";
+    }
+
+    /** A count with thousands separators: {@code 1,234,567}. */
+    static String count(long n) {
+        return String.format(Locale.ROOT, "%,d", n);
+    }
+}
