@@ -189,6 +189,11 @@ class DaemonIntegrationTest {
         p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
         p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
         p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
+        // Test writers are plain (not idempotent) producers: a producer id handed out again by a
+        // restarted embedded broker must not turn the test's own writes into sequence errors.
+        p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, false);
+        p.put(ProducerConfig.ACKS_CONFIG, "all");
+        p.put(ProducerConfig.MAX_IN_FLIGHT_REQUESTS_PER_CONNECTION, 1);
         return new KafkaProducer<>(p);
     }
 
