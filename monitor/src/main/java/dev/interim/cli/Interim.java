@@ -24,6 +24,7 @@ import picocli.CommandLine.Spec;
             DemoCommand.class,
             ReplayCommand.class,
             SimulateCommand.class,
+            ReportCommand.class,
         },
         exitCodeListHeading = "%nExit codes:%n",
         exitCodeList = {

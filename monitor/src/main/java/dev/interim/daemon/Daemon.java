@@ -127,6 +127,7 @@ public final class Daemon implements AutoCloseable {
                 return judge.acknowledge(experiment);
             }
         }, () -> config.http().adminToken().filter(dev.interim.config.Secret::isRead).map(dev.interim.config.Secret::reveal));
+        dev.interim.dashboard.Dashboard.install(http, judge::views);
         start(tally, "interim-tally");
         start(judge, "interim-judge");
         if (sender != null) {

@@ -1,0 +1,189 @@
+package dev.interim.dashboard;
+
+import static dev.interim.chart.Markup.escape;
+
+import dev.interim.chart.Numbers;
+import dev.interim.chart.Sides;
+import dev.interim.experiment.Decision;
+import dev.interim.experiment.ExperimentView;
+import dev.interim.experiment.ExperimentView.ComparisonView;
+import dev.interim.experiment.LookPoint;
+import dev.interim.experiment.Tally;
+import dev.interim.stats.Moments;
+import java.time.Duration;
+import java.time.Instant;
+import java.time.ZoneOffset;
+import java.time.format.DateTimeFormatter;
+import java.util.Locale;
+import java.util.Map;
+
+/**
+ * The words and numbers shared by the dashboard and the report. None of them carries a string from
+ * configuration, so they are safe in HTML as they are; names go through {@link #h}.
+ */
+final class Wording {
+    private static final DateTimeFormatter TIME = DateTimeFormatter.ofPattern("yyyy-MM-dd HH:mm:ss 'UTC'", Locale.ROOT)
+            .withZone(ZoneOffset.UTC);
+
+    private Wording() {}
+
+    /**
+     * A decision as a badge: a glyph and words, so that it reads without colour; stop-harm in
+     * capitals. The class {@code badge-<label>} carries the colour.
+     */
+    static String badge(Decision d) {
+        String glyph;
+        String words;
+        switch (d) {
+            case STOP_HARM -> {
+                glyph = "⚠";
+                words = "STOP: HARM";
+            }
+            case STOP_BENEFIT -> {
+                glyph = "✓";
+                words = "stop: benefit";
+            }
+            case STOP_FUTILITY -> {
+                glyph = "○";
+                words = "stop: futility";
+            }
+            case COMPLETE -> {
+                glyph = "■";
+                words = "complete";
+            }
+            case HELD -> {
+                glyph = "‖";
+                words = "held";
+            }
+            default -> {
+                glyph = "→";
+                words = "continue";
+            }
+        }
+        return "<span class=\"badge badge-" + d.label() + "\" data-decision=\"" + d.label() + "\"><span aria-hidden=\"true\">"
+                + glyph + "</span> " + words + "</span>";
+    }
+
+    /** Rates are shown in percentage points, other metrics in their own unit. */
+    static boolean isRate(ComparisonView c) {
+        return c.kind() != null && c.kind().endsWith("-rate");
+    }
+
+    /** The effect estimate, e.g. {@code +1.42 pp} for a rate, {@code +12.5} for a mean. */
+    static String effect(ComparisonView c, double value) {
+        if (!Double.isFinite(value)) {
+            return Numbers.NONE;
+        }
+        return isRate(c) ? Numbers.signed(100 * value, 3) + " pp" : Numbers.signed(value, 4);
+    }
+
+    /** The repeated confidence interval, e.g. {@code [0.61, ∞) pp}; open ends are infinite. */
+    static String interval(ComparisonView c, LookPoint p) {
+        double lo = p.intervalLower();
+        double hi = p.intervalUpper();
+        if (Double.isNaN(lo) && Double.isNaN(hi)) {
+            return Numbers.NONE;
+        }
+        double scale = isRate(c) ? 100 : 1;
+        String left = Double.isInfinite(lo) ? "(-∞" : "[" + Numbers.precise(scale * lo, 3);
+        String right = Double.isInfinite(hi) ? "∞)" : Numbers.precise(scale * hi, 3) + "]";
+        return left + ", " + right + (isRate(c) ? " pp" : "");
+    }
+
+    /** The simultaneous level of the repeated confidence intervals: 1 − α of the comparison. */
+    static String level(ComparisonView c) {
+        return Numbers.significant(100 * (1 - c.alpha()), 4) + "%";
+    }
+
+    /** The boundary that matters now: the one the statistic is heading for (or the rejecting one). */
+    static String boundaryAt(ComparisonView c, LookPoint p) {
+        Sides s = Sides.of(c);
+        String upper = Numbers.fixed(p.upper(), 2) + " (" + s.upper() + ")";
+        String lower = Numbers.fixed(p.lower(), 2) + " (" + s.lower() + ")";
+        boolean hasUpper = Double.isFinite(p.upper()) || !Sides.FUTILITY.equals(s.upper());
+        boolean hasLower = Double.isFinite(p.lower()) || !Sides.FUTILITY.equals(s.lower());
+        if (hasUpper && hasLower) {
+            return p.statistic() >= 0 ? upper + " / " + lower : lower + " / " + upper;
+        }
+        return hasUpper ? upper : lower;
+    }
+
+    /** A spending function label ({@code obf}, {@code pocock}, {@code power:1.5}, ...) in words. */
+    static String spending(String label) {
+        if (label == null) {
+            return Numbers.NONE;
+        }
+        if (label.equals("obf")) {
+            return "O'Brien–Fleming-type α spending (Lan–DeMets)";
+        }
+        if (label.equals("pocock")) {
+            return "Pocock-type α spending (Lan–DeMets)";
+        }
+        if (label.startsWith("power:")) {
+            return "power-family α spending α·t^" + label.substring(6) + " (Kim–DeMets)";
+        }
+        if (label.startsWith("hsd:")) {
+            return "Hwang–Shih–DeCani α spending, γ = " + label.substring(4);
+        }
+        return label;
+    }
+
+    /** The sample-ratio check in words, escaped ("p < 0.000001"). */
+    static String sampleRatio(ExperimentView v) {
+        String p = h(Numbers.pValue(v.sampleRatio().pValue()));
+        return v.sampleRatio().mismatch() ? p + " — MISMATCH: the split is not as configured; decisions held" : p + " — split as configured";
+    }
+
+    /** An instant in UTC, to the second. */
+    static String time(Instant t) {
+        return t == null ? "never" : TIME.format(t);
+    }
+
+    /** How long ago, coarsely ({@code 4 s ago}, {@code 3 min ago}). */
+    static String ago(Instant t, Instant now) {
+        if (t == null || now == null) {
+            return "";
+        }
+        long s = Math.max(0, Duration.between(t, now).getSeconds());
+        if (s < 120) {
+            return s + " s ago";
+        }
+        if (s < 7200) {
+            return s / 60 + " min ago";
+        }
+        return s < 172_800 ? s / 3600 + " h ago" : s / 86_400 + " days ago";
+    }
+
+    /**
+     * What the last look saw of {@code arm} on {@code metric}: {@code 412 of 16,484 (2.50%)} for a
+     * rate, {@code n 16,484 · mean 212.4 · sd 30.1} for a mean or total; "none" without a tally.
+     */
+    static String observed(ExperimentView v, String metric, String arm) {
+        Tally t = v.tallies().getOrDefault(metric, Map.of()).get(arm);
+        if (t == null) {
+            return "none";
+        }
+        if (t instanceof Tally.Rate r) {
+            long n = r.counts().trials();
+            return Numbers.count(r.counts().successes()) + " of " + Numbers.count(n)
+                    + (n == 0 ? "" : " (" + Numbers.precise(100.0 * r.counts().successes() / n, 3) + "%)");
+        }
+        Moments m = ((Tally.Mean) t).moments();
+        if (m.count() == 0) {
+            return "n 0";
+        }
+        return "n " + Numbers.count(m.count()) + " · mean " + Numbers.precise(m.mean(), 4)
+                + (m.count() > 1 ? " · sd " + Numbers.precise(m.standardDeviation(), 3) : "");
+    }
+
+    /** A count of exposures, or "none". */
+    static String exposures(ExperimentView v, String arm) {
+        Long n = v.exposures().get(arm);
+        return n == null ? "none" : Numbers.count(n);
+    }
+
+    /** Plain text escaped for HTML (a shorter name at call sites). */
+    static String h(String text) {
+        return escape(text);
+    }
+}

@@ -1,0 +1,137 @@
+package dev.interim.dashboard;
+
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.ExperimentView;
+import dev.interim.experiment.Horizon;
+import dev.interim.experiment.MetricDefinition;
+import dev.interim.experiment.MetricKind;
+import dev.interim.experiment.Role;
+import dev.interim.experiment.StopAction;
+import dev.interim.experiment.Tally;
+import dev.interim.experiment.Worse;
+import dev.interim.sequential.SpendingFunction;
+import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RunningMoments;
+import java.time.Duration;
+import java.time.Instant;
+import java.util.HashMap;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.SplittableRandom;
+
+/**
+ * Invented experiments run through the real decision state machine ({@link ExperimentMonitor}),
+ * look after look, with traffic drawn from fixed random streams, so that the pages show what the
+ * daemon would show: a stop for harm, healthy arms that continue, a held experiment with a broken
+ * split, a futility boundary. The names and rates are made up; no statistical value is checked
+ * against them.
+ */
+final class Scenarios {
+    static final Instant T0 = Instant.parse("2027-03-08T09:00:00Z");
+
+    private Scenarios() {}
+
+    /** Three experiments after their looks, keyed by id. */
+    static Map<String, ExperimentView> invented() {
+        Map<String, ExperimentView> views = new LinkedHashMap<>();
+        for (ExperimentView v : List.of(onboarding(), searchRanking(), pricing())) {
+            views.put(v.id(), v);
+        }
+        return views;
+    }
+
+    /**
+     * "lantern-onboarding": a new sign-up flow in two variants; 'express' fails 2.6% of sign-ups
+     * instead of 1% and must be stopped for harm; 'guided' is healthy.
+     */
+    static ExperimentView onboarding() {
+        ExperimentDefinition d = new ExperimentDefinition("lantern-onboarding", "classic", List.of("guided", "express"), null,
+                Duration.ofMinutes(1), 200, true, 0.001, List.of(
+                        metric("signup-errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 60_000, StopAction.KILL),
+                        metric("first-task-seconds", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER, 1, "pocock", 60_000, StopAction.PAGE),
+                        metric("activated", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 2, "obf", 60_000, StopAction.NONE)));
+        Map<String, double[]> arms = new LinkedHashMap<>();
+        // error rate, mean seconds, activation rate
+        arms.put("classic", new double[] {0.010, 42, 0.30});
+        arms.put("guided", new double[] {0.010, 40, 0.32});
+        arms.put("express", new double[] {0.026, 43, 0.30});
+        return run(d, arms, 14, 1500, Map.of(), 71);
+    }
+
+    /** "harbor-search-ranking": the treatment gets a third of the traffic it should; decisions are held. */
+    static ExperimentView searchRanking() {
+        ExperimentDefinition d = new ExperimentDefinition("harbor-search-ranking", "bm25", List.of("learned"), null,
+                Duration.ofMinutes(1), 200, false, 0.001, List.of(
+                        metric("zero-result-rate", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 50_000, StopAction.KILL)));
+        Map<String, double[]> arms = new LinkedHashMap<>();
+        arms.put("bm25", new double[] {0.05, 0, 0});
+        arms.put("learned", new double[] {0.05, 0, 0});
+        return run(d, arms, 6, 2000, Map.of("learned", 0.34), 72);
+    }
+
+    /** "quay-pricing": a one-sided primary metric with a powered horizon and a futility boundary; no true effect. */
+    static ExperimentView pricing() {
+        MetricDefinition conversion = new MetricDefinition("checkout-conversion", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, 1,
+                SpendingFunction.parse("hsd:-4"), SpendingFunction.parse("hsd:-2"), new Horizon.Powered(0.9, 0.02, 4), null,
+                StopAction.NONE);
+        ExperimentDefinition d = new ExperimentDefinition("quay-pricing", "list-price", List.of("bundle"), null,
+                Duration.ofMinutes(1), 200, true, 0.001, List.of(conversion));
+        Map<String, double[]> arms = new LinkedHashMap<>();
+        arms.put("list-price", new double[] {0.10, 0, 0.10});
+        arms.put("bundle", new double[] {0.10, 0, 0.11});
+        return run(d, arms, 9, 250, Map.of(), 73);
+    }
+
+    static MetricDefinition metric(String name, MetricKind kind, Role role, Worse worse, int sides, String spending, long maxPerArm,
+                                   StopAction action) {
+        return new MetricDefinition(name, kind, role, worse, 0.05, sides, SpendingFunction.parse(spending), null,
+                new Horizon.MaxPerArm(maxPerArm), null, action);
+    }
+
+    /**
+     * Looks once a minute; each look adds {@code perLook} events per arm (times the arm's share, 1
+     * unless given), drawn from the arm's parameters.
+     */
+    private static ExperimentView run(ExperimentDefinition d, Map<String, double[]> arms, int looks, int perLook,
+                                      Map<String, Double> share, long stream) {
+        ExperimentMonitor monitor = new ExperimentMonitor(d);
+        SplittableRandom random = new SplittableRandom(stream);
+        Map<String, long[]> rates = new HashMap<>();
+        Map<String, RunningMoments> means = new HashMap<>();
+        Map<String, long[]> units = new HashMap<>();
+        Map<String, Long> exposures = new HashMap<>();
+        for (int look = 1; look <= looks; look++) {
+            for (Map.Entry<String, double[]> arm : arms.entrySet()) {
+                int n = (int) Math.round(perLook * share.getOrDefault(arm.getKey(), 1.0));
+                double[] p = arm.getValue();
+                long[] r = rates.computeIfAbsent(arm.getKey(), a -> new long[2]);
+                long[] u = units.computeIfAbsent(arm.getKey(), a -> new long[2]);
+                RunningMoments m = means.computeIfAbsent(arm.getKey(), a -> new RunningMoments());
+                for (int i = 0; i < n; i++) {
+                    r[0] += random.nextDouble() < p[0] ? 1 : 0;
+                    u[0] += random.nextDouble() < p[2] ? 1 : 0;
+                    m.accept(p[1] * (0.4 - Math.log(1 - random.nextDouble()) * 0.6));
+                }
+                r[1] += n;
+                u[1] += n;
+                exposures.merge(arm.getKey(), (long) n, Long::sum);
+            }
+            Map<String, Map<String, Tally>> tallies = new HashMap<>();
+            for (MetricDefinition metric : d.metrics()) {
+                Map<String, Tally> byArm = new HashMap<>();
+                for (String arm : arms.keySet()) {
+                    byArm.put(arm, switch (metric.kind()) {
+                        case EVENT_RATE -> new Tally.Rate(new ProportionCounts(rates.get(arm)[0], rates.get(arm)[1]));
+                        case UNIT_RATE -> new Tally.Rate(new ProportionCounts(units.get(arm)[0], units.get(arm)[1]));
+                        default -> new Tally.Mean(means.get(arm).snapshot());
+                    });
+                }
+                tallies.put(metric.name(), byArm);
+            }
+            monitor.look(T0.plus(Duration.ofMinutes(look)), Map.copyOf(exposures), tallies);
+        }
+        return monitor.view();
+    }
+}
