@@ -34,6 +34,11 @@ public final class DemoCommand implements Callable<Integer> {
             description = "Give up after this many minutes if nothing was decided (default: ${DEFAULT-VALUE}).")
     double minutes;
 
+    @Option(names = "--save-events", paramLabel = "FILE",
+            description = "Also write every event sent to FILE, one JSON line each, to replay later: "
+                    + "interim replay --demo --events FILE.")
+    Path saveEvents;
+
     @Option(names = "--data-dir", paramLabel = "DIR",
             description = "Where the embedded broker keeps its data (default: a new temporary directory).")
     Path dataDir;
@@ -46,7 +51,7 @@ public final class DemoCommand implements Callable<Integer> {
         Path dir = dataDir != null ? dataDir : Files.createTempDirectory("interim-demo-");
         PrintWriter out = spec.commandLine().getOut();
         PrintWriter err = spec.commandLine().getErr();
-        Demo demo = new Demo(out, err, dir, Duration.ofMillis((long) (minutes * 60_000)), keepRunning);
+        Demo demo = new Demo(out, err, dir, Duration.ofMillis((long) (minutes * 60_000)), keepRunning, saveEvents);
         return demo.run() ? Interim.OK : Interim.FAILURE;
     }
 }

@@ -50,9 +50,13 @@ public final class ReplayCommand implements Callable<Integer> {
     @Spec
     CommandSpec spec;
 
-    @Option(names = "--config", paramLabel = "FILE", required = true,
+    @Option(names = "--config", paramLabel = "FILE",
             description = "The YAML configuration (as for run); it must set events.time. Secrets are not read.")
     Path config;
+
+    @Option(names = "--demo", description = "Replay with the demo scenario's configuration (events saved by "
+            + "'interim demo --save-events FILE') instead of --config.")
+    boolean demo;
 
     @Option(names = "--events", paramLabel = "FILE", required = true,
             description = "The events: one JSON event per line (NDJSON), in the order they happened; gzip-compressed "
@@ -70,9 +74,13 @@ public final class ReplayCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         boolean jsonl = jsonl(format);
-        InterimConfig c = ConfigLoader.loadWithoutSecrets(config);
+        if (demo == (config != null)) {
+            throw new IllegalArgumentException(demo ? "give either --config or --demo, not both"
+                    : "give --config FILE (a YAML configuration with events.time), or --demo");
+        }
+        InterimConfig c = demo ? dev.interim.demo.DemoScenario.configuration() : ConfigLoader.loadWithoutSecrets(config);
         if (c.events().time().isEmpty()) {
-            throw new IllegalArgumentException(config + ": " + Replay.missingTime());
+            throw new IllegalArgumentException((demo ? "the demo scenario" : config.toString()) + ": " + Replay.missingTime());
         }
         PrintWriter out = spec.commandLine().getOut();
         PrintWriter err = spec.commandLine().getErr();

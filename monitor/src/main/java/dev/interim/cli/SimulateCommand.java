@@ -63,7 +63,6 @@ public final class SimulateCommand implements Callable<Integer> {
     static final long MIN_RUNS = 100;
     static final long MAX_RUNS = 1_000_000_000L;
     static final int MAX_THREADS = 1024;
-    private static final String DEMO = "/dev/interim/demo/demo.yaml";
 
     @Spec
     CommandSpec spec;
@@ -210,16 +209,7 @@ public final class SimulateCommand implements Callable<Integer> {
         if (config != null) {
             return ConfigLoader.loadWithoutSecrets(config);
         }
-        try (InputStream in = SimulateCommand.class.getResourceAsStream(DEMO)) {
-            if (in == null) {
-                throw new IllegalStateException("the demo scenario " + DEMO + " is missing from the jar");
-            }
-            // The demo fills these placeholders when it starts its broker; a simulation reads only the experiments.
-            String yaml = new String(in.readAllBytes(), StandardCharsets.UTF_8)
-                    .replace("${DEMO_HTTP_PORT}", "0")
-                    .replace("${DEMO_WEBHOOK_URL}", "http://127.0.0.1:9/unused");
-            return ConfigLoader.parseWithoutSecrets(yaml);
-        }
+        return dev.interim.demo.DemoScenario.configuration();
     }
 
     /** The comparisons of the selected experiments and metrics; unknown names are refused, listing the known ones. */

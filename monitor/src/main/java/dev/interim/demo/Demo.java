@@ -40,13 +40,20 @@ public final class Demo {
     private final Path dataDir;
     private final Duration limit;
     private final boolean keepRunning;
+    private final Path saveEvents;
 
     public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning) {
+        this(out, err, dataDir, limit, keepRunning, null);
+    }
+
+    /** With {@code saveEvents}, every event the demo sends is also written there, one JSON line each, for replay. */
+    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning, Path saveEvents) {
         this.out = out;
         this.err = err;
         this.dataDir = dataDir;
         this.limit = limit;
         this.keepRunning = keepRunning;
+        this.saveEvents = saveEvents;
     }
 
     /** Runs the scenario; returns true when the harmful build was stopped for harm and the healthy one was not. */
@@ -55,21 +62,30 @@ public final class Demo {
         new SecureRandom().nextBytes(key);
         String secret = Secret.PREFIX + Base64.getEncoder().encodeToString(key);
         try (FlagServiceStandIn flags = new FlagServiceStandIn(Secret.parse(secret), this::say)) {
-            String yaml = resource("demo.yaml")
-                    .replace("${DEMO_HTTP_PORT}", "0")
-                    .replace("${DEMO_WEBHOOK_URL}", flags.url().toString());
+            String yaml = DemoScenario.yaml(0, flags.url().toString());
             InterimConfig config = ConfigLoader.parse(yaml, Map.of("DEMO_WEBHOOK_KEY", secret));
             say("starting the embedded Kafka broker and the daemon (data in " + dataDir + ")");
             try (Daemon daemon = Daemon.start(config, new Daemon.Options(dataDir, null, this::print));
-                 KafkaProducer<String, String> producer = producer(daemon.bootstrapServers())) {
+                 KafkaProducer<String, String> producer = producer(daemon.bootstrapServers());
+                 java.io.BufferedWriter saved = saveEvents == null ? null
+                         : java.nio.file.Files.newBufferedWriter(saveEvents, StandardCharsets.UTF_8)) {
                 say("metrics at http://127.0.0.1:" + daemon.httpPort() + "/metrics; shoppers arriving for "
                         + String.join(", ", DemoTraffic.BUILDS));
                 DemoTraffic traffic = new DemoTraffic(20261202);
                 long start = System.nanoTime();
                 long decidedAt = -1;
                 while (keepRunning || System.nanoTime() - start < limit.toNanos()) {
-                    traffic.shoppers(400, (shopper, json) ->
-                            producer.send(new ProducerRecord<>(config.kafka().inputTopics().get(0), shopper, json)));
+                    traffic.shoppers(400, System.currentTimeMillis(), (shopper, json) -> {
+                        producer.send(new ProducerRecord<>(config.kafka().inputTopics().get(0), shopper, json));
+                        if (saved != null) {
+                            try {
+                                saved.write(json);
+                                saved.newLine();
+                            } catch (IOException e) {
+                                throw new java.io.UncheckedIOException(e);
+                            }
+                        }
+                    });
                     producer.flush();
                     Thread.sleep(250);
                     if (decidedAt < 0 && !flags.kills().isEmpty()) {
@@ -127,15 +143,6 @@ public final class Demo {
         synchronized (err) {
             err.println("demo: " + line);
             err.flush();
-        }
-    }
-
-    private static String resource(String name) throws IOException {
-        try (InputStream in = Demo.class.getResourceAsStream(name)) {
-            if (in == null) {
-                throw new IOException("the demo scenario " + name + " is missing from the jar");
-            }
-            return new String(in.readAllBytes(), StandardCharsets.UTF_8);
         }
     }
 

@@ -36,13 +36,14 @@ public final class DemoTraffic {
         return Math.floorMod(shopperId.hashCode() * 0x9E3779B1, 3);
     }
 
-    /** Emits the events of {@code shoppers} new shoppers as (shopper id, JSON). */
-    public void shoppers(int shoppers, BiConsumer<String, String> emit) {
+    /** Emits the events of {@code shoppers} new shoppers as (shopper id, JSON), stamped {@code atMillis}. */
+    public void shoppers(int shoppers, long atMillis, BiConsumer<String, String> emit) {
         for (int s = 0; s < shoppers; s++) {
             String id = "shopper-" + (shopper++);
             int b = build(id);
             Profile p = PROFILES[b];
-            String head = "{\"rollout\":\"" + EXPERIMENT + "\",\"build\":\"" + BUILDS[b] + "\",\"shopper\":\"" + id + "\"";
+            String head = "{\"at\":" + atMillis + ",\"rollout\":\"" + EXPERIMENT + "\",\"build\":\"" + BUILDS[b]
+                    + "\",\"shopper\":\"" + id + "\"";
             emit.accept(id, head + ",\"step\":\"basket\"}");
             boolean failed = random.nextDouble() < p.failure();
             double ms = Math.max(5, p.meanMs() + p.sdMs() * gaussian());

@@ -27,7 +27,9 @@ class DemoTest {
     void theDemoStopsTheHarmfulBuildAndNotTheHealthyOne(@TempDir Path dir) throws Exception {
         StringWriter out = new StringWriter();
         StringWriter err = new StringWriter();
-        boolean ok = new Demo(new PrintWriter(out), new PrintWriter(err), dir, Duration.ofMinutes(3), false).run();
+        Path saved = dir.resolve("demo-events.ndjson");
+        boolean ok = new Demo(new PrintWriter(out), new PrintWriter(err), dir.resolve("kafka"), Duration.ofMinutes(3), false,
+                saved).run();
         assertThat(ok).as(err.toString()).isTrue();
         List<JsonNode> records = new ArrayList<>();
         ObjectMapper json = new ObjectMapper();
@@ -47,5 +49,17 @@ class DemoTest {
         });
         assertThat(err.toString()).contains("signature verified; switching off build 'candidate-b'");
         assertThat(out.toString()).contains("Summary");
+
+        // The same events replayed offline, looks by event time: the same verdict.
+        var result = new dev.interim.replay.Replay(DemoScenario.configuration()).run(saved, new dev.interim.replay.ReplayListener() { });
+        var view = result.views().get(DemoTraffic.EXPERIMENT);
+        assertThat(result.rejectedTotal()).isZero();
+        assertThat(view.comparisons()).anySatisfy(c -> {
+            assertThat(c.arm()).isEqualTo("candidate-b");
+            assertThat(c.role()).isEqualTo("guardrail");
+            assertThat(c.decision()).isEqualTo(dev.interim.experiment.Decision.STOP_HARM);
+        });
+        assertThat(view.comparisons()).filteredOn(c -> c.arm().equals("candidate-a"))
+                .allSatisfy(c -> assertThat(c.decision().isFinal()).isFalse());
     }
 }
