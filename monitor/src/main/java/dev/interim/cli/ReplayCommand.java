@@ -68,6 +68,11 @@ public final class ReplayCommand implements Callable<Integer> {
                     + "record as one line of JSON as the daemon publishes it (jsonl; the summary then goes to stderr).")
     String format;
 
+    @Option(names = "--report-dir", paramLabel = "DIR",
+            description = "Also write a post-mortem report (as 'interim report' makes from a running daemon) for each "
+                    + "experiment, as DIR/report-<experiment>.html.")
+    Path reportDir;
+
     /** Whether stderr is a terminal; null: ask {@link System#console()}. Tests set it. */
     Boolean terminal;
 
@@ -104,6 +109,15 @@ public final class ReplayCommand implements Callable<Integer> {
             }
         });
         text.summary(result, events.toString(), jsonl ? err : out);
+        if (reportDir != null) {
+            java.nio.file.Files.createDirectories(reportDir);
+            for (var view : result.views().values()) {
+                Path file = reportDir.resolve("report-" + view.id() + ".html");
+                dev.interim.dashboard.Report.write(view, file, "replay of " + events.getFileName(), java.time.Instant.now());
+                err.println("interim: wrote " + file);
+            }
+            err.flush();
+        }
         return Interim.OK;
     }
 

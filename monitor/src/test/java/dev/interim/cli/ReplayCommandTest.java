@@ -84,6 +84,18 @@ class ReplayCommandTest {
         assertThat(lines.stream().filter(l -> l.startsWith("  encoder-")).count()).as("2 arms x 3 metrics").isEqualTo(6);
     }
 
+    /** A replay can leave the same post-mortem report a running daemon gives (invented scenario; no statistical values). */
+    @Test
+    void writesAPostMortemReportPerExperiment(@org.junit.jupiter.api.io.TempDir java.nio.file.Path dir) throws IOException {
+        Cli.Result r = replay(false, "--config", CONFIG, "--events", EVENTS, "--report-dir", dir.toString());
+
+        assertThat(r.exit()).isZero();
+        java.nio.file.Path report = dir.resolve("report-lantern-uploads-2031-03.html");
+        assertThat(r.err()).contains("wrote " + report);
+        String html = java.nio.file.Files.readString(report);
+        assertThat(html).contains("lantern-uploads-2031-03", "encoder-b", "<svg");
+    }
+
     @Test
     void jsonLinesAreDecisionRecordsAndTheSummaryGoesToStderr() {
         Cli.Result r = replay(false, "--config", CONFIG, "--events", EVENTS, "--format", "jsonl");
