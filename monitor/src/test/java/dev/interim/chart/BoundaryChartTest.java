@@ -19,6 +19,8 @@ import org.w3c.dom.Element;
  * be said. The looks are invented numbers (no statistical claim is made here); the reference for
  * positions is the axes of the picture, interpolated linearly between two tick labels.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class BoundaryChartTest {
     private static final Instant T0 = Instant.parse("2027-01-04T10:00:00Z");
     private static final double INF = Double.POSITIVE_INFINITY;

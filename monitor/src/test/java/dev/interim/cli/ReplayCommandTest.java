@@ -21,6 +21,8 @@ import picocli.CommandLine;
  * timeline, the summary, the JSON lines, the progress line, and exit code 2 for bad input. What the
  * replay decides is checked in ReplayScenarioTest; here, what the command makes of it.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class ReplayCommandTest {
     @TempDir
     Path dir;

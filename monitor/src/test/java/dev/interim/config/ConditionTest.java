@@ -11,6 +11,8 @@ import org.junit.jupiter.api.Test;
  * The {@code counts_if} conditions, read from YAML and tested against JSON values as events carry
  * them. The semantics are the configuration reference's: types must match, numbers compare by value.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class ConditionTest {
     private static final ObjectMapper JSON = new ObjectMapper();
 

@@ -12,6 +12,8 @@ import java.util.Map;
 import org.junit.jupiter.api.Test;
 
 /** What a key left out means, as the configuration reference (docs/configuration.md) states it. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DefaultsTest {
     private final InterimConfig config = ConfigLoader.parse(Configs.VALID, Configs.ENV);
 

@@ -9,6 +9,8 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.ValueSource;
 
 /** The duration form of the configuration reference: a whole number and one unit. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DurationsTest {
 
     @Test

@@ -17,6 +17,8 @@ import org.junit.jupiter.params.provider.MethodSource;
  * configuration ({@link Configs#VALID}); the rules come from the configuration reference
  * (docs/configuration.md) and the domain classes, no statistical values here.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class InvalidConfigTest {
 
     @Test

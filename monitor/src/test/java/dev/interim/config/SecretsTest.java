@@ -12,6 +12,8 @@ import org.junit.jupiter.api.Test;
  * Secrets come from environment variables and never show: not in toString, not in error messages.
  * Each test uses distinctive secret values and searches every printed text for them.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class SecretsTest {
     private static final String ADMIN_TOKEN = "adm1n-T0KEN-do-not-print-4471";
     private static final String KAFKA_PASSWORD = "kafka-PASSWORD-do-not-print-9120";

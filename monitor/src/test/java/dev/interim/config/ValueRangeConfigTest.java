@@ -20,6 +20,8 @@ import org.junit.jupiter.params.provider.MethodSource;
  * optional): how it is read, what it allows, and every way of writing it wrong, each refused at its
  * key path. The rules are those of docs/configuration.md; no statistical values here.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class ValueRangeConfigTest {
 
     /** {@link Configs#VALID} with an event-mean first among the metrics, written with {@code extra}. */

@@ -54,6 +54,8 @@ import org.junit.jupiter.api.io.TempDir;
  * <p>The corpus's records above {@link JsonEventReader#MAX_BYTES} are left to BadEventCorpusTest:
  * the broker's default limit (1 MiB) keeps them off the input topic.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class BadInputDaemonTest {
     /** The fixed random stream the invented events and random bytes are drawn from. */
     private static final long RANDOM_STREAM = 6_2026L;

@@ -17,6 +17,8 @@ import org.junit.jupiter.api.io.TempDir;
  * stopped mid-stream (the other takes over its partitions and experiments after the rebalance).
  * Ground truth is the stream the test writes; no statistical values here.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class BrokerRestartAndRebalanceTest {
     private final CrashRecoveryTest checks = new CrashRecoveryTest();
 

@@ -37,6 +37,8 @@ import org.junit.jupiter.api.io.TempDir;
  * writing (counts exactly, sums within 1e-9 relative), and the decisions topic holds no duplicate
  * decision id and no gap in any comparison's chain of states.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class CrashRecoveryTest {
     static final int EVENTS = 300_000;
     static final String[] EXPERIMENTS = {"harbor-a", "harbor-b", "harbor-c"};

@@ -36,6 +36,8 @@ import org.junit.jupiter.api.io.TempDir;
  * for harm on the error guardrail, with its record on the decisions topic; the healthy one not;
  * unreadable events must land in the dead-letter topic with their reason and be counted.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DaemonIntegrationTest {
     static final String CONFIG = """
             kafka:

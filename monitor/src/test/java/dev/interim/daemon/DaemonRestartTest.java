@@ -22,6 +22,8 @@ import org.junit.jupiter.api.io.TempDir;
  * and the looks go on from where they were, so the α already spent is kept. Counts are checked
  * against the events the test wrote (exact ground truth; no statistical values here).
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DaemonRestartTest {
     static final String CONFIG = """
             kafka:

@@ -24,6 +24,8 @@ import org.junit.jupiter.api.io.TempDir;
  * their state, one experiment's look history, and hold/resume behind a bearer token. An invented
  * experiment; no statistical values here.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class ExperimentApiTest {
     static final String TOKEN = "op-token-7f3a9c21d4e5b6a8";
     static final String CONFIG = """

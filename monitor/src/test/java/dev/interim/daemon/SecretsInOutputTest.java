@@ -32,6 +32,8 @@ import org.junit.jupiter.api.io.TempDir;
  * answers the API and refuses a wrong token — and none of the three secrets appears in its output,
  * its meters, its API answers or its error messages. Its HTTP endpoint listens on 127.0.0.1 only.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class SecretsInOutputTest {
     private final HttpClient http = HttpClient.newHttpClient();
 

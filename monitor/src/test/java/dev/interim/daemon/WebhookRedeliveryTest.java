@@ -30,6 +30,8 @@ import org.junit.jupiter.api.io.TempDir;
  * is delivered — once, with the same decision id and a valid signature; a third start delivers
  * nothing more. An invented rollout; the receiver verifies signatures as a real one would.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class WebhookRedeliveryTest {
     static final String CONFIG = """
             kafka:

@@ -21,6 +21,8 @@ import org.junit.jupiter.api.Test;
  * infinities and NaN written as null) must read back into the very same view, so that a report
  * made from a daemon equals one made in-process; and every failure must say what to do.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DaemonClientTest {
 
     /**

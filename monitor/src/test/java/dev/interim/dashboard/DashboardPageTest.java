@@ -32,6 +32,8 @@ import org.w3c.dom.Element;
  * nothing referenced outside the page. The views come from the real decision state machine on
  * invented traffic ({@link Scenarios}); what is checked is that the page says what the views say.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DashboardPageTest {
     private static final Instant NOW = Scenarios.T0.plusSeconds(900);
     private static final Map<String, ExperimentView> VIEWS = Scenarios.invented();

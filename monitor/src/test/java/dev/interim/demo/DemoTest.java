@@ -20,6 +20,8 @@ import org.junit.jupiter.api.io.TempDir;
  * stopped for harm on a guardrail and switched off; the healthy one must not be stopped. No
  * statistical values here; the scenario's rates are made up (see DemoTraffic).
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DemoTest {
 
     @Test

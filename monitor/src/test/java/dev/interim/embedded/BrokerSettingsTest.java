@@ -11,6 +11,8 @@ import kafka.server.KafkaConfig;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class BrokerSettingsTest {
     @TempDir
     Path dataDir;

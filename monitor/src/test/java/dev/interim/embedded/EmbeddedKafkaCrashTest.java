@@ -20,6 +20,8 @@ import org.junit.jupiter.api.io.TempDir;
  * left open is aborted when the same transactional id starts again, and the address is the same.
  */
 @Timeout(value = 3, unit = TimeUnit.MINUTES, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class EmbeddedKafkaCrashTest {
     @TempDir
     Path dataDir;

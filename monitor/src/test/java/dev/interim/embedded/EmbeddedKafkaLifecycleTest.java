@@ -21,6 +21,8 @@ import org.junit.jupiter.api.io.TempDir;
 
 /** Start, restart and shutdown of the embedded broker: data and cluster id kept, no thread left behind. */
 @Timeout(value = 3, unit = TimeUnit.MINUTES, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class EmbeddedKafkaLifecycleTest {
     /** Threads end during awaitShutdown; this only absorbs the last instants of their run methods. */
     private static final Duration THREADS_END_WITHIN = Duration.ofSeconds(10);

@@ -25,6 +25,8 @@ import org.junit.jupiter.api.io.TempDir;
  * rely on. One broker for the class; each test uses topics and transactional ids of its own.
  */
 @Timeout(value = 3, unit = TimeUnit.MINUTES, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class EmbeddedKafkaTransactionsTest {
     @TempDir
     static Path dataDir;

@@ -9,6 +9,8 @@ import ch.qos.logback.core.spi.FilterReply;
 import org.junit.jupiter.api.Test;
 
 /** The messages are those Kafka 4.4 logged on starts, stops and a restart after a crash of the embedded broker. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class RoutineBrokerWarningsTest {
     private static final String CONTROLLER = "org.apache.kafka.controller.QuorumController";
     private static final String NETWORK_CLIENT = "org.apache.kafka.clients.NetworkClient";

@@ -15,6 +15,8 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /** The endpoint over real sockets on the loopback interface. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class HttpEndpointTest {
     private static final String METRICS = "# HELP interim_held held\n# TYPE interim_held gauge\ninterim_held{experiment=\"basket-v7\"} 0.0\n";
     private static HttpClient client;

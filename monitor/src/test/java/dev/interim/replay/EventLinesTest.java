@@ -14,6 +14,8 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
 /** Lines of plain and gzip files: line ends, the last line, lines too long to hold, bytes counted. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class EventLinesTest {
     @TempDir
     Path dir;

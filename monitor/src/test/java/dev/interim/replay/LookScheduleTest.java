@@ -6,6 +6,8 @@ import static org.assertj.core.api.Assertions.assertThatThrownBy;
 import org.junit.jupiter.api.Test;
 
 /** The look rule of a replay, instant by instant (the rule is written in {@link LookSchedule}). */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class LookScheduleTest {
     private static final long NONE = LookSchedule.NONE;
 

@@ -7,6 +7,8 @@ import java.io.StringWriter;
 import org.junit.jupiter.api.Test;
 
 /** The progress line: its text, redrawn in place, and wiped at the end. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class ProgressBarTest {
     @Test
     void theLineShowsTheShareOfTheFileTheEventsAndTheRate() {

@@ -42,6 +42,8 @@ import org.junit.jupiter.api.io.TempDir;
  * is given, at the same instants, tallies computed here from the file by other code (a JSON tree
  * per line, exact integer sums for the latencies).
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class ReplayScenarioTest {
     private static final String ID = LanternTraffic.EXPERIMENT;
     private static final long MINUTE = 60_000;

@@ -17,6 +17,8 @@ import org.junit.jupiter.api.Test;
  * The JSON layout of decision records (docs/decision-record.md) and the reading of nulls. Expected
  * texts are written out by hand from that document, not produced by the writer.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class DecisionJsonTest {
 
     @Test

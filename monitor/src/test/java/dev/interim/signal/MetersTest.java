@@ -22,6 +22,8 @@ import org.junit.jupiter.api.Test;
  * numbers fed in; the statistics are those of the monitor's own last look (the experiment layer is
  * the source here, the meters only carry it).
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class MetersTest {
     private static final String EXPERIMENT = "basket-v7";
     private static final String[] CANDIDATE = {"experiment", EXPERIMENT, "arm", "candidate", "metric", "failed_payments"};

@@ -28,6 +28,8 @@ import org.slf4j.LoggerFactory;
  * (captured at DEBUG). Each check collects the strings a user or an operator could see and looks
  * for the key in its serialised form, its base64 body and its raw bytes.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class SecretStaysHiddenTest {
     private static final byte[] RAW = "interim-test-key-0123456789abcdef".getBytes(StandardCharsets.US_ASCII);
     private static final String BASE64 = Base64.getEncoder().encodeToString(RAW);

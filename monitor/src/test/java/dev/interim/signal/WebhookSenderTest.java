@@ -25,6 +25,8 @@ import org.junit.jupiter.api.Test;
  * Delivery of the kill webhook to a local receiver that verifies every signature. Waits go to a
  * recording sleeper, so nothing here waits for a backoff; the jitter source is fixed.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class WebhookSenderTest {
     static final Secret KEY = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
     static final Instant NOW = Instant.parse("2026-03-01T00:04:10Z");

@@ -16,6 +16,8 @@ import org.junit.jupiter.api.Test;
  * Every line of the curated corpus {@code bad-events.txt} is refused with the reason the line names,
  * and reaches the sink not at all. The corpus covers every reason; its header says how it is written.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class BadEventCorpusTest {
     private final JsonEventReader reader = new JsonEventReader(TileEvents.config());
 

@@ -43,6 +43,8 @@ import net.jqwik.api.constraints.Size;
  * surrogates; duplicate keys; a byte order mark; trailing garbage. Each property runs at most 1,000
  * tries (fewer where one try is a megabyte), the whole class in a few seconds.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class JsonEventReaderFuzzTest {
     private static final JsonEventReader READER = new JsonEventReader(TileEvents.config());
     private static final Catalog CATALOG = new Catalog(TileEvents.config().experiments().stream()

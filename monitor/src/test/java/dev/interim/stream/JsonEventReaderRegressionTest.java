@@ -17,6 +17,8 @@ import org.junit.jupiter.api.Test;
  * each saying what went wrong before the fix. The configuration is the invented
  * {@code tile-events.yaml}.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class JsonEventReaderRegressionTest {
     private final JsonEventReader reader = new JsonEventReader(TileEvents.config());
     private final Catalog catalog = new Catalog(TileEvents.config().experiments().stream()

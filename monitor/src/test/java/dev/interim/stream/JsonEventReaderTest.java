@@ -18,6 +18,8 @@ import org.junit.jupiter.api.Test;
  * every refusal. The scenario is invented (a fictional parcel-routing canary). No statistical
  * values here: counts and sums are checked against the events written in the test.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class JsonEventReaderTest {
     static final String CONFIG = """
             kafka:

@@ -18,6 +18,8 @@ import org.junit.jupiter.api.Test;
  * counted by hand from the few invented events below, by the rules of docs/configuration.md (metric
  * kinds): event-level metrics per event, unit-level ones per unit in the arm of its first event.
  */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class OfflineTallyTest {
     private static final String YAML = """
             kafka:

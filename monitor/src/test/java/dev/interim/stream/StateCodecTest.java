@@ -11,6 +11,8 @@ import java.util.List;
 import org.junit.jupiter.api.Test;
 
 /** The look-history record round-trips the monitor's state exactly; version-1 records still read. */
+// Source: expected values come from what this test itself writes or configures (its own ground truth);
+// no published statistical values are checked here.
 class StateCodecTest {
 
     @Test
