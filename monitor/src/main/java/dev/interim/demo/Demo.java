@@ -11,7 +11,6 @@ import dev.interim.experiment.LookResult;
 import dev.interim.signal.DecisionJson;
 import dev.interim.signal.Secret;
 import java.io.IOException;
-import java.io.InputStream;
 import java.io.PrintWriter;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Path;

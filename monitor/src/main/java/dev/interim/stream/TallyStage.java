@@ -285,11 +285,6 @@ public final class TallyStage implements Runnable, AutoCloseable {
         }
     }
 
-    /** Total units held in memory (for meters and tests). */
-    public int units() {
-        return states.values().stream().mapToInt(PartitionState::unitCount).sum();
-    }
-
     @Override
     public void close() {
         running.set(false);
