@@ -74,6 +74,8 @@ final class BrokerSettings {
         settings.put("num.partitions", "1");
         // A consumer group starts at once instead of waiting 3 s for more members.
         settings.put("group.initial.rebalance.delay.ms", "0");
+        // A crashed client's open transaction is aborted within about a second of its timeout.
+        settings.put("transaction.abort.timed.out.transaction.cleanup.interval.ms", "1000");
 
         settings.put("broker.session.timeout.ms", Integer.toString(SESSION_TIMEOUT_MS));
         settings.put("broker.heartbeat.interval.ms", "1000");

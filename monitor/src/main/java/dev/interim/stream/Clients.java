@@ -26,6 +26,11 @@ final class Clients {
         p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
         p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
         p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
+        // A crashed member's open transaction holds back every read_committed reader of the state
+        // topics (and a new owner's restore) until the broker aborts it: keep that short, but well
+        // above the time a stage's transaction is legitimately open (one commit interval).
+        p.putIfAbsent(ProducerConfig.TRANSACTION_TIMEOUT_CONFIG,
+                (int) Math.max(10_000, 4 * settings.commitInterval().toMillis()));
         // The broker's default record limit is 1 MiB; ours stay far below (dead letters are capped).
         p.putIfAbsent(ProducerConfig.MAX_REQUEST_SIZE_CONFIG, 1024 * 1024);
         KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p);

@@ -19,6 +19,14 @@ import org.apache.kafka.common.serialization.ByteArrayDeserializer;
  * Reads a compacted state topic from the beginning to its current end, committed records only, and
  * hands every (key, value) to a callback in offset order per partition (so the last value of a key
  * wins). Used when a stage takes over partitions after a start, a crash or a rebalance.
+ *
+ * <p>"Current end" is the high watermark, every record written so far, not the last stable offset.
+ * A previous owner's last transaction can be committed (its {@code commitTransaction} returned, its
+ * consumer offsets about to become visible) while the commit markers on this topic are still being
+ * written; the last stable offset then still stands before that transaction. Reading only to it would
+ * restore the state before the transaction while consuming on from the offsets after it: the events
+ * of one commit interval lost. So the reader waits until every transaction that had written here
+ * when it started has ended (committed, aborted, or timed out and aborted by the broker).
  */
 public final class StateReader {
     private static final Duration DEADLINE = Duration.ofMinutes(2);
@@ -53,18 +61,30 @@ public final class StateReader {
             }
             consumer.assign(assigned);
             consumer.seekToBeginning(assigned);
-            Map<TopicPartition, Long> end = new HashMap<>(consumer.endOffsets(assigned));
+            Map<TopicPartition, Long> end = new HashMap<>(highWatermarks(p, assigned));
             end.entrySet().removeIf(e -> e.getValue() == 0);
             long deadline = System.nanoTime() + DEADLINE.toNanos();
             while (!end.isEmpty()) {
                 if (System.nanoTime() > deadline) {
-                    throw new IllegalStateException("could not read state topic " + topic + " to its end within " + DEADLINE);
+                    throw new IllegalStateException("could not read state topic " + topic + " to its end within " + DEADLINE
+                            + ": a transaction on it stayed open that long; look for a stuck producer, or lower the"
+                            + " producers' transaction.timeout.ms so the broker aborts such transactions sooner");
                 }
                 for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
                     sink.accept(r.key(), r.value());
                 }
                 end.entrySet().removeIf(e -> consumer.position(e.getKey()) >= e.getValue());
             }
+        }
+    }
+
+    /** End offsets including records of transactions still open (a read_committed consumer reports the stable end). */
+    private static Map<TopicPartition, Long> highWatermarks(Properties committedReader, List<TopicPartition> partitions) {
+        Properties p = new Properties();
+        p.putAll(committedReader);
+        p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_uncommitted");
+        try (KafkaConsumer<byte[], byte[]> consumer = new KafkaConsumer<>(p)) {
+            return consumer.endOffsets(partitions, Duration.ofSeconds(30));
         }
     }
 }
