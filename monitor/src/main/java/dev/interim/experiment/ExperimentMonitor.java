@@ -83,7 +83,7 @@ public final class ExperimentMonitor {
         lastTallies = tallies;
         sampleRatio = SampleRatio.check(definition, exposures);
         List<DecisionRecord> records = new ArrayList<>(applyHold(at));
-        List<LookResult> results = new ArrayList<>();
+        List<Task> tasks = new ArrayList<>();
         for (MetricDefinition metric : definition.metrics()) {
             Map<String, Tally> byArm = tallies.getOrDefault(metric.name(), Map.of());
             Tally control = byArm.get(definition.control());
@@ -92,15 +92,32 @@ public final class ExperimentMonitor {
                 if (treatment == null || (control == null && metric.baseline() == null)) {
                     continue;
                 }
-                Optional<LookResult> r = c.look(treatment, control, at);
-                r.ifPresent(results::add);
-                r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(x, metric, definition.dryRun())));
-                if (r.isPresent() && r.get().changed() && r.get().decision() == Decision.STOP_HARM) {
-                    acknowledged = false;
-                }
+                tasks.add(new Task(metric, c, treatment, control));
+            }
+        }
+        // Comparisons share nothing, so they look in parallel (the caller takes part); the results
+        // come back in configuration order, and everything after is sequential.
+        List<Optional<LookResult>> outcomes = tasks.size() < 2
+                ? tasks.stream().map(t -> t.run(at)).toList()
+                : tasks.parallelStream().map(t -> t.run(at)).toList();
+        List<LookResult> results = new ArrayList<>();
+        for (int i = 0; i < tasks.size(); i++) {
+            Optional<LookResult> r = outcomes.get(i);
+            MetricDefinition metric = tasks.get(i).metric();
+            r.ifPresent(results::add);
+            r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(x, metric, definition.dryRun())));
+            if (r.isPresent() && r.get().changed() && r.get().decision() == Decision.STOP_HARM) {
+                acknowledged = false;
             }
         }
         return new LookReport(definition.id(), at, sampleRatio, results, records);
+    }
+
+    /** One comparison's part of a look. */
+    private record Task(MetricDefinition metric, Comparison comparison, Tally treatment, Tally control) {
+        Optional<LookResult> run(Instant at) {
+            return comparison.look(treatment, control, at);
+        }
     }
 
     /** An operator's hold: suspends every comparison not yet final. */

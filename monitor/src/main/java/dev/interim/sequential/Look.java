@@ -28,19 +28,23 @@ public record Look(int number, double fraction, double upper, double lower, Alte
 
     /** Whether statistic z crosses a boundary that rejects the null hypothesis. */
     public boolean rejects(double z) {
+        // An infinite boundary (nothing to spend yet) never rejects, not even an infinite statistic.
+        boolean above = upper != Double.POSITIVE_INFINITY && z >= upper;
+        boolean below = lower != Double.NEGATIVE_INFINITY && z <= lower;
         return switch (alternative) {
-            case TWO_SIDED -> z >= upper || z <= lower;
-            case GREATER -> z >= upper;
-            case LESS -> z <= lower;
+            case TWO_SIDED -> above || below;
+            case GREATER -> above;
+            case LESS -> below;
         };
     }
 
     /** Whether statistic z crosses a futility boundary (never for two-sided designs). */
     public boolean futile(double z) {
+        // Without futility the far boundary is infinite: no statistic, however large, is futile.
         return switch (alternative) {
             case TWO_SIDED -> false;
-            case GREATER -> z <= lower;
-            case LESS -> z >= upper;
+            case GREATER -> lower != Double.NEGATIVE_INFINITY && z <= lower;
+            case LESS -> upper != Double.POSITIVE_INFINITY && z >= upper;
         };
     }
 

@@ -53,6 +53,22 @@ final class SubDensity {
     /** Corrected-trapezoid weights: ∫g ≈ Σ weight[i]·g(x_i) + slopeWeight[i]·g'(x_i). */
     private final double[] weight;
     private final double[] slopeWeight;
+    /**
+     * The node terms of the wide-kernel density, fixed for this sub-density: with g = f·K the rule
+     * needs weight·f·K + slopeWeight·(f'·K + f·K'), that is valueWeight·K + slopeWeight·f·K'.
+     */
+    private final double[] valueWeight;
+    private final double[] fSlopeWeight;
+    /**
+     * The steps between nodes, by class: stepClass[i] indexes, in {@link #steps}, the step from node i
+     * to node i + 1 (equal steps share a class). Along a run of equal steps φ is carried
+     * geometrically; only where the step changes does an exponential have to be computed.
+     */
+    private final int[] stepClass;
+    private final double[] steps;
+    /** Power-basis coefficients of cell i's cubic about x_i beyond f and d: f + d·y + quad·y² + cube·y³. */
+    private final double[] quad;
+    private final double[] cube;
 
     private SubDensity(double fraction, double drift, int resolution, double[] x, double[] f, double[] d) {
         this.fraction = fraction;
@@ -77,6 +93,40 @@ final class SubDensity {
         }
         for (int i = n - 2; i >= 0; i--) {
             suffix[i] = suffix[i + 1] + cellMass(i);
+        }
+        this.valueWeight = new double[n];
+        this.fSlopeWeight = new double[n];
+        this.stepClass = new int[n];
+        double[] distinct = new double[16];
+        int classes = 0;
+        for (int i = 0; i < n; i++) {
+            valueWeight[i] = weight[i] * f[i] + slopeWeight[i] * d[i];
+            fSlopeWeight[i] = slopeWeight[i] * f[i];
+            if (i + 1 < n) {
+                double step = x[i + 1] - x[i];
+                int k = classes - 1;
+                // Steps repeat in runs, and bisected cells come back to a few earlier sizes.
+                while (k >= 0 && Math.abs(distinct[k] - step) > 1e-13 * step) {
+                    k--;
+                }
+                if (k < 0) {
+                    if (classes == distinct.length) {
+                        distinct = java.util.Arrays.copyOf(distinct, 2 * classes);
+                    }
+                    distinct[classes] = step;
+                    k = classes++;
+                }
+                stepClass[i] = k;
+            }
+        }
+        this.steps = java.util.Arrays.copyOf(distinct, classes);
+        this.quad = new double[n];
+        this.cube = new double[n];
+        for (int i = 0; i + 1 < n; i++) {
+            double h = x[i + 1] - x[i];
+            double secant = (f[i + 1] - f[i]) / h;
+            quad[i] = (3 * secant - 2 * d[i] - d[i + 1]) / h;
+            cube[i] = (d[i] + d[i + 1] - 2 * secant) / (h * h);
         }
     }
 
@@ -249,53 +299,69 @@ final class SubDensity {
             };
         }
         Kernel k = kernel(t1);
-        return k.wide ? (z, out) -> trapezoidDensity(k, z, out) : (z, out) -> exactDensity(k, z, out);
+        if (!k.wide) {
+            return (z, out) -> exactDensity(k, z, out);
+        }
+        double[] factors = new double[steps.length];   // e^{−(step/s)²} per step class, when first needed
+        java.util.Arrays.fill(factors, Double.NaN);
+        return (z, out) -> trapezoidDensity(k, factors, z, out);
     }
 
     /**
      * Value ρ∫f(u)φ(w)/s du and slope ρ²∫f(u)·w·φ(w)/s² du, w = (u − c)/s, by the corrected
      * trapezoidal rule (the kernel is resolved by the grid).
      */
-    private void trapezoidDensity(Kernel k, double z, double[] out) {
+    private void trapezoidDensity(Kernel k, double[] factors, double z, double[] out) {
         double c = k.centre(z);
         double s = k.s;
+        double inv = 1 / s;
+        double inv2 = inv * inv;
+        // Nodes beyond REACH kernel widths add below φ(9)/s ≈ 1e-18/s of the density's largest
+        // value, far below the accuracy the cells are refined to (CELL_TOLERANCE).
+        double limit = c + REACH * s;
+        int first = cellIndex(c - REACH * s);
+        // This loop is the hot path of a look. With w = (x_i − c)/s, u = w/s, K = φ(w)/s and
+        // K' = −u·K, K'' = (1/s² − u²)·K, the node term of the value is (valueWeight − fSlopeWeight·u)·φ
+        // and of the slope (u·valueWeight + fSlopeWeight·(1/s² − u²))·φ, both over s. φ is carried
+        // from node to node: φ(w + δ) = φ(w)·R with R = e^{−wδ−δ²/2}, and along equal steps R itself
+        // gains e^{−δ²} a step (a factor per step class, computed once per look). So an exponential
+        // is needed only at the first node and where the step changes. Steps of one class differ by
+        // rounding (1e-13 relative at most), so the carried φ drifts by at most |w|·δ·1e-13 a node:
+        // below 1e-10 relative over any kernel's reach, and the nodes where it would matter carry
+        // a kernel weight below φ(5).
         double value = 0;
         double slope = 0;
-        // Nodes beyond REACH + 3 kernel widths contribute below 1e-30 of the kernel's peak.
-        int first = cellIndex(c - (REACH + 3) * s);
-        // This loop is the hot path of a look. Along equally spaced nodes φ(w) is a geometric chain,
-        // φ(w + δ) = φ(w)·R with R = e^{−wδ−δ²/2}, and R itself gains e^{−δ²} a step: two
-        // multiplications instead of an exponential wherever the spacing repeats.
-        double phi = 0;
+        int n = x.length;
+        double w = (x[first] - c) * inv;
+        double phi = StandardNormal.pdf(w);
         double ratio = 0;
-        double factor = 0;
-        double step = Double.NaN;
-        for (int i = first; i < x.length; i++) {
-            double w = (x[i] - c) / s;
-            if (w > REACH + 3) {
+        int previousClass = -1;
+        for (int i = first; ; ) {
+            double u = w * inv;
+            double a = valueWeight[i];
+            double b = fSlopeWeight[i];
+            value += (a - b * u) * phi;
+            slope += (u * a + b * (inv2 - u * u)) * phi;
+            if (i + 1 >= n || x[i + 1] > limit) {
                 break;
             }
-            if (i > first && Math.abs(x[i] - x[i - 1] - step) <= 1e-12 * step) {
-                phi *= ratio;
-                ratio *= factor;
+            int cls = stepClass[i];
+            if (cls == previousClass) {
+                ratio *= factors[cls];
             } else {
-                phi = StandardNormal.pdf(w);
-                if (i + 1 < x.length) {
-                    step = x[i + 1] - x[i];
-                    double delta = step / s;
-                    ratio = Math.exp(-w * delta - delta * delta / 2);
-                    factor = Math.exp(-delta * delta);
+                double delta = steps[cls] * inv;
+                ratio = Math.exp(-w * delta - delta * delta / 2);
+                if (Double.isNaN(factors[cls])) {
+                    factors[cls] = Math.exp(-delta * delta);
                 }
+                previousClass = cls;
             }
-            double k0 = phi / s;
-            double k0Slope = -w * k0 / s;
-            double k1Slope = (1 - w * w) * k0 / (s * s);
-            double fi = f[i];
-            value += weight[i] * fi * k0 + slopeWeight[i] * (d[i] * k0 + fi * k0Slope);
-            slope += weight[i] * fi * -k0Slope + slopeWeight[i] * (-d[i] * k0Slope + fi * k1Slope);
+            phi *= ratio;
+            i++;
+            w = (x[i] - c) * inv;
         }
-        out[0] = Math.max(0, k.rho * value);
-        out[1] = k.rho * k.rho * slope;
+        out[0] = Math.max(0, k.rho * inv * value);
+        out[1] = k.rho * k.rho * inv * slope;
     }
 
     /** The same value and slope, integrating each cell's cubic exactly against the narrow kernel. */
@@ -410,25 +476,16 @@ final class SubDensity {
         return Math.max(0, lo);
     }
 
-    /** Power-basis coefficients of cell i's cubic about x_i: f + d·y + b2·y² + b3·y³, y = u − x_i. */
-    private double[] cubic(int i, double[] out) {
-        double h = x[i + 1] - x[i];
-        double slope = (f[i + 1] - f[i]) / h;
-        out[0] = f[i];
-        out[1] = d[i];
-        out[2] = (3 * slope - 2 * d[i] - d[i + 1]) / h;
-        out[3] = (d[i] + d[i + 1] - 2 * slope) / (h * h);
-        return out;
-    }
-
     /** Cell i's cubic rewritten in the kernel's standard units w = (u − c)/s: Σ a_j·w^j. */
     private void inKernelUnits(int i, double c, double s, double[] a) {
-        double[] b = cubic(i, new double[4]);
+        double b1 = d[i];
+        double b2 = quad[i];
+        double b3 = cube[i];
         double e = c - x[i];          // y = e + s·w
-        a[0] = b[0] + e * (b[1] + e * (b[2] + e * b[3]));
-        a[1] = s * (b[1] + e * (2 * b[2] + 3 * e * b[3]));
-        a[2] = s * s * (b[2] + 3 * e * b[3]);
-        a[3] = s * s * s * b[3];
+        a[0] = f[i] + e * (b1 + e * (b2 + e * b3));
+        a[1] = s * (b1 + e * (2 * b2 + 3 * e * b3));
+        a[2] = s * s * (b2 + 3 * e * b3);
+        a[3] = s * s * s * b3;
     }
 
     private double cellMass(int i) {
@@ -441,7 +498,7 @@ final class SubDensity {
         if (!(q > p)) {
             return 0;
         }
-        double[] b = cubic(i, new double[4]);
+        double[] b = {f[i], d[i], quad[i], cube[i]};
         double y1 = p - x[i];
         double y2 = q - x[i];
         double sum = 0;

@@ -107,9 +107,28 @@ public record TestResult(String name, double statistic, double degreesOfFreedom,
             return statistic;
         }
         TDistribution t = TDistribution.of(degreesOfFreedom);
+        double tail = statistic > 0 ? t.survivalProbability(statistic) : t.cumulativeProbability(statistic);
+        if (tail < Double.MIN_NORMAL) {
+            return Math.copySign(beyondDoubleTail(Math.abs(statistic)), statistic);
+        }
         return statistic > 0
-                ? STANDARD_NORMAL.inverseSurvivalProbability(t.survivalProbability(statistic))
-                : STANDARD_NORMAL.inverseCumulativeProbability(t.cumulativeProbability(statistic));
+                ? STANDARD_NORMAL.inverseSurvivalProbability(tail)
+                : STANDARD_NORMAL.inverseCumulativeProbability(tail);
+    }
+
+    /** |z| of the smallest normal tail a double holds: Φ̄(37.5) ≈ 2e-308, the smallest normal double. */
+    static final double LARGEST_REPRESENTED_Z = 37.5;
+
+    /**
+     * |z| for a t statistic whose tail probability is below what a double can hold (many degrees of
+     * freedom and t beyond about 37): Wallace's (1959) normalising map √(ν·ln(1 + t²/ν)), which tends
+     * to |t| as ν grows and keeps |z| ≤ |t|, held at least at {@link #LARGEST_REPRESENTED_Z} so that z
+     * keeps growing with t across the switch. Such a z is finite and beyond every boundary a look can
+     * have, which is all a decision needs of it; an infinite z would cross even an infinite boundary.
+     */
+    private double beyondDoubleTail(double t) {
+        double wallace = Math.sqrt(degreesOfFreedom * Math.log1p(t * t / degreesOfFreedom));
+        return Math.min(t, Math.max(LARGEST_REPRESENTED_Z, wallace));
     }
 
     private static ContinuousDistribution referenceDistribution(double degreesOfFreedom) {

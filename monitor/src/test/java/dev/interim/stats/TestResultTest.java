@@ -134,6 +134,23 @@ class TestResultTest {
     }
 
     @Test
+    void zEquivalentStaysFiniteAndIncreasingWhereTheTailUnderflows() {
+        // Large samples: Welch's t of 39 on 30,000 degrees of freedom has a tail below the smallest
+        // double, where inverting it gave an infinite z (which then crossed even infinite boundaries).
+        // Expected: common practice (|z| <= |t|, same sign, non-decreasing in t), and beyond the
+        // represented tail Wallace's (1959) map sqrt(df·ln(1 + t²/df)) — formula recalled from memory.
+        double previous = 0;
+        for (double s = 30; s <= 90; s += 0.25) {
+            double z = t(s, 30_000, Alternative.TWO_SIDED).zEquivalent();
+            assertThat(z).isFinite().isLessThanOrEqualTo(s).isGreaterThanOrEqualTo(previous - 1e-9);
+            assertThat(t(-s, 30_000, Alternative.TWO_SIDED).zEquivalent()).isEqualTo(-z);
+            previous = z;
+        }
+        double far = t(80, 30_000, Alternative.TWO_SIDED).zEquivalent();
+        assertThat(far).isCloseTo(Math.sqrt(30_000 * Math.log1p(80.0 * 80 / 30_000)), within(1e-12));
+    }
+
+    @Test
     void zEquivalentOfAZTestIsTheStatistic() {
         // definition: the normal scale is the z scale already
         assertThat(TestResult.of("z", 2.34, Double.POSITIVE_INFINITY, Alternative.LESS, 0, 1).zEquivalent())
