@@ -17,7 +17,8 @@ import java.util.Map;
  * <p>It counts exactly as the daemon does — same per-event and per-unit rules, same exposures —
  * because it is the daemon's own partition state; with a single input there is nothing to merge.
  * Snapshots are immutable values. What the partition state keeps for commits (its change sets) is
- * drained at every snapshot, so memory stays bounded by the tallies and the units.
+ * drained at every snapshot, so memory stays bounded by the tallies and the unit tables (see
+ * {@link #unitStateBytes()}).
  *
  * <p>Mutable and not thread-safe: one owner.
  */
@@ -74,7 +75,7 @@ public final class OfflineTally implements ObservationSink {
         for (PartitionState.Partial p : state.drainChangedPartials()) {
             latest.put(p.key(), p.tally());
         }
-        state.drainChangedUnits();
+        state.clearChangedUnits();
         state.drainAccepted();
         Map<String, Long> exposures = new LinkedHashMap<>();
         Map<String, Map<String, Tally>> tallies = new LinkedHashMap<>();
@@ -94,5 +95,15 @@ public final class OfflineTally implements ObservationSink {
     /** Units seen so far, over every experiment. */
     public int units() {
         return state.unitCount();
+    }
+
+    /**
+     * The bytes that the per-unit state's column arrays take, over every experiment (their lengths
+     * times their element sizes; the few array headers not counted). This is all the heap that grows
+     * with the number of units: no object is kept per unit, and what changed is a bitset of the
+     * same tables, cleared at every snapshot. For a memory benchmark to compare with what it measures.
+     */
+    public long unitStateBytes() {
+        return state.unitBytes();
     }
 }

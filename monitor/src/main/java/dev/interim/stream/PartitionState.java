@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.MetricKind;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
@@ -7,10 +9,12 @@ import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RunningMoments;
 import java.util.ArrayList;
 import java.util.HashMap;
-import java.util.HashSet;
+import java.util.LinkedHashMap;
+import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
+import java.util.function.BiConsumer;
 
 /**
  * The cumulative tallies of one input partition: per (experiment, arm, metric) the sufficient
@@ -20,23 +24,41 @@ import java.util.Set;
  * <p>Per-unit metrics: a unit belongs to the first arm it was exposed to. A unit-rate counts each
  * unit once in the denominator and once in the numerator, the first time it meets the condition; a
  * unit-total tallies each unit's running total (when the total grows, the old total is removed from
- * the arm's moments and the new one accepted).
+ * the arm's moments and the new one accepted). When the input is keyed by unit, the exposures of
+ * every experiment count units, not events, so every experiment that sees units keeps them.
+ *
+ * <p>Layout, for speed and memory: each experiment of the catalog is compiled once into arrays of
+ * holders indexed by (arm, metric), found by one map lookup on the experiment id per call; the
+ * steady state of an event-level observation allocates nothing. Units live in one {@link UnitTable}
+ * per experiment (primitive columns, no object per unit). The sink is given only experiments, arms
+ * and metrics of the catalog (the event reader refuses the others) and throws on anything else.
  *
  * <p>Mutable, confined to the tally stage's thread.
  */
 final class PartitionState implements ObservationSink {
     private final String source;
-    private final Catalog catalog;
-    private final Map<PartialKey, Object> live = new HashMap<>();
-    private final Set<PartialKey> dirty = new HashSet<>();
-    private final Map<String, UnitState> units = new HashMap<>();
-    private final Set<String> dirtyUnits = new HashSet<>();
-    /** Events accepted per experiment since the last drain (one exposure call per event). */
-    private final Map<String, long[]> accepted = new HashMap<>();
+    private final Map<String, Experiment> experiments = new HashMap<>();
+    /** Experiments with changed partials since the last drain, each once. */
+    private final List<Experiment> changed = new ArrayList<>();
+    /** Restored partials that the catalog no longer counts (an arm, a metric or a kind that changed). */
+    private final Map<PartialKey, Tally> orphans = new HashMap<>();
+    private final UnitTable.Hasher hasher = new UnitTable.Hasher();
+    /**
+     * The last unit found, by identity: the calls of one event name the same unit object, so its
+     * observations reuse the slot its exposure found (valid while its table has not grown).
+     */
+    private String lastUnit;
+    private UnitTable lastTable;
+    private int lastSlot;
+    private int lastGeneration;
+    /** Units restored under an arm or experiment the catalog no longer has, and so left out. */
+    private long unitsLeftOut;
 
     PartitionState(String source, Catalog catalog) {
         this.source = source;
-        this.catalog = catalog;
+        for (ExperimentDefinition d : catalog.experiments()) {
+            experiments.put(d.id(), new Experiment(d, source));
+        }
     }
 
     /** The input partition, as "topic-partition". */
@@ -54,40 +76,157 @@ final class PartitionState implements ObservationSink {
         }
     }
 
-    /** A unit's arm and its per-unit metric state. */
-    static final class UnitState {
-        final String arm;
-        final Map<String, Double> totals = new HashMap<>();
-        final Set<String> met = new HashSet<>();
+    /** One metric of a compiled experiment. */
+    private static final class Metric {
+        final String name;
+        final MetricKind kind;
+        /** The metric's column in the holder arrays (0 is the exposures). */
+        final int slot;
+        /** Its bit (unit-rate) or its totals column (unit-total) in the unit table, else -1. */
+        final int column;
 
-        UnitState(String arm) {
-            this.arm = arm;
+        Metric(String name, MetricKind kind, int slot, int column) {
+            this.name = name;
+            this.kind = kind;
+            this.slot = slot;
+            this.column = column;
+        }
+    }
+
+    /** One experiment's holders: arms × (exposures + metrics), each created at its first use. */
+    private static final class Experiment {
+        final String id;
+        final String source;
+        final String[] arms;
+        final Map<String, Metric> metrics = new HashMap<>();
+        /** Column 0 is the exposures; columns 1.. the metrics in definition order. */
+        final String[] columnNames;
+        final boolean[] meanColumn;
+        final Metric[] unitRates;
+        final Metric[] unitTotals;
+        final int width;
+        final Counts[] counts;
+        final RunningMoments[] moments;
+        final PartialKey[] keys;
+        final boolean[] dirty;
+        boolean anyDirty;
+        long accepted;
+        UnitTable units;
+        /** Scratch of {@link #restoreUnit}, reused from one unit to the next. */
+        final boolean[] restoredMet;
+        final double[] restoredTotals;
+
+        Experiment(ExperimentDefinition d, String source) {
+            this.id = d.id();
+            this.source = source;
+            this.arms = d.arms().toArray(new String[0]);
+            if (arms.length > UnitTable.MAX_ARMS) {
+                throw new IllegalArgumentException("experiment '" + id + "' has " + arms.length
+                        + " arms; the tallies take at most " + UnitTable.MAX_ARMS);
+            }
+            List<MetricDefinition> defs = d.metrics();
+            width = defs.size() + 1;
+            columnNames = new String[width];
+            meanColumn = new boolean[width];
+            columnNames[0] = PartialKey.EXPOSURES;
+            List<Metric> rates = new ArrayList<>();
+            List<Metric> totals = new ArrayList<>();
+            for (int i = 0; i < defs.size(); i++) {
+                MetricDefinition m = defs.get(i);
+                int column = m.kind() == MetricKind.UNIT_RATE ? rates.size()
+                        : m.kind() == MetricKind.UNIT_TOTAL ? totals.size() : -1;
+                Metric metric = new Metric(m.name(), m.kind(), i + 1, column);
+                metrics.put(m.name(), metric);
+                columnNames[i + 1] = m.name();
+                meanColumn[i + 1] = !m.kind().isProportion();
+                if (m.kind() == MetricKind.UNIT_RATE) {
+                    rates.add(metric);
+                } else if (m.kind() == MetricKind.UNIT_TOTAL) {
+                    totals.add(metric);
+                }
+            }
+            unitRates = rates.toArray(new Metric[0]);
+            unitTotals = totals.toArray(new Metric[0]);
+            restoredMet = new boolean[unitRates.length];
+            restoredTotals = new double[unitTotals.length];
+            int n = arms.length * width;
+            counts = new Counts[n];
+            moments = new RunningMoments[n];
+            keys = new PartialKey[n];
+            dirty = new boolean[n];
+        }
+
+        /** The index of {@code arm}, or -1. */
+        int armIndex(String arm) {
+            for (int i = 0; i < arms.length; i++) {
+                if (arms[i].equals(arm)) {
+                    return i;
+                }
+            }
+            return -1;
+        }
+
+        int arm(String arm) {
+            int i = armIndex(arm);
+            if (i < 0) {
+                throw new IllegalArgumentException("experiment '" + id + "' has no arm '" + arm + "'");
+            }
+            return i;
+        }
+
+        Metric metric(String name) {
+            Metric m = metrics.get(name);
+            if (m == null) {
+                throw new IllegalArgumentException("experiment '" + id + "' has no metric '" + name + "'");
+            }
+            return m;
+        }
+
+        UnitTable units() {
+            if (units == null) {
+                units = new UnitTable(unitRates.length, unitTotals.length);
+            }
+            return units;
+        }
+
+        PartialKey key(int index) {
+            PartialKey k = keys[index];
+            if (k == null) {
+                k = new PartialKey(id, arms[index / width], columnNames[index % width], source);
+                keys[index] = k;
+            }
+            return k;
         }
     }
 
     @Override
     public void exposure(String experiment, String arm, String unit) {
-        accepted.computeIfAbsent(experiment, e -> new long[1])[0]++;
+        Experiment e = experiment(experiment);
+        int a = e.arm(arm);
+        e.accepted++;
         if (unit == null) {
-            counts(experiment, arm, PartialKey.EXPOSURES).trials++;
+            counts(e, a * e.width).trials++;
             return;
         }
-        unit(experiment, arm, unit);
+        unit(e, a, unit);
     }
 
     @Override
     public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
-        MetricKind kind = catalog.kind(experiment, metric);
-        if (kind == MetricKind.UNIT_RATE) {
-            String key = unitKey(experiment, unit);
-            UnitState u = unit(experiment, arm, unit);
-            if (success && u.met.add(metric)) {
-                counts(experiment, u.arm, metric).successes++;
-                dirtyUnits.add(key);
+        Experiment e = experiment(experiment);
+        Metric m = e.metric(metric);
+        int a = e.arm(arm);
+        if (m.kind == MetricKind.UNIT_RATE) {
+            int slot = unit(e, a, unit);
+            UnitTable t = e.units;
+            if (success && !t.met(slot, m.column)) {
+                t.setMet(slot, m.column);
+                counts(e, t.arm(slot) * e.width + m.slot).successes++;
+                t.markChanged(slot);
             }
             return;
         }
-        Counts c = counts(experiment, arm, metric);
+        Counts c = counts(e, a * e.width + m.slot);
         c.trials++;
         if (success) {
             c.successes++;
@@ -96,123 +235,306 @@ final class PartitionState implements ObservationSink {
 
     @Override
     public void value(String experiment, String arm, String unit, String metric, double value) {
-        MetricKind kind = catalog.kind(experiment, metric);
-        if (kind == MetricKind.UNIT_TOTAL) {
-            UnitState u = unit(experiment, arm, unit);
-            double before = u.totals.getOrDefault(metric, 0.0);
+        Experiment e = experiment(experiment);
+        Metric m = e.metric(metric);
+        int a = e.arm(arm);
+        if (m.kind == MetricKind.UNIT_TOTAL) {
+            int slot = unit(e, a, unit);
+            UnitTable t = e.units;
+            double before = t.total(slot, m.column);
             double after = before + value;
-            RunningMoments m = moments(experiment, u.arm, metric);
-            m.remove(before);
-            m.accept(after);
-            u.totals.put(metric, after);
-            dirtyUnits.add(unitKey(experiment, unit));
+            RunningMoments r = moments(e, t.arm(slot) * e.width + m.slot);
+            r.remove(before);
+            r.accept(after);
+            t.setTotal(slot, m.column, after);
+            t.markChanged(slot);
             return;
         }
-        moments(experiment, arm, metric).accept(value);
+        moments(e, a * e.width + m.slot).accept(value);
     }
 
-    /** The unit's state, creating it (and counting its exposure) at its first event. */
-    private UnitState unit(String experiment, String arm, String unit) {
-        String key = unitKey(experiment, unit);
-        UnitState u = units.get(key);
-        if (u != null) {
-            return u;
+    private Experiment experiment(String id) {
+        Experiment e = experiments.get(id);
+        if (e == null) {
+            throw new IllegalArgumentException("no experiment '" + id + "' in the catalog");
         }
-        u = new UnitState(arm);
-        units.put(key, u);
-        dirtyUnits.add(key);
-        counts(experiment, arm, PartialKey.EXPOSURES).trials++;
-        for (var e : catalog.experiment(experiment).metrics()) {
-            if (e.kind() == MetricKind.UNIT_RATE) {
-                counts(experiment, arm, e.name()).trials++;
-            } else if (e.kind() == MetricKind.UNIT_TOTAL) {
-                moments(experiment, arm, e.name()).accept(0);
+        return e;
+    }
+
+    /** The unit's slot, creating the unit (and counting its exposure) at its first event. */
+    private int unit(Experiment e, int arm, String unit) {
+        if (unit == null) {
+            throw new IllegalArgumentException("experiment '" + e.id + "' has per-unit metrics: an event needs a unit");
+        }
+        UnitTable t = e.units();
+        if (unit == lastUnit && t == lastTable && t.generation() == lastGeneration) {
+            return lastSlot;
+        }
+        hasher.hash(unit);
+        int slot = t.findOrInsert(hasher.hi, hasher.lo, arm);
+        if (slot < 0) {
+            slot = -slot - 1;
+            t.markChanged(slot);
+            int row = arm * e.width;
+            counts(e, row).trials++;
+            for (Metric m : e.unitRates) {
+                counts(e, row + m.slot).trials++;
+            }
+            for (Metric m : e.unitTotals) {
+                moments(e, row + m.slot).accept(0);
             }
         }
-        return u;
+        lastUnit = unit;
+        lastTable = t;
+        lastSlot = slot;
+        lastGeneration = t.generation();
+        return slot;
     }
 
-    private static String unitKey(String experiment, String unit) {
-        return experiment + '\u001f' + unit;
+    private Counts counts(Experiment e, int index) {
+        Counts c = e.counts[index];
+        if (c == null) {
+            c = new Counts();
+            e.counts[index] = c;
+            created(e, index);
+        }
+        touch(e, index);
+        return c;
     }
 
-    private Counts counts(String experiment, String arm, String metric) {
-        PartialKey key = new PartialKey(experiment, arm, metric, source);
-        dirty.add(key);
-        return (Counts) live.computeIfAbsent(key, k -> new Counts());
+    private RunningMoments moments(Experiment e, int index) {
+        RunningMoments m = e.moments[index];
+        if (m == null) {
+            m = new RunningMoments();
+            e.moments[index] = m;
+            created(e, index);
+        }
+        touch(e, index);
+        return m;
     }
 
-    private RunningMoments moments(String experiment, String arm, String metric) {
-        PartialKey key = new PartialKey(experiment, arm, metric, source);
-        dirty.add(key);
-        return (RunningMoments) live.computeIfAbsent(key, k -> new RunningMoments());
+    /** A holder's first use: the partial of the same key kept apart at a restore, if any, is replaced. */
+    private void created(Experiment e, int index) {
+        PartialKey k = e.key(index);
+        if (!orphans.isEmpty()) {
+            orphans.remove(k);
+        }
+    }
+
+    private void touch(Experiment e, int index) {
+        if (!e.dirty[index]) {
+            e.dirty[index] = true;
+            if (!e.anyDirty) {
+                e.anyDirty = true;
+                changed.add(e);
+            }
+        }
     }
 
     // ---- what a commit writes, and what a restore reads ----------------------------------------
 
     /** The changed partials as immutable values; the change set is cleared. */
     List<Partial> drainChangedPartials() {
-        List<Partial> out = new ArrayList<>(dirty.size());
-        for (PartialKey key : dirty) {
-            out.add(partialOf(key, live.get(key)));
+        List<Partial> out = new ArrayList<>();
+        for (Experiment e : changed) {
+            for (int i = 0; i < e.dirty.length; i++) {
+                if (e.dirty[i]) {
+                    out.add(partialOf(e, i));
+                    e.dirty[i] = false;
+                }
+            }
+            e.anyDirty = false;
         }
-        dirty.clear();
+        changed.clear();
         return out;
     }
 
     /** Every partial, for tests and dumps. */
     List<Partial> partials() {
-        List<Partial> out = new ArrayList<>(live.size());
-        live.forEach((k, v) -> out.add(partialOf(k, v)));
+        List<Partial> out = new ArrayList<>();
+        for (Experiment e : experiments.values()) {
+            for (int i = 0; i < e.keys.length; i++) {
+                if (e.counts[i] != null || e.moments[i] != null) {
+                    out.add(partialOf(e, i));
+                }
+            }
+        }
+        orphans.forEach((k, t) -> out.add(new Partial(k, t)));
         return out;
+    }
+
+    private static Partial partialOf(Experiment e, int index) {
+        RunningMoments m = e.moments[index];
+        if (m != null) {
+            return new Partial(e.key(index), new Tally.Mean(m.snapshot()));
+        }
+        return new Partial(e.key(index), new Tally.Rate(e.counts[index].snapshot()));
     }
 
     /** Events accepted per experiment since the last call; the counts are cleared. */
     Map<String, Long> drainAccepted() {
         Map<String, Long> out = new HashMap<>();
-        accepted.forEach((e, n) -> out.put(e, n[0]));
-        accepted.clear();
-        return out;
-    }
-
-    /** The changed units as (key, state); the change set is cleared. */
-    Map<String, UnitState> drainChangedUnits() {
-        Map<String, UnitState> out = new HashMap<>();
-        for (String key : dirtyUnits) {
-            out.put(key, units.get(key));
+        for (Experiment e : experiments.values()) {
+            if (e.accepted != 0) {
+                out.put(e.id, e.accepted);
+                e.accepted = 0;
+            }
         }
-        dirtyUnits.clear();
         return out;
     }
 
+    /**
+     * Hands every unit changed since the last drain to {@code out}, as its key and its state by
+     * name, and clears the change set. Nothing of the units is kept here: each pair is built for
+     * the call and left to the caller.
+     */
+    void drainChangedUnits(BiConsumer<UnitKey, UnitState> out) {
+        for (Experiment e : experiments.values()) {
+            UnitTable t = e.units;
+            if (t == null || t.changedCount() == 0) {
+                continue;
+            }
+            t.drainChanged(slot -> out.accept(new UnitKey(e.id, t.keyHi(slot), t.keyLo(slot)), unitState(e, t, slot)));
+        }
+    }
+
+    /** The changed units collected in a map (tests); the change set is cleared. */
+    Map<UnitKey, UnitState> drainChangedUnits() {
+        Map<UnitKey, UnitState> out = new LinkedHashMap<>();
+        drainChangedUnits(out::put);
+        return out;
+    }
+
+    /** Forgets which units changed, when no one writes them (offline). */
+    void clearChangedUnits() {
+        for (Experiment e : experiments.values()) {
+            if (e.units != null) {
+                e.units.clearChanged();
+            }
+        }
+    }
+
+    private static UnitState unitState(Experiment e, UnitTable t, int slot) {
+        Set<String> met = new LinkedHashSet<>();
+        for (Metric m : e.unitRates) {
+            if (t.met(slot, m.column)) {
+                met.add(m.name);
+            }
+        }
+        Map<String, Double> totals = new LinkedHashMap<>();
+        for (Metric m : e.unitTotals) {
+            double v = t.total(slot, m.column);
+            if (Double.doubleToRawLongBits(v) != 0) {
+                totals.put(m.name, v);
+            }
+        }
+        return new UnitState(e.arms[t.arm(slot)], met, totals);
+    }
+
+    /**
+     * Puts back a partial as last committed. One the catalog no longer counts (its experiment, arm
+     * or metric is gone, or the metric changed kind) is kept apart: listed by {@link #partials()}
+     * until an event starts a partial of the same key anew (of the metric's kind now), which then
+     * replaces it.
+     */
     void restore(Partial partial) {
-        Object holder;
+        PartialKey k = partial.key();
+        Experiment e = experiments.get(k.experiment());
+        int a = e == null ? -1 : e.armIndex(k.arm());
+        int column = -1;
+        if (a >= 0) {
+            if (PartialKey.EXPOSURES.equals(k.metric())) {
+                column = 0;
+            } else {
+                Metric m = e.metrics.get(k.metric());
+                column = m == null ? -1 : m.slot;
+            }
+        }
+        boolean mean = partial.tally() instanceof Tally.Mean;
+        if (column < 0 || e.meanColumn[column] != mean) {
+            orphans.put(k, partial.tally());
+            return;
+        }
+        int index = a * e.width + column;
         if (partial.tally() instanceof Tally.Mean m) {
-            holder = RunningMoments.from(m.moments());
+            e.moments[index] = RunningMoments.from(m.moments());
         } else {
             ProportionCounts p = ((Tally.Rate) partial.tally()).counts();
             Counts c = new Counts();
             c.successes = p.successes();
             c.trials = p.trials();
-            holder = c;
+            e.counts[index] = c;
         }
-        live.put(partial.key(), holder);
+        e.key(index);
     }
 
-    void restoreUnit(String key, UnitState state) {
-        units.put(key, state);
+    /**
+     * Puts back a unit as last committed (a later record of the same unit replaces an earlier one).
+     * Metric names the catalog no longer has are dropped; a unit of an experiment or arm it no
+     * longer has is left out, and would count as new if it came again.
+     */
+    void restoreUnit(UnitKey key, UnitState state) {
+        Experiment e = experiments.get(key.experiment());
+        int a = e == null ? -1 : e.armIndex(state.arm());
+        if (a < 0) {
+            unitsLeftOut++;
+            return;
+        }
+        boolean[] met = e.restoredMet;
+        for (Metric m : e.unitRates) {
+            met[m.column] = state.met().contains(m.name);
+        }
+        double[] totals = e.restoredTotals;
+        for (Metric m : e.unitTotals) {
+            Double v = state.totals().get(m.name);
+            totals[m.column] = v == null ? 0.0 : v;
+        }
+        e.units().put(key.hi(), key.lo(), a, met, totals);
     }
 
+    /** Units held, over every experiment. */
     int unitCount() {
-        return units.size();
+        int n = 0;
+        for (Experiment e : experiments.values()) {
+            if (e.units != null) {
+                n += e.units.size();
+            }
+        }
+        return n;
     }
 
-    private static Partial partialOf(PartialKey key, Object holder) {
-        if (holder instanceof RunningMoments m) {
-            return new Partial(key, new Tally.Mean(m.snapshot()));
+    /** The bytes of the unit tables' columns, over every experiment. */
+    long unitBytes() {
+        long n = 0;
+        for (Experiment e : experiments.values()) {
+            if (e.units != null) {
+                n += e.units.bytes();
+            }
         }
-        return new Partial(key, new Tally.Rate(((Counts) holder).snapshot()));
+        return n;
     }
+
+    /** Restored units left out because their experiment or arm is no longer in the catalog. */
+    long unitsLeftOut() {
+        return unitsLeftOut;
+    }
+
+    /** The key of {@code unit} in {@code experiment}: what the units changelog is keyed by. */
+    static UnitKey unitKey(String experiment, String unit) {
+        UnitTable.Hasher h = new UnitTable.Hasher();
+        h.hash(unit);
+        return new UnitKey(experiment, h.hi, h.lo);
+    }
+
+    /** A unit of an experiment, by the 96-bit hash of its id (see {@link UnitTable}). */
+    record UnitKey(String experiment, long hi, int lo) {}
+
+    /**
+     * A unit's state by name, as the units changelog carries it: its arm, the unit-rate metrics it
+     * met, and its unit-total totals (an absent one is 0). The collections are handed over, not
+     * copied: whoever makes one does not change them afterwards.
+     */
+    record UnitState(String arm, Set<String> met, Map<String, Double> totals) {}
 
     /** A cumulative partial tally: what the tallies topic carries. */
     record Partial(PartialKey key, Tally tally) {

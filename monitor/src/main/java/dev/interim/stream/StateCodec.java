@@ -2,7 +2,6 @@ package dev.interim.stream;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
-import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.interim.experiment.Decision;
 import dev.interim.sequential.Look;
@@ -18,8 +17,9 @@ import java.util.ArrayList;
 import java.util.List;
 
 /**
- * The JSON of the daemon's state topics: partial tallies, unit state and look history. Small,
- * explicit and versioned by a field {@code "v"} so that a later layout can still read these.
+ * The records of the daemon's state topics: partial tallies and look history as JSON, versioned by
+ * a field {@code "v"}, and unit state as a small binary record led by a version byte (its JSON
+ * records of version 1 still read). Small and explicit, so that a later layout can still read these.
  */
 final class StateCodec {
     private static final ObjectMapper JSON = new ObjectMapper();
@@ -62,21 +62,180 @@ final class StateCodec {
         return new Tally.Rate(new ProportionCounts(n.path("successes").asLong(), n.path("trials").asLong()));
     }
 
-    static byte[] unit(PartitionState.UnitState u) {
-        ObjectNode n = JSON.createObjectNode().put("v", 1).put("arm", u.arm);
-        ObjectNode totals = n.putObject("totals");
-        u.totals.forEach(totals::put);
-        ArrayNode met = n.putArray("met");
-        u.met.forEach(met::add);
-        return write(n);
+    // ---- the units changelog ------------------------------------------------------------------
+
+    /** Version byte of the binary unit record; the JSON records before it start with '{'. */
+    static final byte UNIT_VERSION = 2;
+    private static final byte SOURCE_END = 0x1e;
+    private static final byte EXPERIMENT_END = 0x1f;
+    private static final int UNIT_HASH_BYTES = 12;
+
+    /** Where a units changelog record belongs: the input partition and the unit. */
+    record UnitRecordKey(String source, PartitionState.UnitKey unit) {}
+
+    /**
+     * The record key of a unit on the units changelog: the source ("topic-partition"), 0x1e, the
+     * experiment id, 0x1f, then the unit's 96-bit key (its 64-bit half, then its 32-bit half, both
+     * big-endian). Topic names and experiment ids hold neither separator, so the first 0x1e and the
+     * first 0x1f after it split the key whatever bytes the hash has.
+     */
+    static byte[] unitKey(String source, PartitionState.UnitKey unit) {
+        byte[] s = source.getBytes(StandardCharsets.UTF_8);
+        byte[] e = unit.experiment().getBytes(StandardCharsets.UTF_8);
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(s.length + 1 + e.length + 1 + UNIT_HASH_BYTES);
+        b.put(s).put(SOURCE_END).put(e).put(EXPERIMENT_END).putLong(unit.hi()).putInt(unit.lo());
+        return b.array();
     }
 
+    /**
+     * Reads a units changelog key. Its layout follows its value's: the JSON records of version 1 were
+     * keyed by the unit id as text, which is hashed here to the key that the unit has now (so state
+     * written before the binary records still restores; a later binary record of the same unit, at a
+     * later offset, replaces it).
+     *
+     * @throws IllegalArgumentException when the key is not one of a unit
+     */
+    static UnitRecordKey unitKey(byte[] key, byte[] value) {
+        int cut = indexOf(key, SOURCE_END, 0);
+        int end = cut < 0 ? -1 : indexOf(key, EXPERIMENT_END, cut + 1);
+        if (end < 0) {
+            throw new IllegalArgumentException("not a unit key: " + key(key));
+        }
+        String source = new String(key, 0, cut, StandardCharsets.UTF_8);
+        String experiment = new String(key, cut + 1, end - cut - 1, StandardCharsets.UTF_8);
+        int tail = key.length - end - 1;
+        if (isJson(value)) {
+            return new UnitRecordKey(source, PartitionState.unitKey(experiment,
+                    new String(key, end + 1, tail, StandardCharsets.UTF_8)));
+        }
+        if (tail != UNIT_HASH_BYTES) {
+            throw new IllegalArgumentException("a unit key holds " + UNIT_HASH_BYTES + " bytes of hash after the"
+                    + " experiment, this one " + tail);
+        }
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.wrap(key, end + 1, UNIT_HASH_BYTES);
+        return new UnitRecordKey(source, new PartitionState.UnitKey(experiment, b.getLong(), b.getInt()));
+    }
+
+    /**
+     * A unit's state as a binary record, version 2: the version byte, the arm's name, the number of
+     * unit-rate metrics the unit met and their names, then the number of unit-total totals written
+     * (those that are not +0.0, the total of a unit with no value yet) and for each its name and the
+     * 8 bytes of its IEEE 754 bits (big-endian). A name is its UTF-8 length (unsigned LEB128) and its
+     * bytes. Names rather than positions: a record stays right when the configuration adds, drops or
+     * reorders arms and metrics; arm and metric names are short (at most 128 and 64 characters).
+     */
+    static byte[] unit(PartitionState.UnitState u) {
+        java.io.ByteArrayOutputStream out = new java.io.ByteArrayOutputStream(32);
+        out.write(UNIT_VERSION);
+        writeName(out, u.arm());
+        writeLength(out, u.met().size());
+        for (String m : u.met()) {
+            writeName(out, m);
+        }
+        writeLength(out, u.totals().size());
+        u.totals().forEach((name, total) -> {
+            writeName(out, name);
+            long bits = Double.doubleToRawLongBits(total);
+            for (int shift = 56; shift >= 0; shift -= 8) {
+                out.write((int) (bits >>> shift));
+            }
+        });
+        return out.toByteArray();
+    }
+
+    /**
+     * Reads a unit record: version 2 (binary, see {@link #unit(PartitionState.UnitState)}) or
+     * version 1 (JSON: {@code {"v":1,"arm":...,"totals":{name: total},"met":[names]}}).
+     *
+     * @throws IllegalArgumentException when the record is of no known version or cut short
+     */
     static PartitionState.UnitState unit(byte[] bytes) {
-        JsonNode n = read(bytes);
-        PartitionState.UnitState u = new PartitionState.UnitState(n.path("arm").asText());
-        n.path("totals").fields().forEachRemaining(e -> u.totals.put(e.getKey(), e.getValue().asDouble()));
-        n.path("met").forEach(m -> u.met.add(m.asText()));
-        return u;
+        if (isJson(bytes)) {
+            JsonNode n = read(bytes);
+            java.util.Map<String, Double> totals = new java.util.LinkedHashMap<>();
+            n.path("totals").fields().forEachRemaining(e -> totals.put(e.getKey(), e.getValue().asDouble()));
+            java.util.Set<String> met = new java.util.LinkedHashSet<>();
+            n.path("met").forEach(m -> met.add(m.asText()));
+            return new PartitionState.UnitState(n.path("arm").asText(), met, totals);
+        }
+        if (bytes.length == 0 || bytes[0] != UNIT_VERSION) {
+            throw new IllegalArgumentException("a unit record of unknown version "
+                    + (bytes.length == 0 ? "(empty)" : Integer.toString(bytes[0] & 0xff)));
+        }
+        try {
+            java.nio.ByteBuffer b = java.nio.ByteBuffer.wrap(bytes, 1, bytes.length - 1);
+            String arm = readName(b);
+            int metCount = readLength(b);
+            java.util.Set<String> met = new java.util.LinkedHashSet<>();
+            for (int i = 0; i < metCount; i++) {
+                met.add(readName(b));
+            }
+            int totalCount = readLength(b);
+            java.util.Map<String, Double> totals = new java.util.LinkedHashMap<>();
+            for (int i = 0; i < totalCount; i++) {
+                String name = readName(b);
+                totals.put(name, b.getDouble());
+            }
+            if (b.hasRemaining()) {
+                throw new IllegalArgumentException("a unit record with " + b.remaining() + " bytes too many");
+            }
+            return new PartitionState.UnitState(arm, met, totals);
+        } catch (java.nio.BufferUnderflowException e) {
+            throw new IllegalArgumentException("a unit record cut short", e);
+        }
+    }
+
+    private static boolean isJson(byte[] value) {
+        return value != null && value.length > 0 && value[0] == '{';
+    }
+
+    private static int indexOf(byte[] bytes, byte b, int from) {
+        for (int i = from; i < bytes.length; i++) {
+            if (bytes[i] == b) {
+                return i;
+            }
+        }
+        return -1;
+    }
+
+    private static void writeName(java.io.ByteArrayOutputStream out, String name) {
+        byte[] b = name.getBytes(StandardCharsets.UTF_8);
+        writeLength(out, b.length);
+        out.write(b, 0, b.length);
+    }
+
+    /** Unsigned LEB128: 7 bits a byte, low bits first, the high bit set on every byte but the last. */
+    private static void writeLength(java.io.ByteArrayOutputStream out, int n) {
+        while ((n & ~0x7f) != 0) {
+            out.write((n & 0x7f) | 0x80);
+            n >>>= 7;
+        }
+        out.write(n);
+    }
+
+    private static String readName(java.nio.ByteBuffer b) {
+        int n = readLength(b);
+        if (n > b.remaining()) {
+            throw new IllegalArgumentException("a unit record cut short");
+        }
+        String s = new String(b.array(), b.arrayOffset() + b.position(), n, StandardCharsets.UTF_8);
+        b.position(b.position() + n);
+        return s;
+    }
+
+    private static int readLength(java.nio.ByteBuffer b) {
+        int n = 0;
+        for (int shift = 0; shift < 32; shift += 7) {
+            int x = b.get() & 0xff;
+            n |= (x & 0x7f) << shift;
+            if ((x & 0x80) == 0) {
+                if (n < 0) {
+                    break;
+                }
+                return n;
+            }
+        }
+        throw new IllegalArgumentException("a unit record with a bad length");
     }
 
     /**

@@ -170,10 +170,9 @@ public final class TallyStage implements Runnable, AutoCloseable {
                             StateCodec.key(p.key().text()), StateCodec.partial(p.tally())));
                 }
                 int unitsPartition = e.getKey().partition();
-                for (Map.Entry<String, PartitionState.UnitState> u : state.drainChangedUnits().entrySet()) {
-                    producer.send(new ProducerRecord<>(settings.unitsTopic(), unitsPartition,
-                            StateCodec.key(state.source() + '\u001e' + u.getKey()), StateCodec.unit(u.getValue())));
-                }
+                String source = state.source();
+                state.drainChangedUnits((unit, u) -> producer.send(new ProducerRecord<>(settings.unitsTopic(),
+                        unitsPartition, StateCodec.unitKey(source, unit), StateCodec.unit(u))));
             }
             if (!pending.isEmpty()) {
                 producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
@@ -238,13 +237,21 @@ public final class TallyStage implements Runnable, AutoCloseable {
         Set<Integer> unitPartitions = new HashSet<>();
         partitions.forEach(tp -> unitPartitions.add(tp.partition()));
         StateReader.readAll(settings, settings.unitsTopic(), unitPartitions, (key, value) -> {
-            String k = StateCodec.key(key);
-            int cut = k.indexOf('\u001e');
-            TopicPartition tp = bySource.get(k.substring(0, cut));
-            if (tp != null && value != null) {
-                states.get(tp).restoreUnit(k.substring(cut + 1), StateCodec.unit(value));
+            if (value == null) {
+                return;
+            }
+            StateCodec.UnitRecordKey k = StateCodec.unitKey(key, value);
+            TopicPartition tp = bySource.get(k.source());
+            if (tp != null) {
+                states.get(tp).restoreUnit(k.unit(), StateCodec.unit(value));
             }
         });
+        for (TopicPartition tp : partitions) {
+            long leftOut = states.get(tp).unitsLeftOut();
+            if (leftOut > 0) {
+                LOG.warn("{}: {} restored unit(s) left out: their experiment or arm is no longer configured", source(tp), leftOut);
+            }
+        }
         LOG.info("tally stage owns {} input partition(s); state restored", partitions.size());
     }
 

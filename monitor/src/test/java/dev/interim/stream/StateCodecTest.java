@@ -1,16 +1,24 @@
 package dev.interim.stream;
 
 import static org.assertj.core.api.Assertions.assertThat;
+import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
 import dev.interim.experiment.Decision;
 import dev.interim.sequential.GroupSequentialDesign;
 import dev.interim.sequential.SequentialMonitor;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.Alternative;
+import java.nio.charset.StandardCharsets;
 import java.util.List;
+import java.util.Map;
+import java.util.Set;
 import org.junit.jupiter.api.Test;
 
-/** The look-history record round-trips the monitor's state exactly; version-1 records still read. */
+/**
+ * The look-history record round-trips the monitor's state exactly; version-1 records still read.
+ * Unit records and their keys round-trip exactly too, and the JSON unit records of version 1, keyed
+ * by the unit id as text, still read as the unit they were.
+ */
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class StateCodecTest {
@@ -35,5 +43,74 @@ class StateCodecTest {
         StateCodec.History h = StateCodec.history(v1);
         assertThat(h.fractions()).isEqualTo(List.of(0.1, 0.2));
         assertThat(h.snapshot()).isNull();
+    }
+
+    // ---- the units changelog ----------------------------------------------------------------------
+
+    @Test
+    void aUnitRecordRoundTripsBitForBit() {
+        PartitionState.UnitState u = new PartitionState.UnitState("bold", Set.of("booked", "returned"),
+                Map.of("spend", -0.1, "tiny", Double.MIN_VALUE, "huge", 1e300, "negativeZero", -0.0));
+        PartitionState.UnitState back = StateCodec.unit(StateCodec.unit(u));
+        // common practice: Double.equals compares the bits, so -0.0 and every last digit must survive
+        assertThat(back).isEqualTo(u);
+        PartitionState.UnitState bare = new PartitionState.UnitState("a", Set.of(), Map.of());
+        assertThat(StateCodec.unit(StateCodec.unit(bare))).isEqualTo(bare);
+    }
+
+    @Test
+    void aUnitRecordIsTheVersionByteTheArmAndTheNamedTotals() {
+        byte[] record = StateCodec.unit(new PartitionState.UnitState("new", Set.of(), Map.of("spend", 42.5)));
+        // the layout documented in StateCodec.unit: 1 version byte, 1 + 3 for "new", 1 for no met
+        // metric, 1 for one total, then 1 + 5 for "spend" and 8 for its bits
+        assertThat(record).hasSize(21);
+        assertThat(record[0]).isEqualTo(StateCodec.UNIT_VERSION);
+        assertThat(java.util.Arrays.copyOfRange(record, 13, 21))
+                .isEqualTo(java.nio.ByteBuffer.allocate(8).putDouble(42.5).array());
+    }
+
+    @Test
+    void aUnitKeyRoundTripsWhateverBytesItsHashHas() {
+        // invented keys whose hash bytes are the separators themselves, and their complements
+        for (PartitionState.UnitKey unit : List.of(
+                new PartitionState.UnitKey("harbor-search", 0x1e1f1e1f1e1f1e1fL, 0x1f1e1f1e),
+                new PartitionState.UnitKey("harbor-search", -1L, 0),
+                PartitionState.unitKey("h.maps_2", "ana"))) {
+            byte[] key = StateCodec.unitKey("harbor.events-11", unit);
+            byte[] value = StateCodec.unit(new PartitionState.UnitState("a", Set.of(), Map.of()));
+            assertThat(StateCodec.unitKey(key, value)).isEqualTo(new StateCodec.UnitRecordKey("harbor.events-11", unit));
+            // the layout documented in StateCodec.unitKey: source, 0x1e, experiment, 0x1f, 12 bytes
+            assertThat(key).hasSize("harbor.events-11".length() + 1 + unit.experiment().length() + 1 + 12);
+        }
+    }
+
+    @Test
+    void versionOneUnitRecordsStillReadAsTheSameUnit() {
+        String unit = "ana\u001e\u001f🦊";
+        byte[] key = ("harbor.events-0\u001eharbor-search\u001f" + unit).getBytes(StandardCharsets.UTF_8);
+        byte[] value = "{\"v\":1,\"arm\":\"old\",\"totals\":{\"spend\":42.5},\"met\":[\"booked\"]}"
+                .getBytes(StandardCharsets.UTF_8);
+        // the key of version 1 was the id as text: it is hashed to the key the unit has now
+        assertThat(StateCodec.unitKey(key, value)).isEqualTo(
+                new StateCodec.UnitRecordKey("harbor.events-0", PartitionState.unitKey("harbor-search", unit)));
+        assertThat(StateCodec.unit(value)).isEqualTo(
+                new PartitionState.UnitState("old", Set.of("booked"), Map.of("spend", 42.5)));
+    }
+
+    @Test
+    void aUnitRecordOfNoKnownVersionOrCutShortIsRefused() {
+        byte[] good = StateCodec.unit(new PartitionState.UnitState("new", Set.of("booked"), Map.of("spend", 1.0)));
+        assertThatThrownBy(() -> StateCodec.unit(new byte[] {9, 0, 0, 0})).isInstanceOf(IllegalArgumentException.class)
+                .hasMessageContaining("version 9");
+        for (int n = 0; n < good.length; n++) {
+            byte[] cut = java.util.Arrays.copyOf(good, n);
+            assertThatThrownBy(() -> StateCodec.unit(cut)).as("cut to %d bytes", n).isInstanceOf(IllegalArgumentException.class);
+        }
+        byte[] longer = java.util.Arrays.copyOf(good, good.length + 1);
+        assertThatThrownBy(() -> StateCodec.unit(longer)).isInstanceOf(IllegalArgumentException.class);
+        byte[] shortKey = "harbor.events-0\u001eharbor-search\u001fabc".getBytes(StandardCharsets.UTF_8);
+        assertThatThrownBy(() -> StateCodec.unitKey(shortKey, good)).isInstanceOf(IllegalArgumentException.class);
+        assertThatThrownBy(() -> StateCodec.unitKey("no separators".getBytes(StandardCharsets.UTF_8), good))
+                .isInstanceOf(IllegalArgumentException.class);
     }
 }

@@ -1,0 +1,393 @@
+package dev.interim.stream;
+
+import static org.assertj.core.api.Assertions.assertThat;
+import static org.assertj.core.api.Assertions.assertThatThrownBy;
+import static org.assertj.core.api.Assertions.within;
+
+import dev.interim.config.ConfigLoader;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.Tally;
+import dev.interim.stats.Moments;
+import dev.interim.stats.ProportionCounts;
+import java.lang.management.ManagementFactory;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import net.jqwik.api.Arbitraries;
+import net.jqwik.api.Arbitrary;
+import net.jqwik.api.Combinators;
+import net.jqwik.api.ForAll;
+import net.jqwik.api.Property;
+import net.jqwik.api.Provide;
+import org.junit.jupiter.api.Assumptions;
+import org.junit.jupiter.api.Test;
+
+/**
+ * The per-unit rules of the partition state (docs/configuration.md, metric kinds): a unit is
+ * counted once, in the arm of its first event; a unit-rate counts a unit's success once; a
+ * unit-total replaces the unit's old total by its new one. And what a commit writes is enough: state
+ * restored from the drained partials and units, through their codec, counts on exactly as the
+ * original does. The experiments and events are invented (a fictional lantern shop).
+ */
+// Source: expected values are counted by hand from the invented events of each test, or come from
+// the original state itself (the restore property: its own ground truth); no published statistical
+// values are checked here.
+class PartitionStateTest {
+    private static final String YAML = """
+            kafka:
+              input_topics: [lantern.events]
+              input_keyed_by_unit: true
+            events:
+              experiment: /exp
+              arm: /arm
+              unit: /user
+            experiments:
+              - id: lantern-checkout
+                control: old
+                treatments: [new, bold]
+                metrics:
+                  - {name: errors, kind: event-rate, role: guardrail, worse: higher, field: /status,
+                     counts_if: {equals: error}, max_per_arm: 1000}
+                  - {name: ms, kind: event-mean, role: guardrail, worse: higher, field: /ms, max_per_arm: 1000}
+                  - {name: booked, kind: unit-rate, role: primary, worse: lower, field: /step,
+                     counts_if: {equals: booked}, max_per_arm: 1000}
+                  - {name: returned, kind: unit-rate, role: guardrail, worse: higher, field: /back,
+                     counts_if: {equals: true}, max_per_arm: 1000}
+                  - {name: spend, kind: unit-total, role: guardrail, worse: lower, field: /spend, max_per_arm: 1000}
+                  - {name: items, kind: unit-total, role: guardrail, worse: lower, field: /items, max_per_arm: 1000}
+              - id: lantern-maps
+                control: a
+                treatments: [b]
+                metrics:
+                  - {name: errors, kind: event-rate, role: guardrail, worse: higher, field: /status,
+                     counts_if: {equals: error}, max_per_arm: 1000}
+                  - {name: ms, kind: event-mean, role: guardrail, worse: higher, field: /ms, max_per_arm: 1000}
+            """;
+    private static final List<ExperimentDefinition> DEFINITIONS =
+            ConfigLoader.parseWithoutSecrets(YAML).experiments().stream().map(e -> e.definition()).toList();
+    private static final Catalog CATALOG = new Catalog(DEFINITIONS);
+    private static final String SOURCE = "lantern.events-3";
+    private static final String SHOP = "lantern-checkout";
+    private static final String MAPS = "lantern-maps";
+
+    private static PartitionState state() {
+        return new PartitionState(SOURCE, CATALOG);
+    }
+
+    private static Map<PartialKey, Tally> byKey(List<PartitionState.Partial> partials) {
+        Map<PartialKey, Tally> out = new HashMap<>();
+        for (PartitionState.Partial p : partials) {
+            assertThat(out.put(p.key(), p.tally())).as("one partial per key: %s", p.key()).isNull();
+        }
+        return out;
+    }
+
+    private static Tally tally(PartitionState s, String experiment, String arm, String metric) {
+        return byKey(s.partials()).get(new PartialKey(experiment, arm, metric, SOURCE));
+    }
+
+    private static ProportionCounts rate(PartitionState s, String arm, String metric) {
+        Tally t = tally(s, SHOP, arm, metric);
+        return t == null ? null : ((Tally.Rate) t).counts();
+    }
+
+    private static Moments mean(PartitionState s, String arm, String metric) {
+        Tally t = tally(s, SHOP, arm, metric);
+        return t == null ? null : ((Tally.Mean) t).moments();
+    }
+
+    // ---- the per-unit rules ---------------------------------------------------------------------
+
+    @Test
+    void aUnitIsCountedOnceInTheArmOfItsFirstEvent() {
+        PartitionState s = state();
+        s.exposure(SHOP, "old", "ana");
+        s.exposure(SHOP, "old", "ana");
+        s.exposure(SHOP, "new", "ana");
+        s.outcome(SHOP, "new", "ana", "booked", true);
+        s.value(SHOP, "new", "ana", "spend", 12.0);
+        s.outcome(SHOP, "new", "ana", "errors", true);
+        s.exposure(SHOP, "new", "ben");
+
+        assertThat(rate(s, "old", PartialKey.EXPOSURES)).as("ana: one unit, in old").isEqualTo(new ProportionCounts(0, 1));
+        assertThat(rate(s, "new", PartialKey.EXPOSURES)).as("ben only").isEqualTo(new ProportionCounts(0, 1));
+        assertThat(rate(s, "old", "booked")).as("ana's success counts in her first arm").isEqualTo(new ProportionCounts(1, 1));
+        assertThat(rate(s, "new", "booked")).as("ben: a unit without success").isEqualTo(new ProportionCounts(0, 1));
+        assertThat(mean(s, "old", "spend").count()).isEqualTo(1);
+        assertThat(mean(s, "old", "spend").mean()).isEqualTo(12.0);
+        assertThat(rate(s, "new", "errors")).as("event-level metrics count in the event's arm").isEqualTo(new ProportionCounts(1, 1));
+        assertThat(rate(s, "old", "errors")).isNull();
+        assertThat(tally(s, SHOP, "bold", PartialKey.EXPOSURES)).as("an arm without events has no partial").isNull();
+        assertThat(s.unitCount()).isEqualTo(2);
+    }
+
+    @Test
+    void aUnitRateCountsEveryUnitOnceAndItsSuccessOnce() {
+        PartitionState s = state();
+        for (int i = 0; i < 3; i++) {
+            s.exposure(SHOP, "old", "cem");
+            s.outcome(SHOP, "old", "cem", "booked", true);
+        }
+        s.exposure(SHOP, "old", "dia");
+        s.outcome(SHOP, "old", "dia", "booked", false);
+        s.outcome(SHOP, "old", "dia", "returned", true);
+        s.outcome(SHOP, "old", "dia", "booked", true);
+
+        assertThat(rate(s, "old", "booked")).as("cem (3 successes) and dia (1): 2 of 2 units").isEqualTo(new ProportionCounts(2, 2));
+        assertThat(rate(s, "old", "returned")).as("dia only").isEqualTo(new ProportionCounts(1, 2));
+        assertThat(rate(s, "old", PartialKey.EXPOSURES)).isEqualTo(new ProportionCounts(0, 2));
+    }
+
+    @Test
+    void aUnitTotalRemovesTheUnitsOldTotalAndAcceptsItsNewOne() {
+        PartitionState s = state();
+        s.exposure(SHOP, "new", "eda");
+        s.value(SHOP, "new", "eda", "spend", 40.0);
+        s.value(SHOP, "new", "eda", "spend", 2.5);
+        s.exposure(SHOP, "new", "fay");
+        s.value(SHOP, "new", "fay", "items", 3);
+
+        Moments spend = mean(s, "new", "spend");
+        assertThat(spend.count()).as("one total per unit: eda 42.5, fay 0").isEqualTo(2);
+        assertThat(spend.mean()).isCloseTo(21.25, within(1e-12));
+        assertThat(spend.sumSquaredDeviations()).as("2 × 21.25²").isCloseTo(903.125, within(1e-9));
+        Moments items = mean(s, "new", "items");
+        assertThat(items.count()).isEqualTo(2);
+        assertThat(items.mean()).as("eda 0, fay 3").isCloseTo(1.5, within(1e-12));
+    }
+
+    @Test
+    void eventsWithoutAUnitCountAsEvents() {
+        PartitionState s = state();
+        s.exposure(MAPS, "a", null);
+        s.outcome(MAPS, "a", null, "errors", true);
+        s.exposure(MAPS, "a", null);
+        s.value(MAPS, "a", null, "ms", 80);
+        assertThat(((Tally.Rate) tally(s, MAPS, "a", PartialKey.EXPOSURES)).counts()).isEqualTo(new ProportionCounts(0, 2));
+        assertThat(((Tally.Rate) tally(s, MAPS, "a", "errors")).counts()).isEqualTo(new ProportionCounts(1, 1));
+        assertThat(s.unitCount()).isZero();
+        assertThat(s.drainAccepted()).as("one exposure call per event").isEqualTo(Map.of(MAPS, 2L));
+        assertThat(s.drainAccepted()).isEmpty();
+    }
+
+    @Test
+    void theSinkRefusesWhatTheCatalogDoesNotHave() {
+        PartitionState s = state();
+        assertThatThrownBy(() -> s.exposure("lantern-nothing", "a", "u")).isInstanceOf(IllegalArgumentException.class);
+        assertThatThrownBy(() -> s.exposure(SHOP, "teal", "u")).isInstanceOf(IllegalArgumentException.class);
+        assertThatThrownBy(() -> s.value(SHOP, "old", "u", "weight", 1)).isInstanceOf(IllegalArgumentException.class);
+        assertThatThrownBy(() -> s.value(SHOP, "old", null, "spend", 1)).isInstanceOf(IllegalArgumentException.class)
+                .hasMessageContaining("unit");
+        assertThat(s.partials()).isEmpty();
+    }
+
+    // ---- what a commit writes, and what a restore reads -----------------------------------------
+
+    @Test
+    void restoredStateLeavesOutWhatTheCatalogNoLongerHas() {
+        PartitionState s = state();
+        PartialKey gone = new PartialKey(SHOP, "old", "weight", SOURCE);
+        PartialKey changedKind = new PartialKey(SHOP, "old", "errors", SOURCE);
+        s.restore(new PartitionState.Partial(gone, new Tally.Rate(new ProportionCounts(1, 4))));
+        s.restore(new PartitionState.Partial(changedKind, new Tally.Mean(Moments.ofValues(1, 2))));
+        s.restoreUnit(PartitionState.unitKey(SHOP, "gil"), new PartitionState.UnitState("teal", Set.of(), Map.of()));
+        s.restoreUnit(PartitionState.unitKey(SHOP, "hal"), new PartitionState.UnitState("new", Set.of("booked", "weight"),
+                Map.of("spend", 5.0, "weight", 2.0)));
+        s.restore(new PartitionState.Partial(new PartialKey(SHOP, "new", "spend", SOURCE), new Tally.Mean(Moments.ofValues(5.0))));
+
+        assertThat(byKey(s.partials())).as("kept apart, still listed")
+                .containsEntry(gone, new Tally.Rate(new ProportionCounts(1, 4)))
+                .containsEntry(changedKind, new Tally.Mean(Moments.ofValues(1, 2)));
+        assertThat(s.unitsLeftOut()).as("gil's arm is gone").isEqualTo(1);
+        assertThat(s.unitCount()).isEqualTo(1);
+        s.outcome(SHOP, "old", "x", "errors", true);
+        assertThat(rate(s, "old", "errors")).as("an event starts the metric anew, replacing the one kept apart")
+                .isEqualTo(new ProportionCounts(1, 1));
+        Map<PartitionState.UnitKey, PartitionState.UnitState> none = s.drainChangedUnits();
+        s.outcome(SHOP, "old", "hal", "booked", true);
+        s.value(SHOP, "old", "hal", "spend", 1.0);
+        Map<PartitionState.UnitKey, PartitionState.UnitState> hal = s.drainChangedUnits();
+        assertThat(none).as("restored units are not changed, and an event-level outcome keeps no unit").isEmpty();
+        assertThat(hal).as("hal kept his arm, his success and his total; unknown names dropped")
+                .containsExactly(Map.entry(PartitionState.unitKey(SHOP, "hal"),
+                        new PartitionState.UnitState("new", Set.of("booked"), Map.of("spend", 6.0))));
+    }
+
+    /** One call on the sink, over a small invented universe. */
+    record Call(int kind, String experiment, String arm, String unit, String metric, double number) {
+        void applyTo(ObservationSink sink) {
+            switch (kind) {
+                case 0 -> sink.exposure(experiment, arm, unit);
+                case 1 -> sink.outcome(experiment, arm, unit, metric, number != 0);
+                default -> sink.value(experiment, arm, unit, metric, number);
+            }
+        }
+    }
+
+    /** A step of the run: an event (its exposure, then its observations) or a commit (-1 calls). */
+    record Step(List<Call> calls) {
+        boolean commit() {
+            return calls.isEmpty();
+        }
+    }
+
+    @Provide
+    Arbitrary<List<Step>> runs() {
+        Arbitrary<String> units = Arbitraries.of("u0", "u1", "u2", "u3", "u4", "u5", "u6", "u7", "u8", "u9", "ünï", "🦊")
+                .map(u -> new String(u.toCharArray()));   // a new object per event, as the reader gives
+        Arbitrary<Step> shop = Combinators.combine(Arbitraries.of("old", "new", "bold"), units,
+                Arbitraries.integers().between(0, 63), Arbitraries.doubles().between(-50, 500).ofScale(2),
+                Arbitraries.doubles().between(0, 900).ofScale(1)).as((arm, unit, mask, spend, ms) -> {
+                    List<Call> calls = new ArrayList<>();
+                    calls.add(new Call(0, SHOP, arm, unit, null, 0));
+                    if ((mask & 1) != 0) {
+                        calls.add(new Call(1, SHOP, arm, unit, "errors", (mask & 2)));
+                    }
+                    if ((mask & 4) != 0) {
+                        calls.add(new Call(2, SHOP, arm, unit, "ms", ms));
+                    }
+                    if ((mask & 8) != 0) {
+                        calls.add(new Call(1, SHOP, arm, unit, "booked", (mask & 16)));
+                    }
+                    if ((mask & 32) != 0) {
+                        calls.add(new Call(1, SHOP, arm, unit, "returned", 1));
+                    }
+                    if ((mask & 3) == 3) {
+                        calls.add(new Call(2, SHOP, arm, unit, "spend", spend));
+                    }
+                    if ((mask & 12) == 12) {
+                        calls.add(new Call(2, SHOP, arm, unit, "items", mask));
+                    }
+                    return new Step(calls);
+                });
+        Arbitrary<Step> maps = Combinators.combine(Arbitraries.of("a", "b"), Arbitraries.of("u1", "u2", "m1", "m2"),
+                Arbitraries.integers().between(0, 3)).as((arm, unit, mask) -> new Step(List.of(
+                        new Call(0, MAPS, arm, unit, null, 0), new Call(1, MAPS, arm, unit, "errors", mask & 1))));
+        return Arbitraries.frequencyOf(
+                net.jqwik.api.Tuple.of(12, shop),
+                net.jqwik.api.Tuple.of(3, maps),
+                net.jqwik.api.Tuple.of(1, Arbitraries.just(new Step(List.of()))))
+                .list().ofMaxSize(150);
+    }
+
+    /**
+     * Commits at any points, as the tally stage makes them (changed partials and changed units
+     * through their codec, into compacted topics: the last value of a key wins), then a new owner
+     * restores from those topics and both count on: their partials stay equal, bit for bit. At every
+     * commit the drained partials are exactly those whose value changed, each with its current value.
+     */
+    @Property(tries = 300)
+    void stateRestoredFromTheCommittedRecordsCountsOnExactlyAsTheOriginal(@ForAll("runs") List<Step> before,
+            @ForAll("runs") List<Step> after) {
+        PartitionState original = state();
+        Map<String, byte[]> tallies = new HashMap<>();
+        Map<String, byte[]> unitKeys = new HashMap<>();
+        Map<String, byte[]> unitValues = new HashMap<>();
+        Map<PartialKey, Tally> committed = new HashMap<>();
+        for (Step step : before) {
+            if (step.commit()) {
+                commit(original, tallies, unitKeys, unitValues, committed);
+            } else {
+                step.calls().forEach(c -> c.applyTo(original));
+            }
+        }
+        commit(original, tallies, unitKeys, unitValues, committed);
+
+        PartitionState restored = state();
+        tallies.forEach((text, bytes) ->
+                restored.restore(new PartitionState.Partial(PartialKey.parse(text), StateCodec.partial(bytes))));
+        unitKeys.forEach((id, key) -> {
+            StateCodec.UnitRecordKey k = StateCodec.unitKey(key, unitValues.get(id));
+            assertThat(k.source()).isEqualTo(SOURCE);
+            restored.restoreUnit(k.unit(), StateCodec.unit(unitValues.get(id)));
+        });
+        assertThat(byKey(restored.partials())).isEqualTo(byKey(original.partials()));
+        assertThat(restored.unitCount()).isEqualTo(original.unitCount());
+        assertThat(restored.drainChangedPartials()).as("a restore changes nothing").isEmpty();
+        assertThat(restored.drainChangedUnits()).isEmpty();
+
+        for (Step step : after) {
+            step.calls().forEach(c -> {
+                c.applyTo(original);
+                c.applyTo(restored);
+            });
+        }
+        assertThat(byKey(restored.partials())).isEqualTo(byKey(original.partials()));
+        assertThat(restored.drainChangedUnits()).isEqualTo(original.drainChangedUnits());
+        assertThat(byKey(restored.drainChangedPartials())).isEqualTo(byKey(original.drainChangedPartials()));
+    }
+
+    private static void commit(PartitionState s, Map<String, byte[]> tallies, Map<String, byte[]> unitKeys,
+            Map<String, byte[]> unitValues, Map<PartialKey, Tally> committed) {
+        Map<PartialKey, Tally> now = byKey(s.partials());
+        Map<PartialKey, Tally> drained = byKey(s.drainChangedPartials());
+        Set<PartialKey> differing = new HashSet<>();
+        now.forEach((k, t) -> {
+            if (!t.equals(committed.get(k))) {
+                differing.add(k);
+            }
+        });
+        assertThat(drained.keySet()).as("every partial that changed is drained").containsAll(differing);
+        drained.forEach((k, t) -> assertThat(t).as("drained with its current value").isEqualTo(now.get(k)));
+        drained.forEach((k, t) -> tallies.put(k.text(), StateCodec.partial(t)));
+        committed.putAll(drained);
+        s.drainChangedUnits((unit, u) -> {
+            byte[] key = StateCodec.unitKey(SOURCE, unit);
+            String id = new String(key, java.nio.charset.StandardCharsets.ISO_8859_1);
+            unitKeys.put(id, key);
+            unitValues.put(id, StateCodec.unit(u));
+        });
+    }
+
+    // ---- the hot path -------------------------------------------------------------------------------
+
+    @Test
+    void eventLevelObservationsAllocateNothingOnceTheirHoldersExist() {
+        java.lang.management.ThreadMXBean bean = ManagementFactory.getThreadMXBean();
+        Assumptions.assumeTrue(bean instanceof com.sun.management.ThreadMXBean t && t.isThreadAllocatedMemorySupported(),
+                "this JVM does not count a thread's allocations");
+        com.sun.management.ThreadMXBean threads = (com.sun.management.ThreadMXBean) bean;
+        PartitionState s = state();
+        String unit = "ivo";
+        Runnable events = () -> {
+            for (int i = 0; i < 20_000; i++) {
+                s.exposure(MAPS, (i & 1) == 0 ? "a" : "b", null);
+                s.outcome(MAPS, (i & 1) == 0 ? "a" : "b", null, "errors", (i % 7) == 0);
+                s.exposure(SHOP, "new", unit);
+                s.outcome(SHOP, "new", unit, "errors", (i % 3) == 0);
+                s.outcome(SHOP, "new", unit, "booked", true);
+            }
+        };
+        events.run();
+        s.drainChangedPartials();
+        long thread = Thread.currentThread().getId();
+        long start = threads.getThreadAllocatedBytes(thread);
+        events.run();
+        long allocated = threads.getThreadAllocatedBytes(thread) - start;
+        // common practice: a hot path that allocates per call shows it at once (a 24-byte key per call
+        // would be 2.4 MB here); a little slack for the measuring itself
+        assertThat(allocated).as("bytes allocated by 100,000 calls").isLessThan(4096);
+    }
+
+    @Test
+    void theChangedUnitsAreDrainedOnceWithTheirState() {
+        PartitionState s = state();
+        s.exposure(SHOP, "bold", "jo");
+        s.value(SHOP, "bold", "jo", "spend", 7.25);
+        s.exposure(MAPS, "b", "jo");
+        Map<PartitionState.UnitKey, PartitionState.UnitState> first = s.drainChangedUnits();
+        Map<PartitionState.UnitKey, PartitionState.UnitState> expected = new LinkedHashMap<>();
+        expected.put(PartitionState.unitKey(SHOP, "jo"), new PartitionState.UnitState("bold", Set.of(), Map.of("spend", 7.25)));
+        expected.put(PartitionState.unitKey(MAPS, "jo"), new PartitionState.UnitState("b", Set.of(), Map.of()));
+        assertThat(first).as("one unit per experiment").isEqualTo(expected);
+        assertThat(s.drainChangedUnits()).isEmpty();
+        s.exposure(SHOP, "bold", "jo");
+        assertThat(s.drainChangedUnits()).as("an exposure of a known unit changes nothing of it").isEmpty();
+        s.outcome(SHOP, "bold", "jo", "returned", true);
+        assertThat(s.drainChangedUnits()).containsOnlyKeys(PartitionState.unitKey(SHOP, "jo"));
+    }
+}
