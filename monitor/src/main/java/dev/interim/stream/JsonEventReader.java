@@ -1,13 +1,12 @@
 package dev.interim.stream;
 
 import com.fasterxml.jackson.core.JsonFactory;
+import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.core.JsonPointer;
+import com.fasterxml.jackson.core.JsonToken;
 import com.fasterxml.jackson.core.StreamReadConstraints;
 import com.fasterxml.jackson.core.StreamReadFeature;
-import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.JsonNode;
-import com.fasterxml.jackson.databind.ObjectMapper;
-import com.fasterxml.jackson.databind.json.JsonMapper;
 import dev.interim.config.EventMapping;
 import dev.interim.config.ExperimentConfig;
 import dev.interim.config.InterimConfig;
@@ -17,7 +16,10 @@ import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.stream.BadEventException.Reason;
 import java.io.IOException;
+import java.lang.invoke.MethodHandles;
+import java.lang.invoke.VarHandle;
 import java.nio.ByteBuffer;
+import java.nio.ByteOrder;
 import java.nio.charset.CharacterCodingException;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
@@ -37,6 +39,12 @@ import java.util.Map;
  * one leading byte order mark is allowed, §8.1). The experiment, arm and unit must also be Unicode
  * text: a JSON escape can write an unpaired surrogate (U+D800 alone), which UTF-8 cannot carry, so
  * two such units would become one key in the state topics.
+ *
+ * <p>An event is read in one pass over its tokens, with no tree: only the values the pointers find
+ * are decoded ({@link PointerTrie}); every other token is still read, so the parser checks the whole
+ * input as it would to build the tree. All checks of what was found come after that pass, in the
+ * order the fields are listed above, so the first fault found is the same whatever the members'
+ * order.
  */
 public final class JsonEventReader implements EventReader {
     /** Events above this size are refused before parsing. */
@@ -54,27 +62,39 @@ public final class JsonEventReader implements EventReader {
      */
     public static final int MAX_UNIT_LENGTH = 1024;
     private static final int MAX_DEPTH = 64;
+    /** Eight bytes of an array read as one long (any byte order: only the high bits are looked at). */
+    private static final VarHandle EIGHT_BYTES = MethodHandles.byteArrayViewVarHandle(long[].class, ByteOrder.nativeOrder());
+    /** The high bit of each of eight bytes: set only in the bytes of multi-byte UTF-8 sequences. */
+    private static final long HIGH_BITS = 0x8080_8080_8080_8080L;
 
-    private final ObjectMapper json;
+    private final JsonFactory json;
     private final EventMapping mapping;
+    private final PointerTrie pointers = new PointerTrie();
+    private final int experimentSlot;
+    private final int armSlot;
+    /** The unit's slot, or -1 when no unit is mapped. */
+    private final int unitSlot;
     private final Map<String, Experiment> experiments = new HashMap<>();
 
-    private record Metric(String name, MetricSource source) {}
+    private record Metric(String name, MetricSource source, int slot) {}
 
     private record Experiment(ExperimentDefinition definition, List<Metric> metrics, boolean needsUnit) {}
 
     public JsonEventReader(InterimConfig config) {
         this.mapping = config.events();
-        JsonFactory factory = JsonFactory.builder()
+        this.json = JsonFactory.builder()
                 .streamReadConstraints(StreamReadConstraints.builder()
                         .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
                 .enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION)
                 .build();
-        this.json = JsonMapper.builder(factory).enable(DeserializationFeature.FAIL_ON_TRAILING_TOKENS).build();
+        this.experimentSlot = pointers.add(mapping.experiment());
+        this.armSlot = pointers.add(mapping.arm());
+        this.unitSlot = mapping.unit().map(pointers::add).orElse(-1);
         for (ExperimentConfig e : config.experiments()) {
             List<Metric> metrics = new ArrayList<>();
             for (MetricDefinition m : e.definition().metrics()) {
-                metrics.add(new Metric(m.name(), e.source(m)));
+                MetricSource source = e.source(m);
+                metrics.add(new Metric(m.name(), source, pointers.add(source.field())));
             }
             experiments.put(e.definition().id(), new Experiment(e.definition(), metrics, e.definition().needsUnits()));
         }
@@ -88,28 +108,43 @@ public final class JsonEventReader implements EventReader {
         if (!wellFormedUtf8(value)) {
             throw new BadEventException(Reason.NOT_JSON, "not UTF-8: the event holds an ill-formed byte sequence");
         }
-        JsonNode event;
-        try {
-            event = json.readTree(value);
+        // Every pointer's find, by slot: a scalar node, PointerTrie.OBJECT or .ARRAY, or null (missing).
+        JsonNode[] found = new JsonNode[pointers.slots()];
+        JsonToken first;
+        JsonToken trailing;
+        try (JsonParser p = json.createParser(value)) {
+            first = p.nextToken();
+            if (first == null) {                          // nothing but whitespace
+                throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
+            }
+            pointers.read(p, first, found);
+            trailing = p.nextToken();
         } catch (IOException | RuntimeException e) {
             throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + firstLine(e.getMessage()));
         }
-        if (event == null || !event.isObject()) {
+        if (trailing != null) {
+            // Worded as ObjectMapper words it (DeserializationFeature.FAIL_ON_TRAILING_TOKENS), as
+            // this reader did when it read events as trees.
+            throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + clip("Trailing token (of type "
+                    + trailing + ") found after value (bound as `" + JsonNode.class.getName()
+                    + "`): not allowed as per `DeserializationFeature.FAIL_ON_TRAILING_TOKENS`"));
+        }
+        if (first != JsonToken.START_OBJECT) {
             throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
         }
-        String experimentId = text(event, mapping.experiment(), "experiment");
+        String experimentId = text(found, experimentSlot, mapping.experiment(), "experiment");
         Experiment experiment = experiments.get(experimentId);
         if (experiment == null) {
             throw new BadEventException(Reason.UNKNOWN_EXPERIMENT, "unknown experiment '" + clip(experimentId) + "'");
         }
-        String arm = text(event, mapping.arm(), "arm");
+        String arm = text(found, armSlot, mapping.arm(), "arm");
         ExperimentDefinition d = experiment.definition();
         if (!d.control().equals(arm) && !d.treatments().contains(arm)) {
             throw new BadEventException(Reason.UNKNOWN_ARM, "experiment '" + experimentId + "' has no arm '" + clip(arm) + "'");
         }
         String unit = null;
         if (mapping.unit().isPresent()) {
-            JsonNode u = event.at(mapping.unit().get());
+            JsonNode u = PointerTrie.found(found, unitSlot);
             if (u.isTextual() && !isUnicode(u.textValue())) {
                 throw new BadEventException(Reason.WRONG_TYPE, "unit at " + mapping.unit().get()
                         + " is not Unicode text: it holds an unpaired surrogate escape");
@@ -135,7 +170,7 @@ public final class JsonEventReader implements EventReader {
         double[] numbers = new double[n];
         for (int i = 0; i < n; i++) {
             Metric m = experiment.metrics().get(i);
-            JsonNode field = event.at(m.source().field());
+            JsonNode field = PointerTrie.found(found, m.slot());
             if (field.isMissingNode() || field.isNull()) {
                 continue;
             }
@@ -186,8 +221,8 @@ public final class JsonEventReader implements EventReader {
         }
     }
 
-    private static String text(JsonNode event, JsonPointer pointer, String what) throws BadEventException {
-        JsonNode node = event.at(pointer);
+    private static String text(JsonNode[] found, int slot, JsonPointer pointer, String what) throws BadEventException {
+        JsonNode node = PointerTrie.found(found, slot);
         if (node.isMissingNode() || node.isNull()) {
             throw new BadEventException(Reason.MISSING_FIELD, "no " + what + " at " + pointer);
         }
@@ -204,10 +239,16 @@ public final class JsonEventReader implements EventReader {
     /**
      * Whether {@code value} is well-formed UTF-8. Jackson's own decoding lets overlong forms, encoded
      * surrogates and code points above U+10FFFF through, so the JDK's strict decoder checks the bytes
-     * from the first non-ASCII one on; an all-ASCII event, the usual case, costs one pass.
+     * from the first non-ASCII one on; an all-ASCII event, the usual case, costs one pass, eight
+     * bytes at a time.
      */
     private static boolean wellFormedUtf8(byte[] value) {
         int first = 0;
+        for (int last = value.length - Long.BYTES; first <= last; first += Long.BYTES) {
+            if (((long) EIGHT_BYTES.get(value, first) & HIGH_BITS) != 0) {
+                break;
+            }
+        }
         while (first < value.length && value[first] >= 0) {
             first++;
         }
