@@ -26,6 +26,8 @@ final class Clients {
         p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
         p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
         p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
+        // A commit can write a record per changed unit: larger batches, fewer requests.
+        p.putIfAbsent(ProducerConfig.BATCH_SIZE_CONFIG, 128 * 1024);
         // A crashed member's open transaction holds back every read_committed reader of the state
         // topics (and a new owner's restore) until the broker aborts it: keep that short, but well
         // above the time a stage's transaction is legitimately open (one commit interval).

@@ -112,6 +112,24 @@ final class PartitionState implements ObservationSink {
         boolean anyDirty;
         long accepted;
         UnitTable units;
+        private StateCodec.UnitEncoder encoder;
+
+        /** The encoder of this experiment's unit records, made at the first commit that has units. */
+        StateCodec.UnitEncoder encoder() {
+            if (encoder == null) {
+                String[] rateNames = new String[unitRates.length];
+                for (int i = 0; i < rateNames.length; i++) {
+                    rateNames[i] = unitRates[i].name;
+                }
+                String[] totalNames = new String[unitTotals.length];
+                for (int i = 0; i < totalNames.length; i++) {
+                    totalNames[i] = unitTotals[i].name;
+                }
+                encoder = new StateCodec.UnitEncoder(source, id, arms, rateNames, totalNames);
+            }
+            return encoder;
+        }
+
         /** Scratch of {@link #restoreUnit}, reused from one unit to the next. */
         final boolean[] restoredMet;
         final double[] restoredTotals;
@@ -395,6 +413,50 @@ final class PartitionState implements ObservationSink {
                 continue;
             }
             t.drainChanged(slot -> out.accept(new UnitKey(e.id, t.keyHi(slot), t.keyLo(slot)), unitState(e, t, slot)));
+        }
+    }
+
+    /**
+     * Hands every unit changed since the last drain to {@code out} as its changelog record (key and
+     * value bytes, see {@link StateCodec}), and clears the change set. What a commit writes.
+     */
+    void drainChangedUnitRecords(BiConsumer<byte[], byte[]> out) {
+        for (Experiment e : experiments.values()) {
+            UnitTable t = e.units;
+            if (t == null || t.changedCount() == 0) {
+                continue;
+            }
+            StateCodec.UnitEncoder encoder = e.encoder();
+            Metric[] rates = e.unitRates;
+            Metric[] totals = e.unitTotals;
+            t.drainChanged(slot -> {
+                int met = 0;
+                for (Metric m : rates) {
+                    if (t.met(slot, m.column)) {
+                        met++;
+                    }
+                }
+                encoder.begin(t.arm(slot), met);
+                for (int i = 0; i < rates.length; i++) {
+                    if (t.met(slot, rates[i].column)) {
+                        encoder.met(i);
+                    }
+                }
+                int written = 0;
+                for (Metric m : totals) {
+                    if (Double.doubleToRawLongBits(t.total(slot, m.column)) != 0) {
+                        written++;
+                    }
+                }
+                encoder.totalCount(written);
+                for (int i = 0; i < totals.length; i++) {
+                    double v = t.total(slot, totals[i].column);
+                    if (Double.doubleToRawLongBits(v) != 0) {
+                        encoder.total(i, v);
+                    }
+                }
+                out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encoder.finish());
+            });
         }
     }
 

@@ -88,6 +88,112 @@ final class StateCodec {
     }
 
     /**
+     * Writes unit records of one experiment of one input partition straight from the unit table,
+     * byte for byte what {@link #unitKey(String, PartitionState.UnitKey)} and
+     * {@link #unit(PartitionState.UnitState)} write, without the objects in between: a commit writes
+     * one record per changed unit, so this is on the tally stage's hot path. The names are encoded
+     * once; a record is built in a reused buffer. Mutable, one thread.
+     */
+    static final class UnitEncoder {
+        private final byte[] keyPrefix;
+        private final byte[][] arms;
+        private final byte[][] rates;
+        private final byte[][] totals;
+        private byte[] buffer = new byte[64];
+        private int length;
+
+        UnitEncoder(String source, String experiment, String[] armNames, String[] rateNames, String[] totalNames) {
+            byte[] s = source.getBytes(StandardCharsets.UTF_8);
+            byte[] e = experiment.getBytes(StandardCharsets.UTF_8);
+            keyPrefix = new byte[s.length + 1 + e.length + 1];
+            System.arraycopy(s, 0, keyPrefix, 0, s.length);
+            keyPrefix[s.length] = SOURCE_END;
+            System.arraycopy(e, 0, keyPrefix, s.length + 1, e.length);
+            keyPrefix[keyPrefix.length - 1] = EXPERIMENT_END;
+            arms = names(armNames);
+            rates = names(rateNames);
+            totals = names(totalNames);
+        }
+
+        private static byte[][] names(String[] names) {
+            byte[][] out = new byte[names.length][];
+            for (int i = 0; i < names.length; i++) {
+                java.io.ByteArrayOutputStream b = new java.io.ByteArrayOutputStream();
+                writeName(b, names[i]);
+                out[i] = b.toByteArray();
+            }
+            return out;
+        }
+
+        byte[] key(long hi, int lo) {
+            byte[] k = java.util.Arrays.copyOf(keyPrefix, keyPrefix.length + UNIT_HASH_BYTES);
+            int at = keyPrefix.length;
+            for (int shift = 56; shift >= 0; shift -= 8) {
+                k[at++] = (byte) (hi >>> shift);
+            }
+            for (int shift = 24; shift >= 0; shift -= 8) {
+                k[at++] = (byte) (lo >>> shift);
+            }
+            return k;
+        }
+
+        /** Starts a record: version and arm, then the count of unit-rate metrics met. */
+        void begin(int arm, int metCount) {
+            length = 0;
+            put(UNIT_VERSION);
+            put(arms[arm]);
+            putLength(metCount);
+        }
+
+        void met(int rate) {
+            put(rates[rate]);
+        }
+
+        void totalCount(int n) {
+            putLength(n);
+        }
+
+        void total(int metric, double value) {
+            put(totals[metric]);
+            long bits = Double.doubleToRawLongBits(value);
+            ensure(8);
+            for (int shift = 56; shift >= 0; shift -= 8) {
+                buffer[length++] = (byte) (bits >>> shift);
+            }
+        }
+
+        byte[] finish() {
+            return java.util.Arrays.copyOf(buffer, length);
+        }
+
+        private void put(byte b) {
+            ensure(1);
+            buffer[length++] = b;
+        }
+
+        private void put(byte[] b) {
+            ensure(b.length);
+            System.arraycopy(b, 0, buffer, length, b.length);
+            length += b.length;
+        }
+
+        private void putLength(int n) {
+            ensure(5);
+            while ((n & ~0x7f) != 0) {
+                buffer[length++] = (byte) ((n & 0x7f) | 0x80);
+                n >>>= 7;
+            }
+            buffer[length++] = (byte) n;
+        }
+
+        private void ensure(int more) {
+            if (length + more > buffer.length) {
+                buffer = java.util.Arrays.copyOf(buffer, Math.max(2 * buffer.length, length + more));
+            }
+        }
+    }
+
+    /**
      * Reads a units changelog key. Its layout follows its value's: the JSON records of version 1 were
      * keyed by the unit id as text, which is hashed here to the key that the unit has now (so state
      * written before the binary records still restores; a later binary record of the same unit, at a

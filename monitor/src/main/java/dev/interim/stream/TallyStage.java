@@ -101,22 +101,24 @@ public final class TallyStage implements Runnable, AutoCloseable {
 
     private void process(ConsumerRecords<byte[], byte[]> records) {
         begin();
-        Set<PartitionState> touched = new HashSet<>();
-        for (ConsumerRecord<byte[], byte[]> record : records) {
-            TopicPartition tp = new TopicPartition(record.topic(), record.partition());
+        // Partition by partition: one state lookup and one offset per partition and poll.
+        for (TopicPartition tp : records.partitions()) {
             PartitionState state = states.computeIfAbsent(tp, t -> new PartitionState(source(t), catalog));
-            try {
-                if (record.value() == null) {
-                    throw new BadEventException(BadEventException.Reason.MISSING_FIELD, "the record has no value");
+            long next = -1;
+            for (ConsumerRecord<byte[], byte[]> record : records.records(tp)) {
+                try {
+                    if (record.value() == null) {
+                        throw new BadEventException(BadEventException.Reason.MISSING_FIELD, "the record has no value");
+                    }
+                    reader.read(record.value(), state);
+                } catch (BadEventException e) {
+                    deadLetter(record, e);
                 }
-                reader.read(record.value(), state);
-                touched.add(state);
-            } catch (BadEventException e) {
-                deadLetter(record, e);
+                next = record.offset() + 1;
             }
-            pending.put(tp, new OffsetAndMetadata(record.offset() + 1));
-        }
-        for (PartitionState state : touched) {
+            if (next >= 0) {
+                pending.put(tp, new OffsetAndMetadata(next));
+            }
             state.drainAccepted().forEach((experiment, n) -> uncommittedAccepted.merge(experiment, n, Long::sum));
         }
     }
@@ -170,9 +172,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
                             StateCodec.key(p.key().text()), StateCodec.partial(p.tally())));
                 }
                 int unitsPartition = e.getKey().partition();
-                String source = state.source();
-                state.drainChangedUnits((unit, u) -> producer.send(new ProducerRecord<>(settings.unitsTopic(),
-                        unitsPartition, StateCodec.unitKey(source, unit), StateCodec.unit(u))));
+                state.drainChangedUnitRecords((key, value) -> producer.send(new ProducerRecord<>(settings.unitsTopic(),
+                        unitsPartition, key, value)));
             }
             if (!pending.isEmpty()) {
                 producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
