@@ -138,6 +138,10 @@ public final class StreamBench implements Callable<Integer> {
             description = "Looks before measuring heap per (experiment, arm, metric) (default 1,000; 20 with --smoke).")
     int memoryLooks;
 
+    @Option(names = "--tally-threads", paramLabel = "N", defaultValue = "1",
+            description = "The daemon's kafka.tally_threads (default 1, the daemon's default).")
+    int tallyThreads;
+
     @Option(names = "--no-memory", description = "Skip the heap measurements.")
     boolean noMemory;
 
@@ -225,6 +229,9 @@ public final class StreamBench implements Callable<Integer> {
         if (pool < 1 || pool > 100_000_000L) {
             throw new ParameterException(spec.commandLine(), "--units must be between 1 and 100,000,000, got " + pool);
         }
+        if (tallyThreads < 1 || tallyThreads > 64) {
+            throw new ParameterException(spec.commandLine(), "--tally-threads must be between 1 and 64, got " + tallyThreads);
+        }
         if (partitions < 1 || partitions > 64) {
             throw new ParameterException(spec.commandLine(), "--partitions must be between 1 and 64, got " + partitions);
         }
@@ -271,7 +278,7 @@ public final class StreamBench implements Callable<Integer> {
 
         String prefix = "bench-" + stamp;
         Path config = runDir.resolve("daemon.yaml");
-        Files.writeString(config, StreamScenario.yaml(broker.bootstrapServers(), prefix, Math.max(n, 1_000)));
+        Files.writeString(config, StreamScenario.yaml(broker.bootstrapServers(), prefix, Math.max(n, 1_000), tallyThreads));
         InterimConfig loaded = ConfigLoader.load(config);
 
         Drain a = drain("(a) plain consumer", n, null);

@@ -276,7 +276,7 @@ final class StreamScenario {
     }
 
     /** The daemon's configuration for this scenario. */
-    static String yaml(String bootstrapServers, String prefix, long maxPerArm) {
+    static String yaml(String bootstrapServers, String prefix, long maxPerArm, int tallyThreads) {
         StringBuilder b = new StringBuilder();
         b.append("# Written by dev.interim.bench.StreamBench: the invented Skylark Trips traffic on the bench's broker.\n");
         b.append("kafka:\n");
@@ -287,6 +287,7 @@ final class StreamScenario {
         b.append("  state_topic_prefix: ").append(prefix).append(".state\n");
         b.append("  consumer_group_prefix: ").append(prefix).append('\n');
         b.append("  commit_interval: 500ms\n");
+        b.append("  tally_threads: ").append(tallyThreads).append('\n');
         b.append("  input_keyed_by_unit: true\n");
         b.append("events:\n");
         b.append("  experiment: /exp/id\n");

@@ -18,7 +18,8 @@ import java.util.regex.Pattern;
 /** Reads the sections that connect the daemon to the world: kafka, events, http and webhook. */
 final class ConnectionReaders {
     static final Set<String> KAFKA_KEYS = keys("bootstrap_servers", "properties", "input_topics", "decisions_topic",
-            "dead_letter_topic", "state_topic_prefix", "consumer_group_prefix", "commit_interval", "input_keyed_by_unit");
+            "dead_letter_topic", "state_topic_prefix", "consumer_group_prefix", "commit_interval", "input_keyed_by_unit",
+            "tally_threads");
     static final Set<String> EVENTS_KEYS = keys("experiment", "arm", "unit", "time");
     static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env");
     static final Set<String> WEBHOOK_KEYS = keys("url", "signing_key_env", "timeout", "max_attempts", "initial_backoff");
@@ -28,6 +29,7 @@ final class ConnectionReaders {
     static final String DEFAULT_STATE_TOPIC_PREFIX = "interim.state";
     static final String DEFAULT_GROUP_PREFIX = "interim";
     static final Duration DEFAULT_COMMIT_INTERVAL = Duration.ofMillis(500);
+    static final int DEFAULT_TALLY_THREADS = 1;
     static final String DEFAULT_BIND_ADDRESS = "127.0.0.1";
     static final int DEFAULT_PORT = 8080;
 
@@ -66,8 +68,9 @@ final class ConnectionReaders {
         Duration commit = k.optional("commit_interval")
                 .map(d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(1))).orElse(DEFAULT_COMMIT_INTERVAL);
         boolean keyed = k.optional("input_keyed_by_unit").map(ConfigNode::bool).orElse(false);
+        int tallyThreads = k.optional("tally_threads").map(t -> t.smallInteger(1, 64)).orElse(DEFAULT_TALLY_THREADS);
         return new KafkaSettings(servers, properties, inputTopics, decisions, deadLetters, statePrefix, groupPrefix,
-                commit, keyed);
+                commit, keyed, tallyThreads);
     }
 
     private static List<String> servers(ConfigNode at) {

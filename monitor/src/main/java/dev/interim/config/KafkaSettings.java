@@ -15,10 +15,13 @@ import java.util.List;
  * @param consumerGroupPrefix prefix of the consumer group ids of the two stages
  * @param commitInterval how often the tally stage commits its transaction
  * @param inputKeyedByUnit the producers key input records by unit id (per-unit metrics need it)
+ * @param tallyThreads tally stages in this process, each a member of the tally group with its share
+ *                     of the input partitions
  */
 public record KafkaSettings(List<String> bootstrapServers, ClientProperties properties, List<String> inputTopics,
                             String decisionsTopic, String deadLetterTopic, String stateTopicPrefix,
-                            String consumerGroupPrefix, Duration commitInterval, boolean inputKeyedByUnit) {
+                            String consumerGroupPrefix, Duration commitInterval, boolean inputKeyedByUnit,
+                            int tallyThreads) {
 
     public KafkaSettings {
         bootstrapServers = List.copyOf(bootstrapServers);

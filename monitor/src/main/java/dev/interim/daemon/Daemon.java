@@ -58,7 +58,7 @@ public final class Daemon implements AutoCloseable {
     private final StreamSettings settings;
     private final Meters meters;
     private final HttpEndpoint http;
-    private final TallyStage tally;
+    private final List<TallyStage> tallies = new ArrayList<>();
     private final JudgeStage judge;
     private final List<Thread> threads = new ArrayList<>();
     private final ExecutorService webhooks;
@@ -97,7 +97,9 @@ public final class Daemon implements AutoCloseable {
                 .maxAttempts(w.maxAttempts()).backoff(w.initialBackoff(), w.initialBackoff().multipliedBy(32))
                 .requestTimeout(w.timeout()).deliveryLog(deliveries).build()).orElse(null);
         StageEvents events = new Events(meters, sender, webhooks, options.onDecision());
-        tally = new TallyStage(settings, catalog, new JsonEventReader(config), events);
+        for (int i = 0; i < config.kafka().tallyThreads(); i++) {
+            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events));
+        }
         judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write);
         http = HttpEndpoint.builder().bindAddress(config.http().bindAddress()).port(config.http().port())
                 .metrics(meters::scrape).start();
@@ -128,7 +130,9 @@ public final class Daemon implements AutoCloseable {
             }
         }, () -> config.http().adminToken().filter(dev.interim.config.Secret::isRead).map(dev.interim.config.Secret::reveal));
         dev.interim.dashboard.Dashboard.install(http, judge::views);
-        start(tally, "interim-tally");
+        for (int i = 0; i < tallies.size(); i++) {
+            start(tallies.get(i), tallies.size() == 1 ? "interim-tally" : "interim-tally-" + (i + 1));
+        }
         start(judge, "interim-judge");
         if (sender != null) {
             webhooks.submit(() -> redeliver(sender));
@@ -324,7 +328,7 @@ public final class Daemon implements AutoCloseable {
 
     @Override
     public void close() {
-        tally.close();
+        tallies.forEach(TallyStage::close);
         judge.close();
         for (Thread t : threads) {
             try {

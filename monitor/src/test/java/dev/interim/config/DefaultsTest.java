@@ -73,7 +73,7 @@ class DefaultsTest {
     @Test
     void theOptionalSettingsAreReadWhenGiven() {
         String yaml = Configs.valid(
-                "kafka:\n", "kafka:\n  bootstrap_servers: k1.example:9092, [::1]:9093\n  commit_interval: 2s\n",
+                "kafka:\n", "kafka:\n  bootstrap_servers: k1.example:9092, [::1]:9093\n  commit_interval: 2s\n  tally_threads: 3\n",
                 "  unit: /user\n", "  unit: /user\n  time: /at\n",
                 "power: 0.8", "power: 0.9\n        sides: 1\n        futility: hsd:-2\n        spending: power:3\n"
                         + "        planned_looks: 4\n        alpha: 0.025\n        baseline: 0.2",
@@ -84,6 +84,7 @@ class DefaultsTest {
         assertThat(c.kafka().bootstrapServers()).containsExactly("k1.example:9092", "[::1]:9093");
         assertThat(c.kafka().embedded()).isFalse();
         assertThat(c.kafka().commitInterval()).isEqualTo(Duration.ofSeconds(2));
+        assertThat(c.kafka().tallyThreads()).isEqualTo(3);
         assertThat(c.events().time()).isPresent();
         ExperimentDefinition e = c.experiments().get(0).definition();
         assertThat(e.lookEvery()).isEqualTo(Duration.ofSeconds(90));

@@ -93,6 +93,8 @@ class InvalidConfigTest {
                         Configs.valid("    metrics:\n", "    look_every: 500ms\n    metrics:\n")),
                 bad("kafka.commit_interval", "must be a duration with its unit",
                         Configs.valid("input_keyed_by_unit: true", "input_keyed_by_unit: true\n  commit_interval: 500")),
+                bad("kafka.tally_threads", "must lie between 1 and 64; got 0",
+                        Configs.valid("input_keyed_by_unit: true", "input_keyed_by_unit: true\n  tally_threads: 0")),
                 // names and keys
                 bad("experiments[0].metrics[0].alpah", "did you mean 'alpha'",
                         Configs.valid("max_per_arm: 10000", "max_per_arm: 10000\n        alpah: 0.01")),
