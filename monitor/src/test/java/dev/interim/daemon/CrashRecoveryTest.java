@@ -30,9 +30,9 @@ import org.junit.jupiter.api.Timeout;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
- * Nothing lost, nothing counted twice: the daemon runs as a separate OS process against a broker in
- * this JVM while a producer writes a known stream of 300,000 events (three invented experiments, two
- * metrics each); the daemon is killed with SIGKILL at three random moments and restarted each time.
+ * Nothing lost, nothing counted twice: the daemon runs as a separate OS process (two tally threads
+ * sharing the input partitions) against a broker in this JVM while a producer writes a known stream
+ * of 300,000 events (three invented experiments, two metrics each); the daemon is killed with SIGKILL at three random moments and restarted each time.
  * At the end its tallies, read through its JSON API, equal the ground truth computed here while
  * writing (counts exactly, sums within 1e-9 relative), and the decisions topic holds no duplicate
  * decision id and no gap in any comparison's chain of states.
@@ -224,6 +224,7 @@ class CrashRecoveryTest {
                       state_topic_prefix: harbor.state
                       consumer_group_prefix: harbor
                       commit_interval: 300ms
+                      tally_threads: 2
                     events:
                       experiment: /exp
                       arm: /arm
