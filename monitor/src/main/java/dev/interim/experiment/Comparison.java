@@ -35,7 +35,9 @@ public final class Comparison {
     /** Planned maximum information for a powered horizon; NaN for a maximum per arm. */
     private final double poweredInformation;
     private SequentialMonitor monitor;
-    private final List<Double> fractions = new ArrayList<>();
+    /** The recent fractions, oldest first: {@code recentCount} of them, unboxed. */
+    private double[] recent = new double[16];
+    private int recentCount;
     private Decision decision = Decision.CONTINUE;
     private LookResult last;
     /** Looks kept for views and charts; beyond this, every other older point is dropped. */
@@ -100,9 +102,16 @@ public final class Comparison {
         return last;
     }
 
-    /** Information fractions of the recent looks, in order (at most {@link #KEPT_FRACTIONS}; for tests and tools). */
+    /**
+     * Information fractions of the recent looks, in order (at most {@link #KEPT_FRACTIONS}, and at
+     * least half that many once so many looks were made; for tests and tools).
+     */
     public List<Double> fractions() {
-        return List.copyOf(fractions);
+        List<Double> out = new ArrayList<>(recentCount);
+        for (int i = 0; i < recentCount; i++) {
+            out.add(recent[i]);
+        }
+        return out;
     }
 
     /** The sequential state, a few kilobytes whatever the number of looks: with the decision, all a restart needs. */
@@ -113,17 +122,17 @@ public final class Comparison {
     /** Rebuilds the state after a restart from a {@link #snapshot()} and the decision. */
     public void restore(SequentialMonitor.Snapshot snapshot, Decision restored) {
         monitor = SequentialMonitor.restore(design, snapshot);
-        fractions.clear();
+        recentCount = 0;
         decision = restored == null ? Decision.CONTINUE : restored;
     }
 
     /** Rebuilds the state after a restart: the same looks, the same α spent, the same decision. */
     public void restore(List<Double> seen, Decision restored) {
         monitor = design.monitor();
-        fractions.clear();
+        recentCount = 0;
         for (double t : seen) {
             monitor.lookAt(t);
-            fractions.add(t);
+            remember(t);
         }
         decision = restored == null ? Decision.CONTINUE : restored;
     }
@@ -181,10 +190,7 @@ public final class Comparison {
             return Optional.empty();
         }
         Look look = monitor.lookAt(fraction);
-        fractions.add(fraction);
-        if (fractions.size() > KEPT_FRACTIONS) {
-            fractions.subList(0, fractions.size() - KEPT_FRACTIONS).clear();
-        }
+        remember(fraction);
         Decision previous = decision;
         if (look.informationAdded()) {
             decision = decide(look, e.z());
@@ -193,6 +199,20 @@ public final class Comparison {
         last = new LookResult(experiment.id(), arm, metric.name(), previous, decision, look, e, interval, at);
         keep(LookPoint.of(last));
         return Optional.of(last);
+    }
+
+    /** Keeps a look's fraction; when full, the older half goes at once (so a look never shifts them all). */
+    private void remember(double fraction) {
+        if (recentCount == recent.length) {
+            if (recent.length < KEPT_FRACTIONS) {
+                recent = java.util.Arrays.copyOf(recent, Math.min(KEPT_FRACTIONS, 2 * recent.length));
+            } else {
+                int kept = KEPT_FRACTIONS / 2;
+                System.arraycopy(recent, recentCount - kept, recent, 0, kept);
+                recentCount = kept;
+            }
+        }
+        recent[recentCount++] = fraction;
     }
 
     private void keep(LookPoint p) {
