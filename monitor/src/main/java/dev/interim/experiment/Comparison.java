@@ -41,7 +41,7 @@ public final class Comparison {
     private Decision decision = Decision.CONTINUE;
     private LookResult last;
     /** Looks kept for views and charts; beyond this, every other older point is dropped. */
-    static final int KEPT_POINTS = 4096;
+    static final int KEPT_POINTS = 2048;
     /** Recent fractions kept in memory; the state itself is the monitor's snapshot. */
     static final int KEPT_FRACTIONS = 10_000;
     private final List<LookPoint> points = new ArrayList<>();
