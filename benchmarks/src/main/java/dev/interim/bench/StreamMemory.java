@@ -46,7 +46,7 @@ final class StreamMemory {
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(100_000_000L), null, StopAction.NONE);
         ExperimentDefinition e = new ExperimentDefinition("basket-size", "current", List.of("bundled"),
                 Map.of("current", 1.0, "bundled", 1.0), Duration.ofMinutes(1), 100, true, 0.001, List.of(spend));
-        // Unit ids as the bench's events carry them, made beforehand so they are not counted.
+        // Unit ids like the bench's events carry; each is garbage once fed, so only the state counts.
         long before = settledHeap();
         OfflineTally tally = new OfflineTally(List.of(e));
         StringBuilder id = new StringBuilder("traveller-");

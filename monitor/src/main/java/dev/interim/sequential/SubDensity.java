@@ -52,12 +52,10 @@ final class SubDensity {
     /** prefix[i]: mass of the cells left of node i; suffix[i]: right of it (each summed from its own end, so small tails keep their digits). */
     private final double[] prefix;
     private final double[] suffix;
-    /** Corrected-trapezoid weights: ∫g ≈ Σ weight[i]·g(x_i) + slopeWeight[i]·g'(x_i). */
-    private final double[] weight;
-    private final double[] slopeWeight;
     /**
-     * The node terms of the wide-kernel density, fixed for this sub-density: with g = f·K the rule
-     * needs weight·f·K + slopeWeight·(f'·K + f·K'), that is valueWeight·K + slopeWeight·f·K'.
+     * The node terms of the wide-kernel density, fixed for this sub-density. The corrected
+     * trapezoidal rule is ∫g ≈ Σ weight[i]·g(x_i) + slopeWeight[i]·g'(x_i); with g = f·K it needs
+     * weight·f·K + slopeWeight·(f'·K + f·K'), that is valueWeight·K + fSlopeWeight·K'.
      */
     private final double[] valueWeight;
     private final double[] fSlopeWeight;
@@ -83,8 +81,8 @@ final class SubDensity {
         int n = x.length;
         this.prefix = new double[n];
         this.suffix = new double[n];
-        this.weight = new double[n];
-        this.slopeWeight = new double[n];
+        double[] weight = new double[n];
+        double[] slopeWeight = new double[n];
         for (int i = 0; i + 1 < n; i++) {
             double h = x[i + 1] - x[i];
             prefix[i + 1] = prefix[i] + cellMass(i);
