@@ -108,6 +108,12 @@ public class ParseBenchmark {
         public void value(String experiment, String arm, String unit, String metric, double value) {
             blackhole.consume(value);
         }
+
+        @Override
+        public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+            blackhole.consume(numerator);
+            blackhole.consume(denominator);
+        }
     }
 
     @Setup(Level.Trial)

@@ -468,6 +468,12 @@ public final class StreamBench implements Callable<Integer> {
             values++;
             valueSum += value;
         }
+
+        @Override
+        public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+            values++;
+            valueSum += numerator;
+        }
     }
 
     private Drain drain(String label, long n, Parsing parsing) {

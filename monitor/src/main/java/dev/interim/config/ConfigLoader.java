@@ -5,6 +5,8 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.core.StreamReadFeature;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.dataformat.yaml.YAMLMapper;
+import dev.interim.experiment.Assignment;
+import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.StopAction;
 import java.io.IOException;
@@ -98,7 +100,7 @@ public final class ConfigLoader {
         HttpSettings http = ConnectionReaders.http(root.optional("http"), env);
         Optional<WebhookSettings> webhook = root.optional("webhook").map(w -> ConnectionReaders.webhook(w, env));
         List<ExperimentConfig> experiments = experiments(root.required("experiments",
-                "the list of experiments to watch (at least one)"));
+                "the list of experiments to watch (at least one)"), events.unit().isPresent());
         InterimConfig config = new InterimConfig(kafka, events, http, webhook, experiments);
         requireUnitKeyedInput(config);
         requireWebhookForKill(config);
@@ -128,12 +130,12 @@ public final class ConfigLoader {
         return tree;
     }
 
-    private static List<ExperimentConfig> experiments(ConfigNode list) {
+    private static List<ExperimentConfig> experiments(ConfigNode list, boolean unitMapped) {
         List<ExperimentConfig> experiments = new ArrayList<>();
         Map<String, Integer> seen = new HashMap<>();
         List<ConfigNode> elements = list.elements("experiments");
         for (int i = 0; i < elements.size(); i++) {
-            ExperimentConfig e = ExperimentReader.read(elements.get(i));
+            ExperimentConfig e = ExperimentReader.read(elements.get(i), unitMapped);
             Integer before = seen.putIfAbsent(e.definition().id(), i);
             if (before != null) {
                 throw new ConfigException(elements.get(i).path() + ".id", "'" + e.definition().id()
@@ -154,6 +156,22 @@ public final class ConfigLoader {
      */
     private static void requireUnitKeyedInput(InterimConfig config) {
         for (int i = 0; i < config.experiments().size(); i++) {
+            ExperimentDefinition d = config.experiments().get(i).definition();
+            if (d.assignment() == Assignment.UNIT) {
+                String path = "experiments[" + i + "].assignment";
+                String why = "arms assigned per unit (the default when events.unit is set) are analysed per unit, "
+                        + "and per-unit sums need input keyed by unit (all events of a unit in one partition)";
+                if (config.events().unit().isEmpty()) {
+                    throw new ConfigException(path, "unit needs the unit id of each event: set events.unit to its JSON "
+                            + "Pointer, such as /user/id; or, if each event is assigned to an arm on its own, "
+                            + "assignment: event");
+                }
+                if (!config.kafka().inputKeyedByUnit()) {
+                    throw new ConfigException(path, why + ": make the producers key input records by the unit id, "
+                            + "then set kafka.input_keyed_by_unit: true; or, if each event is assigned to an arm on "
+                            + "its own (a load balancer per request), set assignment: event");
+                }
+            }
             List<MetricDefinition> metrics = config.experiments().get(i).definition().metrics();
             for (int j = 0; j < metrics.size(); j++) {
                 MetricDefinition m = metrics.get(j);

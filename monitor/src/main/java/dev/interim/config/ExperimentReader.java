@@ -1,5 +1,6 @@
 package dev.interim.config;
 
+import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import java.time.Duration;
@@ -12,14 +13,18 @@ import java.util.Set;
 /** Reads one entry of {@code experiments}. */
 final class ExperimentReader {
     static final Set<String> KEYS = ConnectionReaders.keys("id", "control", "treatments", "split", "look_every",
-            "min_per_arm", "dry_run", "sample_ratio_threshold", "metrics");
+            "min_per_arm", "dry_run", "sample_ratio_threshold", "metrics", "assignment");
     static final Duration DEFAULT_LOOK_EVERY = Duration.ofMinutes(1);
     static final long DEFAULT_MIN_PER_ARM = 100;
     static final double DEFAULT_SAMPLE_RATIO_THRESHOLD = 0.001;
 
     private ExperimentReader() {}
 
-    static ExperimentConfig read(ConfigNode e) {
+    /**
+     * @param unitMapped whether events carry a unit (events.unit): arms are then taken as assigned per
+     *                   unit unless the experiment says {@code assignment: event}
+     */
+    static ExperimentConfig read(ConfigNode e, boolean unitMapped) {
         e.mapping(KEYS);
         String id = e.required("id", "the experiment id as it appears in events").text();
         String control = e.required("control", "the control arm, as it appears in events").text();
@@ -32,6 +37,8 @@ final class ExperimentReader {
                 .orElse(DEFAULT_LOOK_EVERY);
         long minPerArm = e.optional("min_per_arm").map(ConfigNode::integer).orElse(DEFAULT_MIN_PER_ARM);
         boolean dryRun = e.optional("dry_run").map(ConfigNode::bool).orElse(true);
+        Assignment assignment = e.optional("assignment").map(a -> a.parsed(Assignment::parse))
+                .orElse(unitMapped ? Assignment.UNIT : Assignment.EVENT);
         double sampleRatio = e.optional("sample_ratio_threshold").map(ConfigNode::number).orElse(DEFAULT_SAMPLE_RATIO_THRESHOLD);
 
         ConfigNode metricsNode = e.required("metrics", "the list of metrics watched (at least one)");
@@ -51,7 +58,7 @@ final class ExperimentReader {
             throw metricsNode.error("must list at least one metric");
         }
         ExperimentDefinition definition = Domain.build(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
-                split, lookEvery, minPerArm, dryRun, sampleRatio, metrics));
+                split, lookEvery, minPerArm, dryRun, sampleRatio, metrics, assignment));
         return new ExperimentConfig(definition, sources);
     }
 

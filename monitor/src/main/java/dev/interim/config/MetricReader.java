@@ -19,8 +19,8 @@ import java.util.stream.Collectors;
 /** Reads one entry of an experiment's {@code metrics}: its test design and its source in the events. */
 final class MetricReader {
     static final Set<String> KEYS = ConnectionReaders.keys("name", "kind", "role", "worse", "field", "counts_if", "range",
-            "alpha", "sides", "spending", "futility", "max_per_arm", "power", "effect", "planned_looks", "baseline",
-            "action");
+            "alpha", "sides", "spending", "futility", "max_per_arm", "power", "effect", "relative_effect", "planned_looks",
+            "baseline", "action", "numerator", "denominator", "denominator_range", "cap", "denominator_cap");
     static final double DEFAULT_ALPHA = 0.05;
     static final String DEFAULT_SPENDING = "obf";
     static final int DEFAULT_PLANNED_LOOKS = 10;
@@ -35,7 +35,7 @@ final class MetricReader {
     static Read read(ConfigNode m) {
         m.mapping(KEYS);
         String name = m.required("name", "the metric's name, such as checkout-errors").text();
-        MetricKind kind = m.required("kind", "event-rate, unit-rate, event-mean or unit-total").parsed(MetricKind::parse);
+        MetricKind kind = m.required("kind", "event-rate, unit-rate, event-mean, unit-total or ratio").parsed(MetricKind::parse);
         Role role = m.required("role", "guardrail (watches for harm) or primary").parsed(Role::parse);
         Worse worse = m.required("worse", "higher or lower: which direction of the metric hurts users").parsed(Worse::parse);
         MetricSource source = source(m, kind);
@@ -47,14 +47,23 @@ final class MetricReader {
         Horizon horizon = horizon(m);
         Double baseline = m.optional("baseline").map(ConfigNode::number).orElse(null);
         StopAction action = m.optional("action").map(a -> a.parsed(StopAction::parse)).orElse(StopAction.NONE);
+        Double cap = m.optional("cap").map(MetricReader::finite).orElse(null);
+        Double denominatorCap = m.optional("denominator_cap").map(MetricReader::finite).orElse(null);
+        if (cap != null && kind.isProportion()) {
+            throw m.required("cap", "").error("applies to event-mean, unit-total and ratio metrics: a rate's events "
+                    + "count 0 or 1; leave cap out");
+        }
+        if (denominatorCap != null && kind != MetricKind.RATIO) {
+            throw m.required("denominator_cap", "").error("applies to ratio metrics only; leave it out, or use cap");
+        }
         MetricDefinition definition = Domain.build(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
-                sides, spending, futility, horizon, baseline, action));
+                sides, spending, futility, horizon, baseline, action, cap, denominatorCap));
         return new Read(definition, source);
     }
 
     private static Horizon horizon(ConfigNode m) {
         boolean max = m.has("max_per_arm");
-        boolean powered = m.has("power") || m.has("effect");
+        boolean powered = m.has("power") || m.has("effect") || m.has("relative_effect");
         if (max && powered) {
             throw m.required("max_per_arm", "").error("give either max_per_arm or power with effect, not both");
         }
@@ -71,13 +80,41 @@ final class MetricReader {
                     + "(the change to detect, in the metric's units)");
         }
         double power = m.required("power", "the chance to detect effect, such as 0.8, with effect").number();
-        double effect = m.required("effect", "the change to detect (treatment minus control, in the metric's "
-                + "units), with power").number();
+        if (m.has("effect") && m.has("relative_effect")) {
+            throw m.required("relative_effect", "").error("give either effect (in the metric's units) or relative_effect "
+                    + "(a share of control's level, such as 0.05 for 5%), not both");
+        }
+        boolean relative = m.has("relative_effect");
+        double effect = relative
+                ? m.required("relative_effect", "").number()
+                : m.required("effect", "the change to detect (treatment minus control, in the metric's units; or "
+                        + "relative_effect: a share of control's level), with power").number();
         int plannedLooks = m.optional("planned_looks").map(ConfigNode::intValue).orElse(DEFAULT_PLANNED_LOOKS);
-        return Domain.build(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks));
+        Horizon.Scale scale = relative ? Horizon.Scale.RELATIVE : Horizon.Scale.ABSOLUTE;
+        return Domain.build(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks, scale));
     }
 
     private static MetricSource source(ConfigNode m, MetricKind kind) {
+        if (kind == MetricKind.RATIO) {
+            for (String k : List.of("field", "counts_if")) {
+                if (m.has(k)) {
+                    throw m.required(k, "").error("a ratio reads numerator and denominator: give their JSON Pointers "
+                            + "there and leave " + k + " out");
+                }
+            }
+            JsonPointer numerator = Pointers.field(m.required("numerator", "the JSON Pointer of the number summed "
+                    + "above the line, such as /order/revenue"));
+            JsonPointer denominator = Pointers.field(m.required("denominator", "the JSON Pointer of the number summed "
+                    + "below the line, such as /order/sessions"));
+            ValueRange range = m.optional("range").map(MetricReader::range).orElse(ValueRange.ANY);
+            ValueRange denominatorRange = m.optional("denominator_range").map(MetricReader::range).orElse(ValueRange.ANY);
+            return new MetricSource.Ratio(numerator, range, denominator, denominatorRange);
+        }
+        for (String k : List.of("numerator", "denominator", "denominator_range")) {
+            if (m.has(k)) {
+                throw m.required(k, "").error("applies to ratio metrics only; a " + kind.label() + " reads field");
+            }
+        }
         JsonPointer field = Pointers.field(m.required("field", "the JSON Pointer of the field this metric reads, "
                 + (kind.isProportion() ? "such as /response/status" : "such as /timing/total_ms")));
         if (!kind.isProportion()) {

@@ -8,7 +8,7 @@ import com.fasterxml.jackson.core.JsonPointer;
  * its range; a rate counts the event (or, per unit, the unit) as a success when the field meets the
  * condition.
  */
-public sealed interface MetricSource permits MetricSource.Value, MetricSource.Counted {
+public sealed interface MetricSource permits MetricSource.Value, MetricSource.Counted, MetricSource.Ratio {
 
     /** The field read. */
     JsonPointer field();
@@ -33,5 +33,19 @@ public sealed interface MetricSource permits MetricSource.Value, MetricSource.Co
 
     /** Rates (event-rate, unit-rate): a success when the field meets {@code countsIf}. */
     record Counted(JsonPointer field, Condition countsIf) implements MetricSource {
+    }
+
+    /**
+     * Ratios: an event adds the number in {@code field} to the numerator and the number in
+     * {@code denominator} to the denominator (an absent one adds 0); each must lie in its range. An
+     * event is an observation of the ratio when it carries either field.
+     */
+    record Ratio(JsonPointer field, ValueRange range, JsonPointer denominator, ValueRange denominatorRange)
+            implements MetricSource {
+        public Ratio {
+            if (range == null || denominatorRange == null) {
+                throw new IllegalArgumentException("ranges must be given; ValueRange.ANY allows every value");
+            }
+        }
     }
 }

@@ -32,8 +32,10 @@ public final class Comparison {
     private final MetricDefinition metric;
     private final String arm;
     private final GroupSequentialDesign design;
-    /** Planned maximum information for a powered horizon; NaN for a maximum per arm. */
-    private final double poweredInformation;
+    /** The drift a powered horizon plans for (I_max = (drift/δ)²); NaN for a maximum per arm. */
+    private final double plannedDrift;
+    /** Why the last look due found nothing to look at, or null. */
+    private String skipped;
     private SequentialMonitor monitor;
     /** The recent fractions, oldest first: {@code recentCount} of them, unboxed. */
     private double[] recent = new double[16];
@@ -59,10 +61,10 @@ public final class Comparison {
             }
             double drift = Planning.driftForPower(base, planned, p.power());
             this.design = Planning.aimedAt(base, drift);
-            this.poweredInformation = (drift / p.effect()) * (drift / p.effect());
+            this.plannedDrift = drift;
         } else {
             this.design = base;
-            this.poweredInformation = Double.NaN;
+            this.plannedDrift = Double.NaN;
         }
         this.monitor = design.monitor();
     }
@@ -176,29 +178,42 @@ public final class Comparison {
         if (decision.isFinal() || decision == Decision.HELD) {
             return Optional.empty();
         }
-        if (treatment.count() < experiment.minPerArm()
-                || (metric.baseline() == null && control.count() < experiment.minPerArm())) {
+        boolean twoSample = metric.baseline() == null;
+        if (treatment.count() < experiment.minPerArm() || (twoSample && control.count() < experiment.minPerArm())) {
+            skipped = "too few observations: each arm needs min_per_arm = " + experiment.minPerArm() + ", has "
+                    + treatment.count() + (twoSample ? " and " + control.count() + " (control)" : "");
             return Optional.empty();
         }
-        Optional<Estimate> estimate = Estimate.of(metric, treatment, control);
-        if (estimate.isEmpty()) {
+        Estimate.Result result = Estimate.of(metric, treatment, control);
+        if (result.estimate() == null) {
+            skipped = result.reason();
             return Optional.empty();
         }
-        Estimate e = estimate.get();
-        double fraction = e.information() / plannedInformation(e);
+        Estimate e = result.estimate();
+        double fraction = fraction(e, treatment.count(), twoSample ? control.count() : -1);
         if (!(fraction > 0) || !Double.isFinite(fraction)) {
+            skipped = "no information yet: the planned information cannot be measured (information fraction " + fraction + ")";
             return Optional.empty();
         }
+        skipped = null;
         Look look = monitor.lookAt(fraction);
         remember(fraction);
         Decision previous = decision;
         if (look.informationAdded()) {
             decision = decide(look, e.z());
         }
-        ConfidenceInterval interval = RepeatedConfidenceInterval.at(design, look, e.effect(), e.standardError());
-        last = new LookResult(experiment.id(), arm, metric.name(), previous, decision, look, e, interval, at);
+        ConfidenceInterval interval = RepeatedConfidenceInterval.at(design, look, e.effect(), e.standardError(),
+                e.degreesOfFreedom());
+        ConfidenceInterval relative = RepeatedConfidenceInterval.relative(design, look, e.relative(),
+                e.relativeLogError(), e.degreesOfFreedom());
+        last = new LookResult(experiment.id(), arm, metric.name(), previous, decision, look, e, interval, relative, at);
         keep(LookPoint.of(last));
         return Optional.of(last);
+    }
+
+    /** Why the last look due found nothing to look at (too few observations, no variance yet), or null. */
+    public String skipped() {
+        return skipped;
     }
 
     /** Keeps a look's fraction; when full, the older half goes at once (so a look never shifts them all). */
@@ -240,15 +255,29 @@ public final class Comparison {
     }
 
     /**
-     * I_max: for a maximum per arm, the information that many observations per arm would give at the
-     * variances seen now; for a powered horizon, fixed by the plan.
+     * The information fraction of a look. For a maximum per arm N: the share of the planned counts,
+     * 2·n_t·n_c / (N·(n_t + n_c)) — the information of the two arms over that of N each when the
+     * per-observation variances are equal (information proportional to sample size: common practice in
+     * group-sequential designs). It comes from both arms, never the larger one alone, does not depend on a
+     * variance estimated from a few observations, and is exactly 1 when both arms hold N (computed
+     * from whole numbers, so no rounding keeps a design short of its end). Against a baseline, n_t/N.
+     * For a powered horizon: the conservative information over I_max = (drift/δ)², δ the planned
+     * effect (a relative one times the control's level, or the baseline's).
      */
-    private double plannedInformation(Estimate e) {
+    private double fraction(Estimate e, long treatmentCount, long controlCount) {
         if (metric.horizon() instanceof Horizon.MaxPerArm max) {
             double n = max.perArm();
-            return 1 / (e.treatmentVariance() / n + e.controlVariance() / n);
+            if (controlCount < 0) {
+                return treatmentCount / n;
+            }
+            double t = treatmentCount;
+            double c = controlCount;
+            return (2 * t * c) / (n * (t + c));
         }
-        return poweredInformation;
+        Horizon.Powered p = (Horizon.Powered) metric.horizon();
+        double delta = p.scale() == Horizon.Scale.RELATIVE ? p.effect() * Math.abs(e.controlLevel()) : p.effect();
+        double planned = (plannedDrift / delta) * (plannedDrift / delta);
+        return e.conservativeInformation() / planned;
     }
 
     private Decision decide(Look look, double z) {

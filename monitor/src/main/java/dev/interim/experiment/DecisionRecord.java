@@ -8,12 +8,25 @@ import java.util.UUID;
  * One change of state of one comparison, as published on the decisions topic (JSON, keyed by
  * experiment) and sent to the kill webhook. The id is stable — a name-based UUID of experiment, arm,
  * metric, decision and look — so a record written again after a restart, or delivered twice, is
- * recognisably the same decision.
+ * recognisably the same decision. {@code relative}, {@code relativeLower} and {@code relativeUpper}
+ * are the relative change (treatment/control − 1) and its repeated interval at the same level, NaN
+ * where undefined.
  */
 public record DecisionRecord(String experiment, String arm, String metric, String role, String decision,
                              String previous, int look, double fraction, double statistic, double boundary,
                              double alphaSpent, double estimate, double intervalLower, double intervalUpper,
-                             double intervalLevel, Instant at, String decisionId, boolean dryRun, String action) {
+                             double intervalLevel, Instant at, String decisionId, boolean dryRun, String action,
+                             double relative, double relativeLower, double relativeUpper) {
+
+    /** A record without a relative change. */
+    public DecisionRecord(String experiment, String arm, String metric, String role, String decision,
+                          String previous, int look, double fraction, double statistic, double boundary,
+                          double alphaSpent, double estimate, double intervalLower, double intervalUpper,
+                          double intervalLevel, Instant at, String decisionId, boolean dryRun, String action) {
+        this(experiment, arm, metric, role, decision, previous, look, fraction, statistic, boundary, alphaSpent,
+                estimate, intervalLower, intervalUpper, intervalLevel, at, decisionId, dryRun, action,
+                Double.NaN, Double.NaN, Double.NaN);
+    }
 
     /** The record of a look that changed the state. */
     static DecisionRecord of(LookResult r, MetricDefinition metric, boolean dryRun) {
@@ -22,7 +35,8 @@ public record DecisionRecord(String experiment, String arm, String metric, Strin
                 r.decision().label(), r.previous().label(), r.look().number(), r.look().fraction(),
                 r.estimate().z(), r.boundary(), r.look().alphaSpent(), r.estimate().effect(),
                 r.interval().lower(), r.interval().upper(), r.interval().level(), r.at(), id, dryRun,
-                metric.action().name().toLowerCase());
+                metric.action().name().toLowerCase(), relative(r), r.relativeInterval() == null ? Double.NaN
+                        : r.relativeInterval().lower(), r.relativeInterval() == null ? Double.NaN : r.relativeInterval().upper());
     }
 
     /** A hold or resume, which has no look of its own: the last look's numbers, or NaN before any. */
@@ -39,7 +53,13 @@ public record DecisionRecord(String experiment, String arm, String metric, Strin
                 last == null ? nan : last.boundary(), last == null ? 0 : last.look().alphaSpent(),
                 last == null ? nan : last.estimate().effect(), last == null ? nan : last.interval().lower(),
                 last == null ? nan : last.interval().upper(), last == null ? nan : last.interval().level(),
-                at, id, dryRun, c.metric().action().name().toLowerCase());
+                at, id, dryRun, c.metric().action().name().toLowerCase(), last == null ? nan : relative(last),
+                last == null || last.relativeInterval() == null ? nan : last.relativeInterval().lower(),
+                last == null || last.relativeInterval() == null ? nan : last.relativeInterval().upper());
+    }
+
+    private static double relative(LookResult r) {
+        return r.relativeInterval() == null ? Double.NaN : r.estimate().relative();
     }
 
     static String id(String experiment, String arm, String metric, Decision decision, int look) {

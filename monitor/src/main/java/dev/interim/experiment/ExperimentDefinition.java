@@ -23,10 +23,19 @@ import java.util.regex.Pattern;
  * @param dryRun decide and record, but never call the kill webhook
  * @param sampleRatioThreshold p-value below which the split is judged broken and decisions held
  * @param metrics the metrics watched (at least one)
+ * @param assignment how arms were assigned: per unit (event metrics are then analysed as ratios of
+ *                   per-unit sums, with delta-method variances) or per event
  */
 public record ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
                                    Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
-                                   List<MetricDefinition> metrics) {
+                                   List<MetricDefinition> metrics, Assignment assignment) {
+
+    /** An experiment whose arms were assigned per event (each event an independent observation). */
+    public ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
+                                Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
+                                List<MetricDefinition> metrics) {
+        this(id, control, treatments, split, lookEvery, minPerArm, dryRun, sampleRatioThreshold, metrics, Assignment.EVENT);
+    }
 
     private static final Pattern ID = Pattern.compile("[A-Za-z0-9_.-]{1,128}");
 
@@ -64,6 +73,12 @@ public record ExperimentDefinition(String id, String control, List<String> treat
             require(names.add(m.name()), "metric '" + m.name() + "' is defined twice");
         }
         metrics = List.copyOf(metrics);
+        require(assignment != null, "assignment is required: unit or event");
+    }
+
+    /** What {@code metric}'s tally holds in this experiment (its kind under this assignment). */
+    public TallyForm form(MetricDefinition metric) {
+        return TallyForm.of(metric.kind(), assignment);
     }
 
     /** All arms, control first. */
@@ -79,9 +94,12 @@ public record ExperimentDefinition(String id, String control, List<String> treat
         return metric.alpha() / treatments.size();
     }
 
-    /** True when some metric counts per unit (the input must then be keyed by unit). */
+    /**
+     * True when events need a unit: arms assigned per unit, or some metric counting per unit (the
+     * input must then be keyed by unit, so that each unit's events meet in one partition).
+     */
     public boolean needsUnits() {
-        return metrics.stream().anyMatch(m -> m.kind().perUnit());
+        return assignment == Assignment.UNIT || metrics.stream().anyMatch(m -> m.kind().perUnit());
     }
 
     private static void require(boolean ok, String message) {

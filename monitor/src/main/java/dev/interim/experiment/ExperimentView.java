@@ -11,10 +11,20 @@ import java.util.Map;
  * @param exposures exposures per arm at the last look
  * @param tallies the sufficient statistics at the last look, metric → arm → tally (every event counted once)
  * @param lastLook when the last look ran (null before the first)
+ * @param assignment how arms were assigned (per unit: event metrics are ratios of per-unit sums)
  */
 public record ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
                              String holdReason, SampleRatio sampleRatio, Instant lastLook, Map<String, Long> exposures,
-                             Map<String, Map<String, Tally>> tallies, List<ComparisonView> comparisons) {
+                             Map<String, Map<String, Tally>> tallies, List<ComparisonView> comparisons,
+                             Assignment assignment) {
+
+    /** A view of an experiment assigned per event. */
+    public ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
+                          String holdReason, SampleRatio sampleRatio, Instant lastLook, Map<String, Long> exposures,
+                          Map<String, Map<String, Tally>> tallies, List<ComparisonView> comparisons) {
+        this(id, control, treatments, dryRun, held, holdReason, sampleRatio, lastLook, exposures, tallies, comparisons,
+                Assignment.EVENT);
+    }
 
     public ExperimentView {
         treatments = List.copyOf(treatments);

@@ -18,14 +18,31 @@ public sealed interface Horizon permits Horizon.MaxPerArm, Horizon.Powered {
         }
     }
 
+    /** How a planned effect is given. */
+    enum Scale {
+        /** In the metric's own units: treatment − control. */
+        ABSOLUTE,
+        /** As a relative change: treatment / control − 1 (0.05 is 5% up). */
+        RELATIVE
+    }
+
     /**
-     * Enough information to detect {@code effect} (in the metric's units, treatment − control) with
-     * the given power: I_max = R·(z_α + z_β)²/δ², R the design's inflation factor over
-     * {@code plannedLooks} equally spaced looks (Jennison & Turnbull 2000, §2.4). It needs no
-     * variance: the variance is in the information the data bring.
+     * Enough information to detect {@code effect} with the given power: I_max = R·(z_α + z_β)²/δ², R
+     * the design's inflation factor over {@code plannedLooks} equally spaced looks (Jennison &
+     * Turnbull 2000, §2.4). It needs no variance: the variance is in the information the data bring.
+     * A relative effect is turned into δ at each look as effect × |control's estimate| (or ×
+     * |baseline|).
      */
-    record Powered(double power, double effect, int plannedLooks) implements Horizon {
+    record Powered(double power, double effect, int plannedLooks, Scale scale) implements Horizon {
+        /** An effect in the metric's units. */
+        public Powered(double power, double effect, int plannedLooks) {
+            this(power, effect, plannedLooks, Scale.ABSOLUTE);
+        }
+
         public Powered {
+            if (scale == null) {
+                throw new IllegalArgumentException("the scale of the effect is required: absolute or relative");
+            }
             if (!(power > 0 && power < 1)) {
                 throw new IllegalArgumentException("power must lie strictly between 0 and 1, got " + power);
             }

@@ -6,10 +6,12 @@ import java.time.Instant;
 
 /**
  * What one look of one comparison found: the boundaries, the estimate, its repeated confidence
- * interval and the decision before and after.
+ * interval and the decision before and after. {@code relativeInterval} is the repeated interval of
+ * the relative change (treatment/control − 1), null where that change is undefined.
  */
 public record LookResult(String experiment, String arm, String metric, Decision previous, Decision decision,
-                         Look look, Estimate estimate, ConfidenceInterval interval, Instant at) {
+                         Look look, Estimate estimate, ConfidenceInterval interval, ConfidenceInterval relativeInterval,
+                         Instant at) {
 
     /** True when this look changed the state (a decision record is due). */
     public boolean changed() {

@@ -20,10 +20,21 @@ import java.util.regex.Pattern;
  * @param baseline a fixed value to compare each arm with (single-arm rollouts: one-sample tests), or
  *                 null to compare each treatment with control
  * @param action what a stop for harm triggers besides the record
+ * @param cap winsorising of heavy tails, or null: each event value of an event-mean, each unit's total
+ *            of a unit-total, each numerator (per unit, or per event under per-event assignment) of a
+ *            ratio is taken as at most this value (common practice for revenue-like metrics)
+ * @param denominatorCap the same for a ratio's denominator, or null
  */
 public record MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, int sides,
                                SpendingFunction spending, SpendingFunction futility, Horizon horizon,
-                               Double baseline, StopAction action) {
+                               Double baseline, StopAction action, Double cap, Double denominatorCap) {
+
+    /** A metric without caps. */
+    public MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, int sides,
+                            SpendingFunction spending, SpendingFunction futility, Horizon horizon,
+                            Double baseline, StopAction action) {
+        this(name, kind, role, worse, alpha, sides, spending, futility, horizon, baseline, action, null, null);
+    }
 
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9_.-]{1,64}");
 
@@ -31,7 +42,7 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
         if (name == null || !NAME.matcher(name).matches()) {
             throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got '" + name + "'");
         }
-        require(kind != null, "kind is required: event-rate, unit-rate, event-mean or unit-total");
+        require(kind != null, "kind is required: event-rate, unit-rate, event-mean, unit-total or ratio");
         require(role != null, "role is required: primary or guardrail");
         require(worse != null, "worse is required: higher or lower");
         require(alpha > 0 && alpha < 1, "alpha must lie strictly between 0 and 1, got " + alpha);
@@ -47,11 +58,27 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
                     "baseline of a rate must lie strictly between 0 and 1, got " + baseline);
         }
         if (horizon instanceof Horizon.Powered p) {
+            require(baseline == null || p.scale() == Horizon.Scale.ABSOLUTE || baseline != 0,
+                    "a relative effect needs a non-zero baseline, got " + baseline);
             boolean harmful = worse == Worse.HIGHER ? p.effect() > 0 : p.effect() < 0;
             require(role != Role.GUARDRAIL || harmful,
                     "effect of a guardrail must point the harmful way (worse: " + worse.name().toLowerCase() + "), got " + p.effect());
         }
         require(action != null, "action is required: none, kill or page");
+        require(cap == null || (Double.isFinite(cap) && !kind.isProportion()),
+                "cap applies to event-mean, unit-total and ratio metrics and must be a finite number, got " + cap);
+        require(denominatorCap == null || (kind == MetricKind.RATIO && Double.isFinite(denominatorCap) && denominatorCap > 0),
+                "denominator_cap applies to ratio metrics and must be a positive number, got " + denominatorCap);
+    }
+
+    /** {@code value}, winsorised at {@link #cap()} when one is set. */
+    public double capped(double value) {
+        return cap == null ? value : Math.min(value, cap);
+    }
+
+    /** A ratio's denominator, winsorised at {@link #denominatorCap()} when one is set. */
+    public double cappedDenominator(double value) {
+        return denominatorCap == null ? value : Math.min(value, denominatorCap);
     }
 
     private static void require(boolean ok, String message) {

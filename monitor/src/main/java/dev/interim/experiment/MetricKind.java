@@ -12,7 +12,9 @@ public enum MetricKind {
     /** Mean of a value over events (latency per request). */
     EVENT_MEAN("event-mean", false),
     /** Mean over units of each unit's total (revenue per user). */
-    UNIT_TOTAL("unit-total", false);
+    UNIT_TOTAL("unit-total", false),
+    /** A numerator field over a denominator field, each summed (revenue per session, items per order). */
+    RATIO("ratio", false);
 
     private final String label;
     private final boolean proportion;
@@ -32,9 +34,14 @@ public enum MetricKind {
         return proportion;
     }
 
-    /** True when the metric needs per-unit state (and so input keyed by unit). */
+    /** True when the metric needs per-unit state whatever the assignment (and so input keyed by unit). */
     public boolean perUnit() {
         return this == UNIT_RATE || this == UNIT_TOTAL;
+    }
+
+    /** True for the kinds read per event, which become ratios of per-unit sums under per-unit assignment. */
+    public boolean perEvent() {
+        return this == EVENT_RATE || this == EVENT_MEAN || this == RATIO;
     }
 
     /** Parses a configuration label; the message lists the accepted ones. */
@@ -45,6 +52,6 @@ public enum MetricKind {
             }
         }
         throw new IllegalArgumentException("unknown metric kind '" + text
-                + "': use event-rate, unit-rate, event-mean or unit-total");
+                + "': use event-rate, unit-rate, event-mean, unit-total or ratio");
     }
 }

@@ -14,6 +14,7 @@ final class EventBuffer implements ObservationSink {
     private static final byte EXPOSURE = 0;
     private static final byte OUTCOME = 1;
     private static final byte VALUE = 2;
+    private static final byte RATIO = 3;
 
     private byte[] kinds = new byte[8];
     private String[] experiments = new String[8];
@@ -21,6 +22,8 @@ final class EventBuffer implements ObservationSink {
     private String[] units = new String[8];
     private String[] metrics = new String[8];
     private double[] numbers = new double[8];
+    /** A ratio's denominator (0 for the other kinds). */
+    private double[] denominators = new double[8];
     private int size;
 
     /** Forgets the event held (its few references stay until overwritten: nothing worth clearing). */
@@ -51,12 +54,19 @@ final class EventBuffer implements ObservationSink {
         add(VALUE, experiment, arm, unit, metric, value);
     }
 
+    @Override
+    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        add(RATIO, experiment, arm, unit, metric, numerator);
+        denominators[size - 1] = denominator;
+    }
+
     /** Hands the event held to {@code sink}, in the order the reader gave it. */
     void applyTo(ObservationSink sink) {
         for (int i = 0; i < size; i++) {
             switch (kinds[i]) {
                 case EXPOSURE -> sink.exposure(experiments[i], arms[i], units[i]);
                 case OUTCOME -> sink.outcome(experiments[i], arms[i], units[i], metrics[i], numbers[i] != 0);
+                case RATIO -> sink.ratio(experiments[i], arms[i], units[i], metrics[i], numbers[i], denominators[i]);
                 default -> sink.value(experiments[i], arms[i], units[i], metrics[i], numbers[i]);
             }
         }
@@ -71,6 +81,7 @@ final class EventBuffer implements ObservationSink {
             units = Arrays.copyOf(units, n);
             metrics = Arrays.copyOf(metrics, n);
             numbers = Arrays.copyOf(numbers, n);
+            denominators = Arrays.copyOf(denominators, n);
         }
         kinds[size] = kind;
         experiments[size] = experiment;
@@ -78,6 +89,7 @@ final class EventBuffer implements ObservationSink {
         units[size] = unit;
         metrics[size] = metric;
         numbers[size] = number;
+        denominators[size] = 0;
         size++;
     }
 }

@@ -38,4 +38,49 @@ public final class RepeatedConfidenceInterval {
         double upper = alternative == Alternative.GREATER ? Double.POSITIVE_INFINITY : estimate + half;
         return new ConfidenceInterval(lower, upper, level);
     }
+
+    /**
+     * The repeated confidence interval when the statistic is a t on {@code degreesOfFreedom} mapped to
+     * the Z scale through its p-value: the boundary c is mapped back the same way, to the t quantile
+     * with the same tail, T_ν⁻¹(Φ(c)), so that the interval excludes the null exactly when the test
+     * rejects. +∞ degrees of freedom give {@link #at(GroupSequentialDesign, Look, double, double)}.
+     */
+    public static ConfidenceInterval at(GroupSequentialDesign design, Look look, double estimate,
+                                        double standardError, double degreesOfFreedom) {
+        ConfidenceInterval z = at(design, look, estimate, standardError);
+        double c = Math.abs(look.efficacyBoundary());
+        if (degreesOfFreedom == Double.POSITIVE_INFINITY || c == Double.POSITIVE_INFINITY) {
+            return z;
+        }
+        double half = criticalValue(c, degreesOfFreedom) * standardError;
+        Alternative alternative = look.alternative();
+        double lower = alternative == Alternative.LESS ? Double.NEGATIVE_INFINITY : estimate - half;
+        double upper = alternative == Alternative.GREATER ? Double.POSITIVE_INFINITY : estimate + half;
+        return new ConfidenceInterval(lower, upper, z.level());
+    }
+
+    /**
+     * The interval for the relative change treatment/control − 1 at this look: the interval of the
+     * log ratio, log(1 + relative) ± q·se, mapped back by exp(·) − 1 (delta method on the log ratio;
+     * Deng, Knoblich &amp; Lu 2018, §3.3), with q the look's critical value as in
+     * {@link #at(GroupSequentialDesign, Look, double, double, double)}. Null when the relative change
+     * is undefined (NaN).
+     */
+    public static ConfidenceInterval relative(GroupSequentialDesign design, Look look, double relative,
+                                              double logStandardError, double degreesOfFreedom) {
+        if (!Double.isFinite(relative) || !(logStandardError >= 0) || Double.isInfinite(logStandardError)) {
+            return null;
+        }
+        ConfidenceInterval log = at(design, look, Math.log1p(relative), logStandardError, degreesOfFreedom);
+        return new ConfidenceInterval(Math.expm1(log.lower()), Math.expm1(log.upper()), log.level());
+    }
+
+    /** T_ν⁻¹(Φ(c)): the t quantile with the normal tail of c. */
+    static double criticalValue(double c, double degreesOfFreedom) {
+        double tail = StandardNormal.sf(c);
+        if (tail <= 0) {
+            return Double.POSITIVE_INFINITY;
+        }
+        return org.apache.commons.statistics.distribution.TDistribution.of(degreesOfFreedom).inverseSurvivalProbability(tail);
+    }
 }

@@ -76,7 +76,8 @@ public final class JsonEventReader implements EventReader {
     private final int unitSlot;
     private final Map<String, Experiment> experiments = new HashMap<>();
 
-    private record Metric(String name, MetricSource source, int slot) {}
+    /** A metric's field slots; a ratio's denominator in {@code denominatorSlot} (else -1). */
+    private record Metric(String name, MetricSource source, int slot, int denominatorSlot) {}
 
     private record Experiment(ExperimentDefinition definition, List<Metric> metrics, boolean needsUnit) {}
 
@@ -94,7 +95,8 @@ public final class JsonEventReader implements EventReader {
             List<Metric> metrics = new ArrayList<>();
             for (MetricDefinition m : e.definition().metrics()) {
                 MetricSource source = e.source(m);
-                metrics.add(new Metric(m.name(), source, pointers.add(source.field())));
+                int denominator = source instanceof MetricSource.Ratio r ? pointers.add(r.denominator()) : -1;
+                metrics.add(new Metric(m.name(), source, pointers.add(source.field()), denominator));
             }
             experiments.put(e.definition().id(), new Experiment(e.definition(), metrics, e.definition().needsUnits()));
         }
@@ -168,9 +170,25 @@ public final class JsonEventReader implements EventReader {
         boolean[] present = new boolean[n];
         boolean[] success = new boolean[n];
         double[] numbers = new double[n];
+        double[] denominators = null;
         for (int i = 0; i < n; i++) {
             Metric m = experiment.metrics().get(i);
             JsonNode field = PointerTrie.found(found, m.slot());
+            if (m.source() instanceof MetricSource.Ratio r) {
+                JsonNode below = PointerTrie.found(found, m.denominatorSlot());
+                boolean hasAbove = !field.isMissingNode() && !field.isNull();
+                boolean hasBelow = !below.isMissingNode() && !below.isNull();
+                if (!hasAbove && !hasBelow) {
+                    continue;
+                }
+                present[i] = true;
+                if (denominators == null) {
+                    denominators = new double[n];
+                }
+                numbers[i] = hasAbove ? number(m, field, r.field(), r.range()) : 0;
+                denominators[i] = hasBelow ? number(m, below, r.denominator(), r.denominatorRange()) : 0;
+                continue;
+            }
             if (field.isMissingNode() || field.isNull()) {
                 continue;
             }
@@ -188,23 +206,7 @@ public final class JsonEventReader implements EventReader {
                 }
                 success[i] = c.countsIf().test(field);
             } else {
-                if (!field.isNumber()) {
-                    throw new BadEventException(Reason.WRONG_TYPE, m.name() + ": " + m.source().field() + " must be a number");
-                }
-                double v = field.doubleValue();
-                if (!Double.isFinite(v)) {
-                    throw new BadEventException(Reason.NOT_FINITE, m.name() + ": " + m.source().field() + " is not finite");
-                }
-                if (Math.abs(v) > MAX_MAGNITUDE) {
-                    throw new BadEventException(Reason.FORBIDDEN_VALUE, m.name() + ": " + m.source().field() + " is " + v
-                            + ", beyond ±" + MAX_MAGNITUDE + ", the largest magnitude the tallies take");
-                }
-                ValueRange range = ((MetricSource.Value) m.source()).range();
-                if (!range.contains(v)) {
-                    throw new BadEventException(Reason.FORBIDDEN_VALUE, m.name() + ": " + m.source().field() + " is " + v
-                            + ", outside its range " + range);
-                }
-                numbers[i] = v;
+                numbers[i] = number(m, field, m.source().field(), ((MetricSource.Value) m.source()).range());
             }
         }
         sink.exposure(experimentId, arm, unit);
@@ -215,10 +217,32 @@ public final class JsonEventReader implements EventReader {
             Metric m = experiment.metrics().get(i);
             if (m.source() instanceof MetricSource.Counted) {
                 sink.outcome(experimentId, arm, unit, m.name(), success[i]);
+            } else if (m.source() instanceof MetricSource.Ratio) {
+                sink.ratio(experimentId, arm, unit, m.name(), numbers[i], denominators[i]);
             } else {
                 sink.value(experimentId, arm, unit, m.name(), numbers[i]);
             }
         }
+    }
+
+    /** The number a mean, total or ratio part reads: finite, within the tallies' magnitude and its range. */
+    private static double number(Metric m, JsonNode field, JsonPointer pointer, ValueRange range) throws BadEventException {
+        if (!field.isNumber()) {
+            throw new BadEventException(Reason.WRONG_TYPE, m.name() + ": " + pointer + " must be a number");
+        }
+        double v = field.doubleValue();
+        if (!Double.isFinite(v)) {
+            throw new BadEventException(Reason.NOT_FINITE, m.name() + ": " + pointer + " is not finite");
+        }
+        if (Math.abs(v) > MAX_MAGNITUDE) {
+            throw new BadEventException(Reason.FORBIDDEN_VALUE, m.name() + ": " + pointer + " is " + v
+                    + ", beyond ±" + MAX_MAGNITUDE + ", the largest magnitude the tallies take");
+        }
+        if (!range.contains(v)) {
+            throw new BadEventException(Reason.FORBIDDEN_VALUE, m.name() + ": " + pointer + " is " + v
+                    + ", outside its range " + range);
+        }
+        return v;
     }
 
     private static String text(JsonNode[] found, int slot, JsonPointer pointer, String what) throws BadEventException {

@@ -272,7 +272,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             m.exposures.put(arm, exposures == null ? 0L : exposures.count());
             definition.metrics().forEach(metric -> {
                 Tally t = sum.get(arm + '\u001f' + metric.name());
-                if (t != null) {
+                if (t != null && t.form() == definition.form(metric)) {
                     m.tallies.computeIfAbsent(metric.name(), x -> new HashMap<>()).put(arm, t);
                 }
             });
@@ -285,7 +285,18 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         final Map<String, Map<String, Tally>> tallies = new HashMap<>();
     }
 
+    /**
+     * Two partials of one key summed. Partials of different forms (a source not yet rewritten after
+     * the metric's kind or the experiment's assignment changed) do not add: the one of the current
+     * form is kept by {@link #merge}, which drops a sum of the wrong form.
+     */
     static Tally plus(Tally a, Tally b) {
+        if (a.form() != b.form()) {
+            return b;
+        }
+        if (a instanceof Tally.Ratio x && b instanceof Tally.Ratio y) {
+            return new Tally.Ratio(x.moments().plus(y.moments()));
+        }
         if (a instanceof Tally.Mean x && b instanceof Tally.Mean y) {
             Moments m = x.moments().plus(y.moments());
             return new Tally.Mean(m);

@@ -14,4 +14,10 @@ public interface ObservationSink {
 
     /** A mean or total metric: the event's value. */
     void value(String experiment, String arm, String unit, String metric, double value);
+
+    /**
+     * A ratio metric: what this event adds to its numerator and its denominator (0 for a part the
+     * event does not carry).
+     */
+    void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator);
 }

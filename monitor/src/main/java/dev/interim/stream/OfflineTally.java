@@ -61,6 +61,11 @@ public final class OfflineTally implements ObservationSink {
         state.value(experiment, arm, unit, metric, value);
     }
 
+    @Override
+    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        state.ratio(experiment, arm, unit, metric, numerator, denominator);
+    }
+
     /**
      * Everything tallied so far for {@code experiment}, as the judge stage merges it: every arm has an
      * exposure count (0 when none); a metric or arm without observations is absent from the tallies.

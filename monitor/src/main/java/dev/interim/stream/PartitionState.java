@@ -1,12 +1,15 @@
 package dev.interim.stream;
 
+import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.MetricKind;
 import dev.interim.experiment.Tally;
+import dev.interim.experiment.TallyForm;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RunningMoments;
+import dev.interim.stats.RunningRatioMoments;
 import java.util.ArrayList;
 import java.util.HashMap;
 import java.util.LinkedHashMap;
@@ -80,14 +83,24 @@ final class PartitionState implements ObservationSink {
     private static final class Metric {
         final String name;
         final MetricKind kind;
+        final TallyForm form;
+        final MetricDefinition definition;
+        /** True for a ratio of per-unit sums (its numerator and denominator in two totals columns). */
+        final boolean unitRatio;
         /** The metric's column in the holder arrays (0 is the exposures). */
         final int slot;
-        /** Its bit (unit-rate) or its totals column (unit-total) in the unit table, else -1. */
+        /**
+         * Its bit (unit-rate), its totals column (unit-total) or the first of its two totals columns
+         * (numerator, then denominator: a ratio of per-unit sums) in the unit table, else -1.
+         */
         final int column;
 
-        Metric(String name, MetricKind kind, int slot, int column) {
-            this.name = name;
-            this.kind = kind;
+        Metric(MetricDefinition definition, TallyForm form, int slot, int column) {
+            this.name = definition.name();
+            this.kind = definition.kind();
+            this.definition = definition;
+            this.form = form;
+            this.unitRatio = form == TallyForm.RATIO && column >= 0;
             this.slot = slot;
             this.column = column;
         }
@@ -101,12 +114,16 @@ final class PartitionState implements ObservationSink {
         final Map<String, Metric> metrics = new HashMap<>();
         /** Column 0 is the exposures; columns 1.. the metrics in definition order. */
         final String[] columnNames;
-        final boolean[] meanColumn;
+        final TallyForm[] form;
         final Metric[] unitRates;
+        /** Metrics with totals columns: unit-totals and ratios of per-unit sums. */
         final Metric[] unitTotals;
+        /** The names of the totals columns, as the units changelog carries them. */
+        final String[] totalColumns;
         final int width;
         final Counts[] counts;
         final RunningMoments[] moments;
+        final RunningRatioMoments[] ratios;
         final PartialKey[] keys;
         final boolean[] dirty;
         boolean anyDirty;
@@ -121,11 +138,7 @@ final class PartitionState implements ObservationSink {
                 for (int i = 0; i < rateNames.length; i++) {
                     rateNames[i] = unitRates[i].name;
                 }
-                String[] totalNames = new String[unitTotals.length];
-                for (int i = 0; i < totalNames.length; i++) {
-                    totalNames[i] = unitTotals[i].name;
-                }
-                encoder = new StateCodec.UnitEncoder(source, id, arms, rateNames, totalNames);
+                encoder = new StateCodec.UnitEncoder(source, id, arms, rateNames, totalColumns);
             }
             return encoder;
         }
@@ -145,31 +158,43 @@ final class PartitionState implements ObservationSink {
             List<MetricDefinition> defs = d.metrics();
             width = defs.size() + 1;
             columnNames = new String[width];
-            meanColumn = new boolean[width];
+            form = new TallyForm[width];
             columnNames[0] = PartialKey.EXPOSURES;
+            form[0] = TallyForm.RATE;
             List<Metric> rates = new ArrayList<>();
             List<Metric> totals = new ArrayList<>();
+            List<String> totalNames = new ArrayList<>();
+            boolean perUnit = d.assignment() == Assignment.UNIT;
             for (int i = 0; i < defs.size(); i++) {
                 MetricDefinition m = defs.get(i);
+                TallyForm f = d.form(m);
+                boolean unitRatio = f == TallyForm.RATIO && perUnit;
                 int column = m.kind() == MetricKind.UNIT_RATE ? rates.size()
-                        : m.kind() == MetricKind.UNIT_TOTAL ? totals.size() : -1;
-                Metric metric = new Metric(m.name(), m.kind(), i + 1, column);
+                        : m.kind() == MetricKind.UNIT_TOTAL || unitRatio ? totalNames.size() : -1;
+                Metric metric = new Metric(m, f, i + 1, column);
                 metrics.put(m.name(), metric);
                 columnNames[i + 1] = m.name();
-                meanColumn[i + 1] = !m.kind().isProportion();
+                form[i + 1] = f;
                 if (m.kind() == MetricKind.UNIT_RATE) {
                     rates.add(metric);
                 } else if (m.kind() == MetricKind.UNIT_TOTAL) {
                     totals.add(metric);
+                    totalNames.add(m.name());
+                } else if (unitRatio) {
+                    totals.add(metric);
+                    totalNames.add(m.name() + NUMERATOR);
+                    totalNames.add(m.name() + DENOMINATOR);
                 }
             }
             unitRates = rates.toArray(new Metric[0]);
             unitTotals = totals.toArray(new Metric[0]);
+            totalColumns = totalNames.toArray(new String[0]);
             restoredMet = new boolean[unitRates.length];
-            restoredTotals = new double[unitTotals.length];
+            restoredTotals = new double[totalColumns.length];
             int n = arms.length * width;
             counts = new Counts[n];
             moments = new RunningMoments[n];
+            ratios = new RunningRatioMoments[n];
             keys = new PartialKey[n];
             dirty = new boolean[n];
         }
@@ -202,7 +227,7 @@ final class PartitionState implements ObservationSink {
 
         UnitTable units() {
             if (units == null) {
-                units = new UnitTable(unitRates.length, unitTotals.length);
+                units = new UnitTable(unitRates.length, totalColumns.length);
             }
             return units;
         }
@@ -234,6 +259,10 @@ final class PartitionState implements ObservationSink {
         Experiment e = experiment(experiment);
         Metric m = e.metric(metric);
         int a = e.arm(arm);
+        if (m.unitRatio) {
+            addToUnit(e, m, a, unit, success ? 1 : 0, 1);
+            return;
+        }
         if (m.kind == MetricKind.UNIT_RATE) {
             int slot = unit(e, a, unit);
             UnitTable t = e.units;
@@ -256,19 +285,55 @@ final class PartitionState implements ObservationSink {
         Experiment e = experiment(experiment);
         Metric m = e.metric(metric);
         int a = e.arm(arm);
+        if (m.unitRatio) {
+            addToUnit(e, m, a, unit, m.definition.capped(value), 1);
+            return;
+        }
         if (m.kind == MetricKind.UNIT_TOTAL) {
             int slot = unit(e, a, unit);
             UnitTable t = e.units;
             double before = t.total(slot, m.column);
             double after = before + value;
             RunningMoments r = moments(e, t.arm(slot) * e.width + m.slot);
-            r.remove(before);
-            r.accept(after);
+            r.remove(m.definition.capped(before));
+            r.accept(m.definition.capped(after));
             t.setTotal(slot, m.column, after);
             t.markChanged(slot);
             return;
         }
-        moments(e, a * e.width + m.slot).accept(value);
+        moments(e, a * e.width + m.slot).accept(m.definition.capped(value));
+    }
+
+    @Override
+    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        Experiment e = experiment(experiment);
+        Metric m = e.metric(metric);
+        int a = e.arm(arm);
+        if (m.unitRatio) {
+            addToUnit(e, m, a, unit, numerator, denominator);
+            return;
+        }
+        ratios(e, a * e.width + m.slot).accept(m.definition.capped(numerator), m.definition.cappedDenominator(denominator));
+    }
+
+    /**
+     * Adds to a unit's numerator and denominator sums, and replaces the unit's pair in its arm's
+     * ratio moments (the unit's first arm: a unit keeps the arm it was first exposed to). The table
+     * keeps the raw sums; the moments see them capped.
+     */
+    private void addToUnit(Experiment e, Metric m, int arm, String unit, double numerator, double denominator) {
+        int slot = unit(e, arm, unit);
+        UnitTable t = e.units;
+        double x0 = t.total(slot, m.column);
+        double y0 = t.total(slot, m.column + 1);
+        double x1 = x0 + numerator;
+        double y1 = y0 + denominator;
+        MetricDefinition d = m.definition;
+        ratios(e, t.arm(slot) * e.width + m.slot).replace(d.capped(x0), d.cappedDenominator(y0), d.capped(x1),
+                d.cappedDenominator(y1));
+        t.setTotal(slot, m.column, x1);
+        t.setTotal(slot, m.column + 1, y1);
+        t.markChanged(slot);
     }
 
     private Experiment experiment(String id) {
@@ -299,7 +364,11 @@ final class PartitionState implements ObservationSink {
                 counts(e, row + m.slot).trials++;
             }
             for (Metric m : e.unitTotals) {
-                moments(e, row + m.slot).accept(0);
+                if (m.unitRatio) {
+                    ratios(e, row + m.slot).accept(m.definition.capped(0), m.definition.cappedDenominator(0));
+                } else {
+                    moments(e, row + m.slot).accept(m.definition.capped(0));
+                }
             }
         }
         lastUnit = unit;
@@ -325,6 +394,17 @@ final class PartitionState implements ObservationSink {
         if (m == null) {
             m = new RunningMoments();
             e.moments[index] = m;
+            created(e, index);
+        }
+        touch(e, index);
+        return m;
+    }
+
+    private RunningRatioMoments ratios(Experiment e, int index) {
+        RunningRatioMoments m = e.ratios[index];
+        if (m == null) {
+            m = new RunningRatioMoments();
+            e.ratios[index] = m;
             created(e, index);
         }
         touch(e, index);
@@ -372,7 +452,7 @@ final class PartitionState implements ObservationSink {
         List<Partial> out = new ArrayList<>();
         for (Experiment e : experiments.values()) {
             for (int i = 0; i < e.keys.length; i++) {
-                if (e.counts[i] != null || e.moments[i] != null) {
+                if (e.counts[i] != null || e.moments[i] != null || e.ratios[i] != null) {
                     out.add(partialOf(e, i));
                 }
             }
@@ -382,6 +462,10 @@ final class PartitionState implements ObservationSink {
     }
 
     private static Partial partialOf(Experiment e, int index) {
+        RunningRatioMoments r = e.ratios[index];
+        if (r != null) {
+            return new Partial(e.key(index), new Tally.Ratio(r.snapshot()));
+        }
         RunningMoments m = e.moments[index];
         if (m != null) {
             return new Partial(e.key(index), new Tally.Mean(m.snapshot()));
@@ -442,17 +526,18 @@ final class PartitionState implements ObservationSink {
                         encoder.met(i);
                     }
                 }
+                int columns = e.totalColumns.length;
                 int written = 0;
-                for (Metric m : totals) {
-                    if (Double.doubleToRawLongBits(t.total(slot, m.column)) != 0) {
+                for (int c = 0; c < columns; c++) {
+                    if (Double.doubleToRawLongBits(t.total(slot, c)) != 0) {
                         written++;
                     }
                 }
                 encoder.totalCount(written);
-                for (int i = 0; i < totals.length; i++) {
-                    double v = t.total(slot, totals[i].column);
+                for (int c = 0; c < columns; c++) {
+                    double v = t.total(slot, c);
                     if (Double.doubleToRawLongBits(v) != 0) {
-                        encoder.total(i, v);
+                        encoder.total(c, v);
                     }
                 }
                 out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encoder.finish());
@@ -484,10 +569,10 @@ final class PartitionState implements ObservationSink {
             }
         }
         Map<String, Double> totals = new LinkedHashMap<>();
-        for (Metric m : e.unitTotals) {
-            double v = t.total(slot, m.column);
+        for (int c = 0; c < e.totalColumns.length; c++) {
+            double v = t.total(slot, c);
             if (Double.doubleToRawLongBits(v) != 0) {
-                totals.put(m.name, v);
+                totals.put(e.totalColumns[c], v);
             }
         }
         return new UnitState(e.arms[t.arm(slot)], met, totals);
@@ -512,13 +597,14 @@ final class PartitionState implements ObservationSink {
                 column = m == null ? -1 : m.slot;
             }
         }
-        boolean mean = partial.tally() instanceof Tally.Mean;
-        if (column < 0 || e.meanColumn[column] != mean) {
+        if (column < 0 || e.form[column] != partial.tally().form()) {
             orphans.put(k, partial.tally());
             return;
         }
         int index = a * e.width + column;
-        if (partial.tally() instanceof Tally.Mean m) {
+        if (partial.tally() instanceof Tally.Ratio r) {
+            e.ratios[index] = RunningRatioMoments.from(r.moments());
+        } else if (partial.tally() instanceof Tally.Mean m) {
             e.moments[index] = RunningMoments.from(m.moments());
         } else {
             ProportionCounts p = ((Tally.Rate) partial.tally()).counts();
@@ -547,9 +633,9 @@ final class PartitionState implements ObservationSink {
             met[m.column] = state.met().contains(m.name);
         }
         double[] totals = e.restoredTotals;
-        for (Metric m : e.unitTotals) {
-            Double v = state.totals().get(m.name);
-            totals[m.column] = v == null ? 0.0 : v;
+        for (int c = 0; c < e.totalColumns.length; c++) {
+            Double v = state.totals().get(e.totalColumns[c]);
+            totals[c] = v == null ? 0.0 : v;
         }
         e.units().put(key.hi(), key.lo(), a, met, totals);
     }
@@ -600,8 +686,9 @@ final class PartitionState implements ObservationSink {
 
     /** A cumulative partial tally: what the tallies topic carries. */
     record Partial(PartialKey key, Tally tally) {
-        static Partial empty(PartialKey key, boolean mean) {
-            return new Partial(key, mean ? new Tally.Mean(Moments.EMPTY) : new Tally.Rate(ProportionCounts.EMPTY));
-        }
     }
+
+    /** Suffixes of a ratio's two totals columns on the units changelog (metric names hold no '/'). */
+    static final String NUMERATOR = "/numerator";
+    static final String DENOMINATOR = "/denominator";
 }

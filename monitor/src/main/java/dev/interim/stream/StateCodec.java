@@ -10,6 +10,7 @@ import dev.interim.stats.Alternative;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RatioMoments;
 import java.io.IOException;
 import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
@@ -42,6 +43,13 @@ final class StateCodec {
             if (x.count() > 0) {
                 n.put("mean", x.mean()).put("residual", x.meanResidual());
             }
+        } else if (tally instanceof Tally.Ratio r) {
+            RatioMoments x = r.moments();
+            n.put("kind", "ratio").put("count", x.count()).put("m2x", x.sumSquaredDeviationsX())
+                    .put("m2y", x.sumSquaredDeviationsY()).put("cxy", x.sumCrossDeviations());
+            if (x.count() > 0) {
+                n.put("mean_x", x.meanX()).put("mean_y", x.meanY());
+            }
         } else {
             ProportionCounts c = ((Tally.Rate) tally).counts();
             n.put("kind", "rate").put("successes", c.successes()).put("trials", c.trials());
@@ -58,6 +66,14 @@ final class StateCodec {
             }
             return new Tally.Mean(new Moments(count, n.path("mean").asDouble(), n.path("m2").asDouble(),
                     n.path("residual").asDouble()));
+        }
+        if ("ratio".equals(n.path("kind").asText())) {
+            long count = n.path("count").asLong();
+            if (count == 0) {
+                return new Tally.Ratio(RatioMoments.EMPTY);
+            }
+            return new Tally.Ratio(new RatioMoments(count, n.path("mean_x").asDouble(), n.path("mean_y").asDouble(),
+                    n.path("m2x").asDouble(), n.path("m2y").asDouble(), n.path("cxy").asDouble()));
         }
         return new Tally.Rate(new ProportionCounts(n.path("successes").asLong(), n.path("trials").asLong()));
     }

@@ -26,6 +26,11 @@ final class RecordingSink implements ObservationSink {
         calls.add(valueCall(experiment, arm, unit, metric, value));
     }
 
+    @Override
+    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        calls.add("ratio " + experiment + " " + arm + " " + unit + " " + metric + " " + numerator + " " + denominator);
+    }
+
     static String exposureCall(String experiment, String arm, String unit) {
         return "exposure " + experiment + " " + arm + " " + unit;
     }

@@ -1,0 +1,83 @@
+package dev.interim.stats;
+
+/**
+ * Tests of a ratio of means over independent units (a metric whose events are clustered in the
+ * units that were randomised: errors per request, latency per request, revenue per session), with
+ * the delta-method variance of {@link RatioMoments}.
+ *
+ * <p>The two-sample test is Welch's t on the linearised unit values (X − R·Y)/ȳ of each arm: the
+ * estimate is R_a − R_b, its standard error √(Var(R_a) + Var(R_b)) by the delta method (Deng,
+ * Knoblich &amp; Lu 2018, KDD), and the degrees of freedom Welch–Satterthwaite's on those variances,
+ * so that small samples are judged on t as the event-level means are. When one arm shows no spread
+ * yet and the other does, its variance is not taken as zero (a zero sample variance from a few units
+ * is no evidence of a zero population variance): the linearised variances are pooled, as in the
+ * pooled t test.
+ */
+public final class RatioTests {
+    private RatioTests() {
+    }
+
+    /**
+     * R_a − R_b by Welch's t on linearised unit values.
+     *
+     * @throws InsufficientDataException with fewer than 2 units in an arm, a zero mean denominator,
+     *                                   or no spread in either arm
+     */
+    public static TestResult twoSample(RatioMoments a, RatioMoments b, Alternative alternative) {
+        String test = "delta-method Welch t";
+        Checks.notNull("a", a);
+        Checks.notNull("b", b);
+        Checks.notNull("alternative", alternative);
+        Checks.atLeast(test, "units in the first sample", a.count(), 2);
+        Checks.atLeast(test, "units in the second sample", b.count(), 2);
+        requireDenominator(test, a);
+        requireDenominator(test, b);
+        double sa = a.linearisedVariance();
+        double sb = b.linearisedVariance();
+        if (sa == 0 && sb == 0) {
+            throw new InsufficientDataException(test + ": no unit differs from another in either arm yet, so the"
+                    + " ratio has no variance; wait for data that vary");
+        }
+        double na = a.count();
+        double nb = b.count();
+        double df;
+        if (sa == 0 || sb == 0) {
+            df = na + nb - 2;
+            double pooled = ((na - 1) * sa + (nb - 1) * sb) / df;
+            sa = pooled;
+            sb = pooled;
+        } else {
+            double va = sa / na;
+            double vb = sb / nb;
+            df = (va + vb) * (va + vb) / (va * va / (na - 1) + vb * vb / (nb - 1));
+        }
+        double se = Math.sqrt(sa / na + sb / nb);
+        double difference = a.ratio() - b.ratio();
+        return TestResult.of(test, Checks.ratio(test, difference, se), df, alternative, difference, se);
+    }
+
+    /**
+     * R against a fixed value: t on n − 1 degrees of freedom with the delta-method standard error.
+     *
+     * @throws InsufficientDataException with fewer than 2 units, a zero mean denominator or no spread
+     */
+    public static TestResult oneSample(RatioMoments sample, double value, Alternative alternative) {
+        String test = "delta-method t";
+        Checks.notNull("sample", sample);
+        Checks.notNull("alternative", alternative);
+        Checks.finite("value", value);
+        Checks.atLeast(test, "units", sample.count(), 2);
+        requireDenominator(test, sample);
+        double se = Math.sqrt(sample.ratioVariance());
+        double difference = sample.ratio() - value;
+        return TestResult.of(test, Checks.ratio(test, difference, se), sample.count() - 1.0, alternative,
+                sample.ratio(), se);
+    }
+
+    private static void requireDenominator(String test, RatioMoments m) {
+        if (m.meanY() == 0) {
+            throw new InsufficientDataException(test + ": the denominator sums to 0 in an arm, so its ratio is undefined;"
+                    + " wait for events that carry the denominator");
+        }
+    }
+}
