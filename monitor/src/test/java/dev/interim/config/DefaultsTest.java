@@ -32,8 +32,19 @@ class DefaultsTest {
     @Test
     void keyedByUnitDefaultsToFalse() {
         String yaml = Configs.valid("  input_keyed_by_unit: true\n", "",
-                "kind: unit-rate", "kind: event-rate");
+                "kind: unit-rate", "kind: event-rate", "    control: old\n", "    assignment: event\n    control: old\n");
         assertThat(ConfigLoader.parse(yaml, Configs.ENV).kafka().inputKeyedByUnit()).isFalse();
+    }
+
+    @Test
+    void armsAreAssignedPerUnitWhenEventsCarryAUnitAndPerEventOtherwise() {
+        // The rule of the configuration reference: events.unit set means per-unit assignment by default.
+        assertThat(config.experiments().get(0).definition().assignment())
+                .isEqualTo(dev.interim.experiment.Assignment.UNIT);
+        String noUnit = Configs.valid("  unit: /user\n", "", "kind: unit-rate", "kind: event-rate",
+                "  input_keyed_by_unit: true\n", "");
+        assertThat(ConfigLoader.parse(noUnit, Configs.ENV).experiments().get(0).definition().assignment())
+                .isEqualTo(dev.interim.experiment.Assignment.EVENT);
     }
 
     @Test

@@ -17,6 +17,7 @@ import dev.interim.experiment.LookReport;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RatioMoments;
 import java.io.IOException;
 import java.math.BigDecimal;
 import java.math.BigInteger;
@@ -191,16 +192,17 @@ class ReplayScenarioTest {
     }
 
     /**
-     * The tallies of the configuration's three metrics, computed from the JSON trees: upload-failures
-     * per event's arm; upload-ms as exact integer sums; shared and the exposures per user, a user
-     * belonging to the arm of its first event (docs/configuration.md, metric kinds).
+     * The tallies of the configuration's three metrics, computed from the JSON trees. Arms are
+     * assigned per user (events.unit is set), so upload-failures and upload-ms are ratios of per-user
+     * sums (failed uploads over uploads, milliseconds over uploads), their moments computed here in two
+     * passes over the users; shared and the exposures per user; a user belongs to the arm of its first
+     * event (docs/configuration.md, metric kinds and assignment).
      */
     private static final class Independent {
         final ExperimentMonitor monitor;
         final List<Instant> instants = new ArrayList<>();
         final List<DecisionRecord> decisions = new ArrayList<>();
-        final Map<String, long[]> failures = new HashMap<>();      // arm → {failed, uploads}
-        final Map<String, long[]> latency = new HashMap<>();       // arm → {n, Σx, Σx²}
+        final Map<String, long[]> perUser = new HashMap<>();       // user → {failed, uploads, Σms}
         final Map<String, String> armOfUser = new HashMap<>();
         final Set<String> sharers = new HashSet<>();
 
@@ -215,14 +217,10 @@ class ReplayScenarioTest {
             JsonNode upload = e.get("upload");
             if (upload != null) {
                 String status = upload.get("status").textValue();
-                long[] f = failures.computeIfAbsent(arm, a -> new long[2]);
-                f[0] += status.equals("failed") || status.equals("timeout") ? 1 : 0;
-                f[1]++;
-                long ms = upload.get("ms").longValue();
-                long[] l = latency.computeIfAbsent(arm, a -> new long[3]);
-                l[0]++;
-                l[1] += ms;
-                l[2] += ms * ms;
+                long[] u = perUser.computeIfAbsent(user, x -> new long[3]);
+                u[0] += status.equals("failed") || status.equals("timeout") ? 1 : 0;
+                u[1]++;
+                u[2] += upload.get("ms").longValue();
             }
             if (e.has("step") && e.get("step").textValue().equals("shared")) {
                 sharers.add(user);
@@ -242,13 +240,11 @@ class ReplayScenarioTest {
                 if (users > 0) {
                     shared.put(arm, new Tally.Rate(new ProportionCounts(sharing, users)));
                 }
-                long[] f = failures.get(arm);
-                if (f != null) {
-                    failed.put(arm, new Tally.Rate(new ProportionCounts(f[0], f[1])));
-                }
-                long[] l = latency.get(arm);
-                if (l != null) {
-                    ms.put(arm, new Tally.Mean(exactMoments(l[0], l[1], l[2])));
+                List<long[]> sums = armOfUser.entrySet().stream().filter(u -> u.getValue().equals(arm))
+                        .map(u -> perUser.getOrDefault(u.getKey(), new long[3])).toList();
+                if (sums.stream().anyMatch(u -> u[1] > 0)) {
+                    failed.put(arm, new Tally.Ratio(twoPass(sums, 0, 1)));
+                    ms.put(arm, new Tally.Ratio(twoPass(sums, 2, 1)));
                 }
             }
             Instant instant = Instant.ofEpochMilli(at);
@@ -256,6 +252,22 @@ class ReplayScenarioTest {
                     Map.of("upload-failures", failed, "upload-ms", ms, "shared", shared));
             instants.add(instant);
             decisions.addAll(report.decisions());
+        }
+
+        /** Ratio moments of (u[x], u[y]) over the users: means first, then the deviations' sums. */
+        private static RatioMoments twoPass(List<long[]> users, int x, int y) {
+            double n = users.size();
+            double mx = users.stream().mapToDouble(u -> u[x]).sum() / n;
+            double my = users.stream().mapToDouble(u -> u[y]).sum() / n;
+            double sxx = 0;
+            double syy = 0;
+            double sxy = 0;
+            for (long[] u : users) {
+                sxx += (u[x] - mx) * (u[x] - mx);
+                syy += (u[y] - my) * (u[y] - my);
+                sxy += (u[x] - mx) * (u[y] - my);
+            }
+            return new RatioMoments(users.size(), mx, my, sxx, syy, sxy);
         }
 
         /** Mean Σx/n and M2 = Σx² − (Σx)²/n, exact in integers, rounded once. */

@@ -75,6 +75,7 @@ class JsonEventReaderStreamingDifferentialTest {
               unit: /who/0
             experiments:
               - id: kiosk-layout
+                assignment: event
                 control: grid
                 treatments: [list, carousel]
                 metrics:
@@ -89,6 +90,7 @@ class JsonEventReaderStreamingDifferentialTest {
                   - {name: blank, kind: event-rate, role: guardrail, worse: higher, field: /,
                      counts_if: {below: 10}, max_per_arm: 1000}
               - id: kiosk-audio
+                assignment: event
                 control: quiet
                 treatments: [loud]
                 metrics:

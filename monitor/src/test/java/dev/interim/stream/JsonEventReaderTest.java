@@ -31,6 +31,7 @@ class JsonEventReaderTest {
               unit: /user
             experiments:
               - id: router-canary
+                assignment: event
                 control: old
                 treatments: [new]
                 min_per_arm: 10

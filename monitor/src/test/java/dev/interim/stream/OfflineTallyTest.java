@@ -31,6 +31,7 @@ class OfflineTallyTest {
               unit: /user
             experiments:
               - id: harbor-search
+                assignment: event
                 control: old
                 treatments: [new]
                 metrics:
@@ -41,6 +42,7 @@ class OfflineTallyTest {
                      counts_if: {equals: booked}, max_per_arm: 1000}
                   - {name: spend, kind: unit-total, role: guardrail, worse: lower, field: /spend, max_per_arm: 1000}
               - id: harbor-maps
+                assignment: event
                 control: a
                 treatments: [b]
                 metrics:

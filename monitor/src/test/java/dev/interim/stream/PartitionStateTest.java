@@ -47,6 +47,7 @@ class PartitionStateTest {
               unit: /user
             experiments:
               - id: lantern-checkout
+                assignment: event
                 control: old
                 treatments: [new, bold]
                 metrics:
@@ -60,6 +61,7 @@ class PartitionStateTest {
                   - {name: spend, kind: unit-total, role: guardrail, worse: lower, field: /spend, max_per_arm: 1000}
                   - {name: items, kind: unit-total, role: guardrail, worse: lower, field: /items, max_per_arm: 1000}
               - id: lantern-maps
+                assignment: event
                 control: a
                 treatments: [b]
                 metrics:
