@@ -262,7 +262,7 @@ public final class Comparison {
      * variance estimated from a few observations, and is exactly 1 when both arms hold N (computed
      * from whole numbers, so no rounding keeps a design short of its end). Against a baseline, n_t/N.
      * For a powered horizon: the conservative information over I_max = (drift/δ)², δ the planned
-     * effect (a relative one times the control's level, or the baseline's).
+     * effect (a relative one times the control's level, or the baseline's), at most n/{@link #FULL_COUNT}.
      */
     private double fraction(Estimate e, long treatmentCount, long controlCount) {
         if (metric.horizon() instanceof Horizon.MaxPerArm max) {
@@ -277,8 +277,19 @@ public final class Comparison {
         Horizon.Powered p = (Horizon.Powered) metric.horizon();
         double delta = p.scale() == Horizon.Scale.RELATIVE ? p.effect() * Math.abs(e.controlLevel()) : p.effect();
         double planned = (plannedDrift / delta) * (plannedDrift / delta);
-        return e.conservativeInformation() / planned;
+        double t = treatmentCount;
+        double counted = controlCount < 0 ? t : 2 * t * controlCount / (t + controlCount);
+        return Math.min(e.conservativeInformation() / planned, counted / FULL_COUNT);
     }
+
+    /**
+     * A powered horizon is not taken as reached before each arm holds this many observations: the
+     * fraction is at most n/30 (n the harmonic mean of the arms' counts). A plan whose effect is large
+     * against the spread asks for only a few observations, and a look at those would be final at
+     * once, judged by a normal approximation that a few skewed values do not support; 30 is the
+     * usual rule of thumb for it (common practice).
+     */
+    static final double FULL_COUNT = 30;
 
     private Decision decide(Look look, double z) {
         if (look.rejects(z)) {
