@@ -260,7 +260,7 @@ final class PartitionState implements ObservationSink {
         Metric m = e.metric(metric);
         int a = e.arm(arm);
         if (m.unitRatio) {
-            addToUnit(e, m, a, unit, success ? 1 : 0, 1);
+            addToUnit(e, m, a, unit, success ? 1 : 0, 1, false);
             return;
         }
         if (m.kind == MetricKind.UNIT_RATE) {
@@ -286,7 +286,7 @@ final class PartitionState implements ObservationSink {
         Metric m = e.metric(metric);
         int a = e.arm(arm);
         if (m.unitRatio) {
-            addToUnit(e, m, a, unit, m.definition.capped(value), 1);
+            addToUnit(e, m, a, unit, m.definition.capped(value), 1, false);
             return;
         }
         if (m.kind == MetricKind.UNIT_TOTAL) {
@@ -310,7 +310,7 @@ final class PartitionState implements ObservationSink {
         Metric m = e.metric(metric);
         int a = e.arm(arm);
         if (m.unitRatio) {
-            addToUnit(e, m, a, unit, numerator, denominator);
+            addToUnit(e, m, a, unit, numerator, denominator, true);
             return;
         }
         ratios(e, a * e.width + m.slot).accept(m.definition.capped(numerator), m.definition.cappedDenominator(denominator));
@@ -318,10 +318,12 @@ final class PartitionState implements ObservationSink {
 
     /**
      * Adds to a unit's numerator and denominator sums, and replaces the unit's pair in its arm's
-     * ratio moments (the unit's first arm: a unit keeps the arm it was first exposed to). The table
-     * keeps the raw sums; the moments see them capped.
+     * ratio moments (the unit's first arm: a unit keeps the arm it was first exposed to). For a ratio
+     * metric the caps apply to the unit's sums ({@code capSums}): the table keeps the raw sums and the
+     * moments see them capped; an event-mean's cap applies to each event value, before it is added.
      */
-    private void addToUnit(Experiment e, Metric m, int arm, String unit, double numerator, double denominator) {
+    private void addToUnit(Experiment e, Metric m, int arm, String unit, double numerator, double denominator,
+                           boolean capSums) {
         int slot = unit(e, arm, unit);
         UnitTable t = e.units;
         double x0 = t.total(slot, m.column);
@@ -329,8 +331,12 @@ final class PartitionState implements ObservationSink {
         double x1 = x0 + numerator;
         double y1 = y0 + denominator;
         MetricDefinition d = m.definition;
-        ratios(e, t.arm(slot) * e.width + m.slot).replace(d.capped(x0), d.cappedDenominator(y0), d.capped(x1),
-                d.cappedDenominator(y1));
+        RunningRatioMoments r = ratios(e, t.arm(slot) * e.width + m.slot);
+        if (capSums) {
+            r.replace(d.capped(x0), d.cappedDenominator(y0), d.capped(x1), d.cappedDenominator(y1));
+        } else {
+            r.replace(x0, y0, x1, y1);
+        }
         t.setTotal(slot, m.column, x1);
         t.setTotal(slot, m.column + 1, y1);
         t.markChanged(slot);
@@ -364,8 +370,10 @@ final class PartitionState implements ObservationSink {
                 counts(e, row + m.slot).trials++;
             }
             for (Metric m : e.unitTotals) {
-                if (m.unitRatio) {
+                if (m.unitRatio && m.kind == MetricKind.RATIO) {
                     ratios(e, row + m.slot).accept(m.definition.capped(0), m.definition.cappedDenominator(0));
+                } else if (m.unitRatio) {
+                    ratios(e, row + m.slot).accept(0, 0);
                 } else {
                     moments(e, row + m.slot).accept(m.definition.capped(0));
                 }

@@ -9,6 +9,7 @@ import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RatioMoments;
 import java.lang.management.ManagementFactory;
 import java.util.ArrayList;
 import java.util.HashMap;
@@ -68,6 +69,16 @@ class PartitionStateTest {
                   - {name: errors, kind: event-rate, role: guardrail, worse: higher, field: /status,
                      counts_if: {equals: error}, max_per_arm: 1000}
                   - {name: ms, kind: event-mean, role: guardrail, worse: higher, field: /ms, max_per_arm: 1000}
+              - id: lantern-fares
+                assignment: unit
+                control: x
+                treatments: [y]
+                metrics:
+                  - {name: errors, kind: event-rate, role: guardrail, worse: higher, field: /status,
+                     counts_if: {equals: error}, max_per_arm: 1000}
+                  - {name: ms, kind: event-mean, role: guardrail, worse: higher, field: /ms, cap: 600, max_per_arm: 1000}
+                  - {name: fare, kind: ratio, role: primary, worse: lower, numerator: /fare, denominator: /seats,
+                     cap: 400, max_per_arm: 1000}
             """;
     private static final List<ExperimentDefinition> DEFINITIONS =
             ConfigLoader.parseWithoutSecrets(YAML).experiments().stream().map(e -> e.definition()).toList();
@@ -75,6 +86,7 @@ class PartitionStateTest {
     private static final String SOURCE = "lantern.events-3";
     private static final String SHOP = "lantern-checkout";
     private static final String MAPS = "lantern-maps";
+    private static final String FARES = "lantern-fares";
 
     private static PartitionState state() {
         return new PartitionState(SOURCE, CATALOG);
@@ -187,6 +199,37 @@ class PartitionStateTest {
         assertThat(s.partials()).isEmpty();
     }
 
+    @Test
+    void underPerUnitAssignmentEventMetricsAreRatiosOfPerUnitSums() {
+        // Counted by hand: ana (x) 2 requests, 1 error, 100 and 900 ms (900 capped at 600); ben (x) one
+        // request, no error, 200 ms, then a fare of 450 (capped at 400) over 4 seats; cy (x) exposed only.
+        PartitionState s = state();
+        s.exposure(FARES, "x", "ana");
+        s.outcome(FARES, "x", "ana", "errors", true);
+        s.value(FARES, "x", "ana", "ms", 100);
+        s.exposure(FARES, "x", "ana");
+        s.outcome(FARES, "x", "ana", "errors", false);
+        s.value(FARES, "x", "ana", "ms", 900);
+        s.exposure(FARES, "x", "ben");
+        s.outcome(FARES, "x", "ben", "errors", false);
+        s.value(FARES, "x", "ben", "ms", 200);
+        s.exposure(FARES, "y", "ben");                 // ben keeps x, the arm of his first event
+        s.ratio(FARES, "y", "ben", "fare", 450, 4);
+        s.exposure(FARES, "x", "cy");
+        RatioMoments errors = ((Tally.Ratio) tally(s, FARES, "x", "errors")).moments();
+        assertThat(errors).isEqualTo(RatioMoments.of(new double[] {1, 0, 0}, new double[] {2, 1, 0}));
+        RatioMoments ms = ((Tally.Ratio) tally(s, FARES, "x", "ms")).moments();
+        // Each event value is capped: ana's sum is 100 + 600.
+        assertThat(ms.count()).isEqualTo(3);
+        assertThat(ms.meanX() * 3).isCloseTo(900, within(1e-9));
+        assertThat(ms.meanY() * 3).isCloseTo(3, within(1e-12));
+        RatioMoments fare = ((Tally.Ratio) tally(s, FARES, "x", "fare")).moments();
+        assertThat(fare.meanX() * 3).isCloseTo(400, within(1e-9));
+        assertThat(fare.meanY() * 3).isCloseTo(4, within(1e-12));
+        assertThat(tally(s, FARES, "y", "fare")).as("ben's fare counts in x").isNull();
+        assertThat(((Tally.Rate) tally(s, FARES, "x", PartialKey.EXPOSURES)).count()).as("units").isEqualTo(3);
+    }
+
     // ---- what a commit writes, and what a restore reads -----------------------------------------
 
     @Test
@@ -225,6 +268,7 @@ class PartitionStateTest {
             switch (kind) {
                 case 0 -> sink.exposure(experiment, arm, unit);
                 case 1 -> sink.outcome(experiment, arm, unit, metric, number != 0);
+                case 3 -> sink.ratio(experiment, arm, unit, metric, number, Math.floor(number / 100));
                 default -> sink.value(experiment, arm, unit, metric, number);
             }
         }
@@ -269,7 +313,23 @@ class PartitionStateTest {
         Arbitrary<Step> maps = Combinators.combine(Arbitraries.of("a", "b"), Arbitraries.of("u1", "u2", "m1", "m2"),
                 Arbitraries.integers().between(0, 3)).as((arm, unit, mask) -> new Step(List.of(
                         new Call(0, MAPS, arm, unit, null, 0), new Call(1, MAPS, arm, unit, "errors", mask & 1))));
+        Arbitrary<Step> fares = Combinators.combine(Arbitraries.of("x", "y"), units, Arbitraries.integers().between(0, 15),
+                Arbitraries.doubles().between(0, 900).ofScale(1)).as((arm, unit, mask, v) -> {
+                    List<Call> calls = new ArrayList<>();
+                    calls.add(new Call(0, FARES, arm, unit, null, 0));
+                    if ((mask & 1) != 0) {
+                        calls.add(new Call(1, FARES, arm, unit, "errors", (mask & 2)));
+                    }
+                    if ((mask & 4) != 0) {
+                        calls.add(new Call(2, FARES, arm, unit, "ms", v));
+                    }
+                    if ((mask & 8) != 0) {
+                        calls.add(new Call(3, FARES, arm, unit, "fare", v));
+                    }
+                    return new Step(calls);
+                });
         return Arbitraries.frequencyOf(
+                net.jqwik.api.Tuple.of(6, fares),
                 net.jqwik.api.Tuple.of(12, shop),
                 net.jqwik.api.Tuple.of(3, maps),
                 net.jqwik.api.Tuple.of(1, Arbitraries.just(new Step(List.of()))))
