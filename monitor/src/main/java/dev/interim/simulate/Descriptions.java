@@ -47,7 +47,10 @@ final class Descriptions {
             return "at most " + max.perArm() + " per arm";
         }
         Horizon.Powered p = (Horizon.Powered) m.horizon();
-        return "power " + Numbers.given(p.power()) + " for effect " + Numbers.given(p.effect()) + " ("
+        String effect = p.scale() == Horizon.Scale.RELATIVE
+                ? "relative effect " + Numbers.given(p.effect()) + " (a share of control's level)"
+                : "effect " + Numbers.given(p.effect());
+        return "power " + Numbers.given(p.power()) + " for " + effect + " ("
                 + p.plannedLooks() + " planned looks), i.e. drift " + Numbers.fixed(p.effect() * c.driftPerUnit(), 3);
     }
 

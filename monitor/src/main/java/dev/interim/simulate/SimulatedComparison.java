@@ -88,7 +88,9 @@ public record SimulatedComparison(String experiment, String arm, int treatments,
 
     /**
      * √I_max of a powered horizon: the daemon plans I_max = (η/δ)² with η the drift at which the
-     * design, at its planned looks, has the configured power (see {@code Comparison}).
+     * design, at its planned looks, has the configured power (see {@code Comparison}). For a relative
+     * effect δ is a share of control's level, and so are effects "in the metric's units" here: the
+     * drift is proportional to the relative effect whatever that level.
      */
     private static double driftPerUnit(GroupSequentialDesign design, MetricDefinition metric) {
         if (metric.horizon() instanceof Horizon.Powered p) {
