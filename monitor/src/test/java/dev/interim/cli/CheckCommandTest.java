@@ -78,7 +78,7 @@ class CheckCommandTest {
                 .contains("arms: table-rates (control, 50%), solver-rates (25%), solver-rates-cached (25%)")
                 .contains("looks every 1m once every arm has 500");
         assertThat(line(r.out(), "quote-errors")).contains("event-rate", "guardrail", "higher", "0.005 (0.01/2)", " 1 ",
-                "O'Brien-Fleming-type", "at most 200000 per arm", "kill", "/quote/http_status at_least: 500");
+                "O'Brien-Fleming-type", "at most 40000 per arm", "kill", "/quote/http_status at_least: 500");
         assertThat(line(r.out(), "quote-latency-ms")).contains("event-mean", "Pocock-type", "page", "/quote/elapsed_ms");
         assertThat(line(r.out(), "label-purchase")).contains("unit-rate", "primary", "lower", "0.025 (0.05/2)", " 2 ",
                 "power 0.8 for effect 0.02, 12 planned looks", "/step equals: label_bought");

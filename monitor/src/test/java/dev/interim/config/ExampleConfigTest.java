@@ -77,7 +77,8 @@ class ExampleConfigTest {
         ExperimentConfig experiment = config.experiments().get(0);
         List<MetricDefinition> metrics = experiment.definition().metrics();
         assertThat(metrics).extracting(MetricDefinition::name)
-                .containsExactly("quote-errors", "quote-latency-ms", "label-purchase");
+                .containsExactly("quote-errors", "quote-latency-ms", "quoted-value-per-quote", "label-purchase");
+        assertThat(experiment.definition().assignment()).isEqualTo(dev.interim.experiment.Assignment.UNIT);
 
         MetricDefinition errors = metrics.get(0);
         assertThat(errors.kind()).isEqualTo(MetricKind.EVENT_RATE);
@@ -87,7 +88,7 @@ class ExampleConfigTest {
         assertThat(experiment.definition().comparisonAlpha(errors)).isEqualTo(0.005);
         assertThat(errors.sides()).isEqualTo(1);
         assertThat(errors.spending()).isInstanceOf(SpendingFunction.OBrienFlemingType.class);
-        assertThat(errors.horizon()).isEqualTo(new Horizon.MaxPerArm(200_000));
+        assertThat(errors.horizon()).isEqualTo(new Horizon.MaxPerArm(40_000));
         assertThat(errors.action()).isEqualTo(StopAction.KILL);
         MetricSource.Counted errorSource = (MetricSource.Counted) experiment.source(errors);
         assertThat(errorSource.field().toString()).isEqualTo("/quote/http_status");
@@ -97,10 +98,19 @@ class ExampleConfigTest {
         assertThat(latency.kind()).isEqualTo(MetricKind.EVENT_MEAN);
         assertThat(latency.spending()).isInstanceOf(SpendingFunction.PocockType.class);
         assertThat(latency.action()).isEqualTo(StopAction.PAGE);
+        assertThat(latency.cap()).isEqualTo(10_000.0);
         assertThat(experiment.source(latency)).isEqualTo(new MetricSource.Value(
                 com.fasterxml.jackson.core.JsonPointer.compile("/quote/elapsed_ms")));
 
-        MetricDefinition purchase = metrics.get(2);
+        MetricDefinition value = metrics.get(2);
+        assertThat(value.kind()).isEqualTo(MetricKind.RATIO);
+        assertThat(value.cap()).isEqualTo(5_000_000.0);
+        assertThat(value.horizon()).isEqualTo(new Horizon.Powered(0.8, -0.03, 10, Horizon.Scale.RELATIVE));
+        MetricSource.Ratio valueSource = (MetricSource.Ratio) experiment.source(value);
+        assertThat(valueSource.field().toString()).isEqualTo("/quote/total_cents");
+        assertThat(valueSource.denominator().toString()).isEqualTo("/quote/parcels");
+
+        MetricDefinition purchase = metrics.get(3);
         assertThat(purchase.kind()).isEqualTo(MetricKind.UNIT_RATE);
         assertThat(purchase.role()).isEqualTo(Role.PRIMARY);
         assertThat(purchase.sides()).isEqualTo(2);
