@@ -65,7 +65,8 @@ import picocli.CommandLine.Spec;
  *       every event counted (exposures and every tally equal to the truth) in a look.</li>
  * </ol>
  * Then it checks the daemon's counts once more after further looks (exactly; sums within 1e-6
- * relative), stops it and reads its peak heap from its GC log. Run it with {@code scripts/bench}.
+ * relative; the experiments assign arms per unit, so event-level metrics are ratios of per-unit sums
+ * whose count is units and whose sums are checked, see {@link StreamTruth}), stops it and reads its peak heap from its GC log. Run it with {@code scripts/bench}.
  *
  * <p>Exit codes: 0 when every figure was measured and the daemon's counts equal the truth, 1 on any
  * failure (with one line saying what), 2 for bad options.
@@ -86,7 +87,7 @@ public final class StreamBench implements Callable<Integer> {
     private static final int SMOKE_UNITS = 5_000;
     /** The daemon's stages poll this many records at a time (stream.Clients); the plain consumers do the same. */
     private static final int MAX_POLL_RECORDS = 5_000;
-    /** Sums of means and totals: the daemon keeps moments (mean and squared deviations), not sums. */
+    /** Sums of totals and of ratios' parts: the daemon keeps moments (means and squared deviations), not sums. */
     private static final double SUM_TOLERANCE = 1e-6;
     private static final Duration POLL_EVERY = Duration.ofMillis(200);
     /** After every event is counted: longer than a look interval (1 s) plus a commit interval (500 ms). */
@@ -322,7 +323,8 @@ public final class StreamBench implements Callable<Integer> {
                     daemonHeap, mib(gc.peakBeforeBytes()), mib(gc.largestAfterBytes()), mib(gc.lastAfterBytes()),
                     gc.pauses(), gc.fullPauses(), mib(gc.largestCommittedBytes())));
         }
-        say("  check        daemon counts equal the truth: exposures (units) per arm, every tally's count and successes; "
+        say("  check        daemon counts equal the truth: exposures (units) per arm, every tally's count (units), unit-rates' "
+                + "successes; event-level metrics as ratios of per-unit sums: numerator and denominator sums, whole ones within 0.5; "
                 + String.format(Locale.ROOT, "sums within %.0e (largest relative difference %.1e)", SUM_TOLERANCE, c.sumDeviation));
         StreamDaemon.LogSummary log = c.log;
         say("  daemon log   " + daemon.log() + " (" + log.errors() + " ERROR, " + log.warnings() + " WARN lines)");
@@ -567,7 +569,8 @@ public final class StreamBench implements Callable<Integer> {
      * <p>How the end is detected: the API's exposures and tallies are those of each experiment's
      * last look (the judge stage publishes a view when it looks). The bench polls {@code GET
      * /api/experiments} every 200 ms; an experiment is complete at the first answer whose exposures
-     * per arm and every tally's count (and successes, for rates) equal the truth, and whose
+     * per arm and every tally's count equal the truth (and the unit-rates' successes, and the
+     * event-level ratios' whole sums, successes and events, each within 0.5), and whose
      * {@code last_look} is later than the last poll that still found the counts incomplete, so that
      * the look itself saw every event. The end is that {@code last_look} (the daemon's own clock,
      * on this machine), the latest over the experiments.

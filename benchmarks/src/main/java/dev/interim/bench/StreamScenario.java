@@ -18,10 +18,12 @@ import java.util.SplittableRandom;
  *       did the traveller add insurance: unit-rate, ancillary spend per traveller: unit-total).</li>
  * </ul>
  *
- * Every event carries a step, a latency and an HTTP status, so that every event is an observation
- * of at least one event-level metric of its experiment: that metric's count per arm is the number
- * of events of the arm. A traveller is assigned to an arm of each experiment by a hash of the pair,
- * so a unit keeps its arm. Latencies are multiples of 1/8 ms and amounts multiples of 0.25, so their
+ * Every experiment assigns arms per unit ({@code assignment: unit}, the default when the unit is
+ * mapped): its event-level metrics are tallied as ratios of per-unit sums, counting units. Every
+ * event carries a step, a latency and an HTTP status, so that every event is an observation of at
+ * least one event-level metric of its experiment: that metric's denominator sum per arm is the
+ * number of events of the arm. A traveller is assigned to an arm of each experiment by a hash of
+ * the pair, so a unit keeps its arm. Latencies are multiples of 1/8 ms and amounts multiples of 0.25, so their
  * sums are exact in binary floating point.
  */
 final class StreamScenario {
@@ -299,6 +301,7 @@ final class StreamScenario {
         for (Experiment e : EXPERIMENTS) {
             b.append("  - id: ").append(e.id()).append('\n');
             b.append("    control: ").append(e.control()).append('\n');
+            b.append("    assignment: unit\n");
             b.append("    treatments: [").append(String.join(", ", e.arms().subList(1, e.arms().size()))).append("]\n");
             b.append("    look_every: 1s\n");
             b.append("    min_per_arm: 50\n");

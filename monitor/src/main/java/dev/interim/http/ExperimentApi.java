@@ -182,6 +182,13 @@ public final class ExperimentApi {
                     number(a, "mean", mean.moments().mean());
                     number(a, "sum", mean.moments().mean() * mean.moments().count());
                     number(a, "sd", mean.moments().standardDeviation());
+                } else if (t instanceof dev.interim.experiment.Tally.Ratio ratio) {
+                    a.put("kind", "ratio");
+                    a.put("units", ratio.moments().count());
+                    if (ratio.moments().count() > 0) {
+                        number(a, "numerator_mean", ratio.moments().meanX());
+                        number(a, "denominator_mean", ratio.moments().meanY());
+                    }
                 }
             });
         });
