@@ -6,6 +6,7 @@ import dev.interim.config.ExperimentConfig;
 import dev.interim.config.InterimConfig;
 import dev.interim.config.KafkaSettings;
 import dev.interim.config.MetricSource;
+import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Horizon;
 import dev.interim.experiment.MetricDefinition;
@@ -23,8 +24,11 @@ import picocli.CommandLine.Spec;
 
 /**
  * {@code interim check}: reads and validates a configuration without starting anything, and prints
- * what it understood. An invalid file is bad input: one line naming the file, the key, the value and
- * the rule, and exit code 2 (see {@link UserErrorHandler}).
+ * what it understood: per experiment how arms were assigned, per metric its design and where it is
+ * read (with caps, and both fields of a ratio). An invalid file is bad input: one line naming the
+ * file, the key, the value and the rule, and exit code 2 (see {@link UserErrorHandler}). A valid file
+ * that is likely a slip gets a {@code WARN:} line under its experiment and still exits 0: events
+ * that carry a unit while an experiment's arms are assigned per event.
  */
 @Command(name = "check",
         mixinStandardHelpOptions = true,
@@ -76,7 +80,7 @@ public final class CheckCommand implements Callable<Integer> {
         out.println("  webhook: " + c.webhook().map(w -> w.url() + ", signed with the key in $" + w.signingKey().variable()
                 + ", " + w.maxAttempts() + " attempts").orElse("none"));
         for (ExperimentConfig e : c.experiments()) {
-            experiment(out, e);
+            experiment(out, e, c.events().unit().isPresent());
         }
         out.flush();
         return Interim.OK;
@@ -89,7 +93,11 @@ public final class CheckCommand implements Callable<Integer> {
                 + "; decisions " + k.decisionsTopic() + "; dead letters " + k.deadLetterTopic();
     }
 
-    private static void experiment(PrintWriter out, ExperimentConfig config) {
+    /** The warning for an experiment assigned per event while events carry a unit (valid, but often a slip). */
+    static final String PER_EVENT_WITH_UNITS = "events carry a unit but arms are assigned per event: if units keep their "
+            + "arm, set assignment: unit";
+
+    private static void experiment(PrintWriter out, ExperimentConfig config, boolean unitMapped) {
         ExperimentDefinition e = config.definition();
         double total = e.split().values().stream().mapToDouble(Double::doubleValue).sum();
         List<String> arms = new ArrayList<>();
@@ -100,6 +108,12 @@ public final class CheckCommand implements Callable<Integer> {
         out.println();
         out.println("experiment " + e.id() + (e.dryRun() ? " [dry run: no kill webhook calls]" : " [LIVE: kill actions call the webhook]"));
         out.println("  arms: " + String.join(", ", arms));
+        out.println("  assignment: " + (e.assignment() == Assignment.UNIT
+                ? "per unit (each unit keeps its arm: event metrics are analysed as ratios of per-unit sums)"
+                : "per event (each event is assigned on its own: events are independent observations)"));
+        if (e.assignment() == Assignment.EVENT && unitMapped) {
+            out.println("  WARN: " + PER_EVENT_WITH_UNITS);
+        }
         out.println("  looks every " + Durations.format(e.lookEvery()) + " once every arm has " + e.minPerArm()
                 + "; sample ratio mismatch holds decisions below p = " + Decimals.plain(e.sampleRatioThreshold()));
         List<String[]> rows = new ArrayList<>();
@@ -115,7 +129,7 @@ public final class CheckCommand implements Callable<Integer> {
                         + SpendingNames.describe(m.futility())),
                 horizon(m.horizon()) + (m.baseline() == null ? "" : ", vs baseline " + Decimals.plain(m.baseline())),
                 lower(m.action()),
-                source(config.source(m)),
+                source(config.source(m), m),
             });
         }
         printLeftAligned(out, rows, "  ");
@@ -126,15 +140,29 @@ public final class CheckCommand implements Callable<Integer> {
             return "at most " + max.perArm() + " per arm";
         }
         Horizon.Powered p = (Horizon.Powered) h;
-        return "power " + Decimals.plain(p.power()) + " for effect " + Decimals.plain(p.effect()) + ", "
-                + p.plannedLooks() + " planned looks";
+        String effect = p.scale() == Horizon.Scale.RELATIVE
+                ? "relative effect " + (p.effect() > 0 ? "+" : "") + Decimals.plain(100 * p.effect()) + "%"
+                : "effect " + Decimals.plain(p.effect());
+        return "power " + Decimals.plain(p.power()) + " for " + effect + ", " + p.plannedLooks() + " planned looks";
     }
 
-    private static String source(MetricSource s) {
+    /**
+     * Where the metric is read, with its caps: {@code /quote/elapsed_ms capped at 5000}; a ratio as
+     * {@code numerator /order/revenue capped at 500, denominator /order/sessions}.
+     */
+    private static String source(MetricSource s, MetricDefinition m) {
         if (s instanceof MetricSource.Counted counted) {
             return counted.field() + " " + counted.countsIf();
         }
-        return s.field().toString();
+        if (s instanceof MetricSource.Ratio ratio) {
+            return "numerator " + ratio.field() + capped(m.cap()) + ", denominator " + ratio.denominator()
+                    + capped(m.denominatorCap());
+        }
+        return s.field().toString() + capped(m.cap());
+    }
+
+    private static String capped(Double cap) {
+        return cap == null ? "" : " capped at " + Decimals.plain(cap);
     }
 
     private static String lower(Enum<?> e) {

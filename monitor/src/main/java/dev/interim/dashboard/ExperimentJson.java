@@ -1,6 +1,7 @@
 package dev.interim.dashboard;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.interim.experiment.Assignment;
 import dev.interim.experiment.Decision;
 import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.ExperimentView.ComparisonView;
@@ -9,6 +10,7 @@ import dev.interim.experiment.SampleRatio;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RatioMoments;
 import java.time.Instant;
 import java.time.format.DateTimeParseException;
 import java.util.ArrayList;
@@ -22,7 +24,11 @@ import java.util.Map;
  * reading restores what each member means: {@code upper} null is +∞ and {@code lower} null −∞ (no
  * finite boundary on that side); {@code estimate.lower} null −∞ and {@code estimate.upper} null +∞
  * (an interval open on that side); {@code statistic} null ±∞ with the sign of the estimate when that
- * is a non-zero number, else NaN (the convention of the decision records); other numbers NaN.
+ * is a non-zero number, else NaN (the convention of the decision records); {@code relative.value}
+ * null (or no {@code relative} at all, from an older daemon) means no relative change, and then its
+ * ends are NaN too, else {@code relative.lower} null is −∞ and {@code relative.upper} null +∞; other
+ * numbers NaN. An answer without {@code assignment} (an older daemon) is read as per-event
+ * assignment, which is how older daemons analysed every experiment.
  */
 final class ExperimentJson {
     private ExperimentJson() {}
@@ -48,17 +54,40 @@ final class ExperimentJson {
         }
         return new ExperimentView(id, text(n, "control"), treatments, n.path("dry_run").asBoolean(true), n.path("held").asBoolean(false),
                 n.hasNonNull("hold_reason") ? n.get("hold_reason").asText() : null, ratio, instant(n.get("last_look"), "last_look"),
-                exposures, tallies, comparisons);
+                exposures, tallies, comparisons, assignment(n.get("assignment")));
+    }
+
+    private static Assignment assignment(JsonNode n) {
+        if (n == null || n.isNull()) {
+            return Assignment.EVENT;
+        }
+        try {
+            return Assignment.parse(n.asText());
+        } catch (IllegalArgumentException e) {
+            throw new IllegalArgumentException("the daemon's answer has an unknown assignment '" + n.asText() + "'");
+        }
     }
 
     /**
-     * A tally: a rate when it has {@code successes}, else a mean from count, mean and standard
-     * deviation (the sum of squared deviations is rebuilt as sd²·(n − 1), exact to rounding).
+     * A tally: a rate when it has {@code successes}; a ratio of per-unit sums when it has
+     * {@code units}, from the units and the mean numerator and denominator (the API shows no spreads
+     * of a ratio, so its sums of squared and cross deviations read as 0: enough to show it, not to
+     * test it); else a mean from count, mean and standard deviation (the sum of squared deviations
+     * is rebuilt as sd²·(n − 1), exact to rounding).
      */
     private static Tally tally(JsonNode t) {
         long count = t.path("count").asLong();
         if (t.has("successes")) {
             return new Tally.Rate(new ProportionCounts(t.path("successes").asLong(), count));
+        }
+        if (t.has("units")) {
+            long units = t.path("units").asLong();
+            double x = number(t.get("numerator_mean"), Double.NaN);
+            double y = number(t.get("denominator_mean"), Double.NaN);
+            if (units == 0 || Double.isNaN(x) || Double.isNaN(y)) {
+                return new Tally.Ratio(RatioMoments.EMPTY);
+            }
+            return new Tally.Ratio(new RatioMoments(units, x, y, 0, 0, 0));
         }
         double mean = number(t.get("mean"), Double.NaN);
         if (count == 0 || Double.isNaN(mean)) {
@@ -85,10 +114,15 @@ final class ExperimentJson {
         JsonNode estimate = p.path("estimate");
         double value = number(estimate.get("value"), Double.NaN);
         double statistic = number(p.get("statistic"), value > 0 ? Double.POSITIVE_INFINITY : value < 0 ? Double.NEGATIVE_INFINITY : Double.NaN);
+        JsonNode relative = p.path("relative");
+        double change = number(relative.get("value"), Double.NaN);
+        boolean none = Double.isNaN(change);
         return new LookPoint(p.path("look").asInt(), instant(p.get("at"), "at"), number(p.get("fraction"), Double.NaN), statistic,
                 number(p.get("upper"), Double.POSITIVE_INFINITY), number(p.get("lower"), Double.NEGATIVE_INFINITY),
                 number(p.get("alpha_spent"), Double.NaN), value, number(estimate.get("lower"), Double.NEGATIVE_INFINITY),
-                number(estimate.get("upper"), Double.POSITIVE_INFINITY), decision(p.get("decision")));
+                number(estimate.get("upper"), Double.POSITIVE_INFINITY), decision(p.get("decision")), change,
+                none ? Double.NaN : number(relative.get("lower"), Double.NEGATIVE_INFINITY),
+                none ? Double.NaN : number(relative.get("upper"), Double.POSITIVE_INFINITY));
     }
 
     private static double number(JsonNode n, double whenNull) {

@@ -15,9 +15,10 @@ import java.util.List;
 import java.util.Map;
 
 /**
- * One experiment on the dashboard: its state (mode, hold, sample-ratio check, last look, exposures
- * per arm), a call-out naming the arms stopped for harm, and a card per metric × arm with the
- * boundary chart, the decision and the numbers of the current look.
+ * One experiment on the dashboard: its state (how arms were assigned, mode, hold, sample-ratio
+ * check, last look, exposures per arm), a call-out naming the arms stopped for harm, and a card per
+ * metric × arm with the boundary chart, the decision and the numbers of the current look (the
+ * effect and the relative change, each with its repeated interval).
  */
 final class ExperimentSection {
     private ExperimentSection() {}
@@ -74,6 +75,8 @@ final class ExperimentSection {
     /** The state of the experiment as a definition list, with the exposures per arm. */
     static String facts(ExperimentView v, Instant now) {
         StringBuilder out = new StringBuilder("<dl class=\"facts\">\n");
+        out.append("<dt>assignment</dt><dd data-assignment=\"").append(v.assignment().label()).append("\">")
+                .append(Wording.assignment(v)).append("</dd>\n");
         out.append("<dt>last look</dt><dd>").append(Wording.time(v.lastLook()));
         if (v.lastLook() != null && now != null) {
             out.append(" (").append(Wording.ago(v.lastLook(), now)).append(')');
@@ -140,6 +143,7 @@ final class ExperimentSection {
         item(out, "boundary", Wording.boundaryAt(c, p));
         item(out, "α spent", Numbers.significant(p.alphaSpent(), 3) + " of " + Numbers.significant(c.alpha(), 3));
         item(out, "effect (" + Wording.level(c) + " repeated CI)", Wording.effect(c, p.estimate()) + " " + Wording.interval(c, p));
+        item(out, "relative change (" + Wording.level(c) + " repeated CI)", Wording.relative(p));
         wide(out, "counted at the last look", counts);
         return out.append("</dl>\n").toString();
     }

@@ -20,8 +20,8 @@ import java.util.List;
  * The post-mortem report of one experiment: one self-contained HTML file (style inline, charts as
  * inline SVG, no script, nothing fetched) to attach to an incident or a launch review. It holds the
  * state at the last look, the outcome of every comparison (final decision, the look that decided
- * it, the effect estimate with its repeated confidence interval), the design (α, sides, spending
- * function, action) and, per comparison, the look-history chart and table.
+ * it, the effect estimate and the relative change, each with its repeated confidence interval), the
+ * design (α, sides, spending function, action) and, per comparison, the look-history chart and table.
  *
  * <p>It is made from an {@link ExperimentView} alone, so a running daemon ({@code interim report})
  * and a replay of past events give the same report for the same looks.
@@ -87,7 +87,10 @@ public final class Report {
                 false stop over all looks together stays at most α however often the daemon looked. A two-sided design spends
                 α/2 on each side. Stops are final. The repeated confidence intervals cover the true effect at every look at once
                 with the stated level, so the interval at the deciding look can be quoted as it is. Effects of rates are in
-                percentage points.</p>
+                percentage points. The relative change is the treatment's level over control's, minus 1, in percent; its
+                interval comes from that of the log ratio at the same level, and it is shown as – when a level is not
+                positive. How arms were assigned matters: per unit, event metrics are analysed as ratios of per-unit sums,
+                since a unit's events are not independent.</p>
                 </div>
                 <footer class="page-foot">Written by interim report. This file is self-contained: no script, nothing fetched.
                 Times are UTC.</footer>
@@ -103,7 +106,8 @@ public final class Report {
         StringBuilder out = new StringBuilder("<div class=\"scroll\"><table class=\"summary\"><thead><tr><th scope=\"col\">arm</th>"
                 + "<th scope=\"col\">metric</th><th scope=\"col\">decision</th><th scope=\"col\">decided at</th>"
                 + "<th scope=\"col\">looks</th><th scope=\"col\">Z</th><th scope=\"col\">boundary</th>"
-                + "<th scope=\"col\">effect</th><th scope=\"col\">repeated CI</th><th scope=\"col\">level</th></tr></thead><tbody>\n");
+                + "<th scope=\"col\">effect</th><th scope=\"col\">repeated CI</th><th scope=\"col\">relative change (repeated CI)</th>"
+                + "<th scope=\"col\">level</th></tr></thead><tbody>\n");
         for (ComparisonView c : view.comparisons()) {
             out.append("<tr data-arm=\"").append(h(c.arm())).append("\" data-metric=\"").append(h(c.metric())).append("\"><td>")
                     .append(h(c.arm())).append("</td><td>").append(h(c.metric())).append("</td><td>")
@@ -116,15 +120,15 @@ public final class Report {
                             + Wording.time(at.at())
                     : "not decided; last look " + at.look();
             if (at == null) {
-                out.append("<td>").append(when).append("</td><td>0</td><td>–</td><td>–</td><td>–</td><td>–</td><td>")
+                out.append("<td>").append(when).append("</td><td>0</td><td>–</td><td>–</td><td>–</td><td>–</td><td>–</td><td>")
                         .append(Wording.level(c)).append("</td></tr>\n");
                 continue;
             }
             out.append("<td>").append(when)
                     .append("</td><td>").append(c.looks().size()).append("</td><td>").append(Numbers.fixed(at.statistic(), 3))
                     .append("</td><td>").append(Wording.boundaryAt(c, at)).append("</td><td>").append(Wording.effect(c, at.estimate()))
-                    .append("</td><td>").append(Wording.interval(c, at)).append("</td><td>").append(Wording.level(c))
-                    .append("</td></tr>\n");
+                    .append("</td><td>").append(Wording.interval(c, at)).append("</td><td>").append(Wording.relative(at))
+                    .append("</td><td>").append(Wording.level(c)).append("</td></tr>\n");
         }
         return out.append("</tbody></table></div>\n").toString();
     }
@@ -222,7 +226,7 @@ public final class Report {
                 + "<th scope=\"col\">fraction</th><th scope=\"col\">Z</th>"
                 + (upper ? "<th scope=\"col\">upper (" + sides.upper() + ")</th>" : "")
                 + (lower ? "<th scope=\"col\">lower (" + sides.lower() + ")</th>" : "") + "<th scope=\"col\">α spent</th><th scope=\"col\">effect</th><th scope=\"col\">repeated CI</th>"
-                + "<th scope=\"col\">decision</th></tr></thead><tbody>\n");
+                + "<th scope=\"col\">relative change (repeated CI)</th><th scope=\"col\">decision</th></tr></thead><tbody>\n");
         LookPoint previous = null;
         for (LookPoint p : shown) {
             boolean changed = previous != null && previous.decision() != p.decision();
@@ -232,7 +236,7 @@ public final class Report {
                     .append(upper ? Numbers.fixed(p.upper(), 3) + "</td><td>" : "")
                     .append(lower ? Numbers.fixed(p.lower(), 3) + "</td><td>" : "").append(Numbers.significant(p.alphaSpent(), 3))
                     .append("</td><td>").append(Wording.effect(c, p.estimate())).append("</td><td>").append(Wording.interval(c, p))
-                    .append("</td><td>").append(p.decision().label()).append("</td></tr>\n");
+                    .append("</td><td>").append(Wording.relative(p)).append("</td><td>").append(p.decision().label()).append("</td></tr>\n");
             previous = p;
         }
         return out.append("</tbody></table></div>\n</article>\n").toString();

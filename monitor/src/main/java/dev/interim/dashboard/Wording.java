@@ -10,6 +10,7 @@ import dev.interim.experiment.ExperimentView.ComparisonView;
 import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
+import dev.interim.stats.RatioMoments;
 import java.time.Duration;
 import java.time.Instant;
 import java.time.ZoneOffset;
@@ -90,6 +91,36 @@ final class Wording {
         return left + ", " + right + (isRate(c) ? " pp" : "");
     }
 
+    /**
+     * The relative change treatment/control − 1 with its repeated interval, in percent with one
+     * decimal, e.g. {@code +4.1% [+0.3%, +8.2%]}; {@link Numbers#NONE} when undefined (a level that
+     * is not positive). An end open above reads {@code ∞)}; one open below ({@code −100%}: the
+     * interval of the log ratio is open there) reads {@code (-100%}.
+     */
+    static String relative(LookPoint p) {
+        if (!Double.isFinite(p.relative())) {
+            return Numbers.NONE;
+        }
+        String value = percent(p.relative());
+        if (Double.isNaN(p.relativeLower()) || Double.isNaN(p.relativeUpper())) {
+            return value;
+        }
+        String left = p.relativeLower() <= -1 ? "(-100%" : "[" + percent(p.relativeLower());
+        String right = Double.isInfinite(p.relativeUpper()) ? "∞)" : percent(p.relativeUpper()) + "]";
+        return value + " " + left + ", " + right;
+    }
+
+    /** A share as a signed percent with one decimal: {@code +4.1%}, {@code -0.3%}, {@code 0.0%}. */
+    static String percent(double share) {
+        String s = Numbers.fixed(100 * share, 1);
+        return share > 0 && !s.equals("0.0") ? "+" + s + "%" : s + "%";
+    }
+
+    /** How arms were assigned, in words: "arms assigned per unit" or "arms assigned per event". */
+    static String assignment(ExperimentView v) {
+        return "arms assigned per " + v.assignment().label();
+    }
+
     /** The simultaneous level of the repeated confidence intervals: 1 − α of the comparison. */
     static String level(ComparisonView c) {
         return Numbers.significant(100 * (1 - c.alpha()), 4) + "%";
@@ -156,7 +187,9 @@ final class Wording {
 
     /**
      * What the last look saw of {@code arm} on {@code metric}: {@code 412 of 16,484 (2.50%)} for a
-     * rate, {@code n 16,484 · mean 212.4 · sd 30.1} for a mean or total; "none" without a tally.
+     * rate, {@code n 16,484 · mean 212.4 · sd 30.1} for a mean or total,
+     * {@code 3,120 units · ratio 0.0251 (per unit 0.412 over 16.41)} for a ratio of per-unit sums;
+     * "none" without a tally.
      */
     static String observed(ExperimentView v, String metric, String arm) {
         Tally t = v.tallies().getOrDefault(metric, Map.of()).get(arm);
@@ -167,6 +200,15 @@ final class Wording {
             long n = r.counts().trials();
             return Numbers.count(r.counts().successes()) + " of " + Numbers.count(n)
                     + (n == 0 ? "" : " (" + Numbers.precise(100.0 * r.counts().successes() / n, 3) + "%)");
+        }
+        if (t instanceof Tally.Ratio r) {
+            RatioMoments m = r.moments();
+            if (m.count() == 0) {
+                return "0 units";
+            }
+            return Numbers.count(m.count()) + (m.count() == 1 ? " unit" : " units") + " · ratio "
+                    + Numbers.precise(m.ratio(), 4) + " (per unit " + Numbers.precise(m.meanX(), 4) + " over "
+                    + Numbers.precise(m.meanY(), 4) + ")";
         }
         Moments m = ((Tally.Mean) t).moments();
         if (m.count() == 0) {

@@ -9,6 +9,7 @@ import dev.interim.experiment.LookPoint;
 import dev.interim.http.HttpEndpoint.Request;
 import dev.interim.http.HttpEndpoint.Response;
 import dev.interim.signal.DecisionJson;
+import dev.interim.stats.RatioMoments;
 import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
 import java.security.NoSuchAlgorithmException;
@@ -25,10 +26,12 @@ import java.util.function.Supplier;
 /**
  * The JSON API over the experiments this instance decides:
  * <ul>
- *   <li>{@code GET /api/experiments} — every experiment with its state and each comparison's
- *       current decision;</li>
+ *   <li>{@code GET /api/experiments} — every experiment with its state (how arms were assigned,
+ *       {@code unit} or {@code event}; mode; hold; split; tallies) and each comparison's current
+ *       decision and last look;</li>
  *   <li>{@code GET /api/experiments/{id}} — one experiment with every arm × metric look history
- *       (fraction, statistic, boundaries, α spent, estimate and interval, decision);</li>
+ *       (fraction, statistic, boundaries, α spent, estimate and interval, the relative change
+ *       treatment/control − 1 and its interval, decision);</li>
  *   <li>{@code POST /api/experiments/{id}/hold} (optional JSON body {@code {"reason": "..."}}),
  *       {@code POST /api/experiments/{id}/resume}, {@code POST /api/experiments/{id}/acknowledge}
  *       (clears the paging signal until the next stop) and
@@ -38,7 +41,11 @@ import java.util.function.Supplier;
  *       {@code http.admin_token_env}, compared in constant time. Without a configured token they are
  *       disabled.</li>
  * </ul>
- * Numbers that are not finite (an infinite boundary before any α is spent) are written as null.
+ * Numbers that are not finite (an infinite boundary before any α is spent) are written as null; a
+ * relative change that is undefined (a level not positive) has null value and ends. Tallies: a rate
+ * shows {@code count} and {@code successes}; a mean {@code count}, {@code mean}, {@code sum},
+ * {@code sd}; a ratio of per-unit sums {@code count} and {@code units} (the same number),
+ * {@code numerator_mean}, {@code denominator_mean} (per unit) and {@code ratio}.
  */
 public final class ExperimentApi {
     private static final ObjectMapper JSON = new ObjectMapper();
@@ -157,6 +164,7 @@ public final class ExperimentApi {
         n.put("control", v.control());
         ArrayNode treatments = n.putArray("treatments");
         v.treatments().forEach(treatments::add);
+        n.put("assignment", v.assignment().label());
         n.put("dry_run", v.dryRun());
         n.put("held", v.held());
         if (v.holdReason() != null) {
@@ -183,12 +191,12 @@ public final class ExperimentApi {
                     number(a, "sum", mean.moments().mean() * mean.moments().count());
                     number(a, "sd", mean.moments().standardDeviation());
                 } else if (t instanceof dev.interim.experiment.Tally.Ratio ratio) {
+                    RatioMoments rm = ratio.moments();
                     a.put("kind", "ratio");
-                    a.put("units", ratio.moments().count());
-                    if (ratio.moments().count() > 0) {
-                        number(a, "numerator_mean", ratio.moments().meanX());
-                        number(a, "denominator_mean", ratio.moments().meanY());
-                    }
+                    a.put("units", rm.count());
+                    number(a, "numerator_mean", rm.meanX());
+                    number(a, "denominator_mean", rm.meanY());
+                    number(a, "ratio", rm.ratio());
                 }
             });
         });
@@ -230,6 +238,10 @@ public final class ExperimentApi {
         number(estimate, "value", p.estimate());
         number(estimate, "lower", p.intervalLower());
         number(estimate, "upper", p.intervalUpper());
+        ObjectNode relative = n.putObject("relative");
+        number(relative, "value", p.relative());
+        number(relative, "lower", p.relativeLower());
+        number(relative, "upper", p.relativeUpper());
         n.put("decision", p.decision().label());
         return n;
     }

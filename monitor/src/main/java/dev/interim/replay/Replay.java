@@ -201,7 +201,7 @@ public final class Replay {
                 List<ComparisonOutcome> comparisons = new ArrayList<>();
                 for (Comparison c : e.monitor.comparisons()) {
                     comparisons.add(new ComparisonOutcome(c.arm(), c.metric().name(),
-                            c.metric().role().name().toLowerCase(Locale.ROOT), c.decision(), c.last()));
+                            c.metric().role().name().toLowerCase(Locale.ROOT), c.decision(), c.last(), c.skipped()));
                 }
                 outcomes.add(new ExperimentOutcome(e.definition.id(), e.events, e.late, e.looks, e.definition.lookEvery(),
                         e.schedule.started() ? Instant.ofEpochMilli(e.schedule.origin()) : null, e.monitor.view(),

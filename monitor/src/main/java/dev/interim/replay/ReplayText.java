@@ -19,6 +19,8 @@ import java.util.Locale;
 /**
  * A replay as people read it: one aligned line per decision as it happens, and a summary at the
  * end. Numbers are locale-independent; an infinite boundary or interval end prints as {@code inf}.
+ * The summary's last column is the relative change (treatment/control − 1) with its interval; for a
+ * comparison that never looked it says why (the comparison's reason for skipping its last due look).
  */
 public final class ReplayText {
     private final int experimentWidth;
@@ -98,25 +100,26 @@ public final class ReplayText {
             exposures.add(arm + " " + count(v.exposures().getOrDefault(arm, 0L)));
         }
         out.println("  exposures: " + String.join(", ", exposures) + "; sample ratio p = "
-                + significant(v.sampleRatio().pValue(), 3) + (v.held() ? "; HELD (" + v.holdReason() + ")" : ""));
+                + significant(v.sampleRatio().pValue(), 3) + "; arms assigned per " + v.assignment().label()
+                + (v.held() ? "; HELD (" + v.holdReason() + ")" : ""));
         List<String[]> rows = new ArrayList<>();
         rows.add(new String[] {"arm", "metric", "role", "decision", "look", "fraction", "z", "boundary", "estimate",
-            "interval"});
+            "interval", "relative"});
         for (ComparisonOutcome c : e.comparisons()) {
             LookResult l = c.last();
             if (l == null) {
-                rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(), "-", "-", "-", "-", "-",
-                    "too few observations to look"});
+                rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(), "-", "-", "-", "-", "-", "-",
+                    c.skipped() == null ? "too few observations to look" : c.skipped()});
                 continue;
             }
             rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(),
                 String.valueOf(l.look().number()), fixed(l.look().fraction(), 3), fixed(l.estimate().z(), 3),
-                fixed(l.boundary(), 3), significant(l.estimate().effect(), 4), interval(l.interval())});
+                fixed(l.boundary(), 3), significant(l.estimate().effect(), 4), interval(l.interval()), relative(l)});
         }
         table(rows, out);
     }
 
-    /** Left-aligned names, right-aligned numbers, the interval left-aligned last. */
+    /** Left-aligned names, right-aligned numbers, the intervals left-aligned last. */
     private static void table(List<String[]> rows, PrintWriter out) {
         int columns = rows.get(0).length;
         int[] widths = new int[columns];
@@ -128,7 +131,7 @@ public final class ReplayText {
         for (String[] row : rows) {
             StringBuilder line = new StringBuilder("  ");
             for (int c = 0; c < columns; c++) {
-                boolean left = c < 4 || c == columns - 1;
+                boolean left = c < 4 || c >= columns - 2;
                 String gap = " ".repeat(widths[c] - row[c].length());
                 line.append(c == 0 ? "" : "  ").append(left ? row[c] + gap : gap + row[c]);
             }
@@ -147,6 +150,28 @@ public final class ReplayText {
         String lower = Double.isInfinite(i.lower()) ? "(-inf" : "[" + significant(i.lower(), 4);
         String upper = Double.isInfinite(i.upper()) ? "inf)" : significant(i.upper(), 4) + "]";
         return lower + ", " + upper + " " + significant(100 * i.level(), 4) + "%";
+    }
+
+    /**
+     * The relative change treatment/control − 1 in percent with its repeated interval (at the level of
+     * the interval column), e.g. {@code +4.12% [+0.31%, inf)}; {@code -} when undefined (a level that
+     * is not positive). An end open below (−100%: the log ratio's interval is open there) prints as
+     * {@code (-100%}.
+     */
+    static String relative(LookResult l) {
+        ConfidenceInterval i = l.relativeInterval();
+        if (i == null || !Double.isFinite(l.estimate().relative())) {
+            return "-";
+        }
+        String lower = i.lower() <= -1 ? "(-100%" : "[" + percent(i.lower());
+        String upper = Double.isInfinite(i.upper()) ? "inf)" : percent(i.upper()) + "]";
+        return percent(l.estimate().relative()) + " " + lower + ", " + upper;
+    }
+
+    /** A share as a signed percent to 3 significant digits: {@code +4.12%}, {@code -0.5%}. */
+    static String percent(double share) {
+        String s = significant(100 * share, 3);
+        return (share > 0 ? "+" : "") + s + "%";
     }
 
     private static String pad(String s, int width) {

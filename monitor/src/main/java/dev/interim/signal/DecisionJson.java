@@ -32,6 +32,12 @@ import java.time.format.DateTimeParseException;
  *       kept: it is the one case where reading does not give back the written value.</li>
  *   <li>{@code fraction}, {@code alpha_spent}, {@code estimate.value}, {@code estimate.level} null:
  *       NaN (none of them is ever infinite).</li>
+ *   <li>{@code relative}: the relative change treatment/control − 1 with its repeated interval, read
+ *       as {@code estimate} is: {@code relative.lower} null −∞, {@code relative.upper} null +∞, unless
+ *       {@code relative.level} is null, which means there is no relative change (no look yet, or a
+ *       level that is not positive): then value and both ends are NaN. {@code relative.level} is
+ *       the level of {@code estimate}, written only when there is a relative change. Records written
+ *       before the member existed have no {@code relative}: read as NaN throughout.</li>
  * </ul>
  *
  * <p>Reading ignores members it does not know (newer writers may add some) and refuses, naming the
@@ -71,6 +77,14 @@ public final class DecisionJson {
             number(g, "lower", r.intervalLower());
             number(g, "upper", r.intervalUpper());
             number(g, "level", r.intervalLevel());
+            g.writeEndObject();
+            boolean relative = !Double.isNaN(r.relative()) || !Double.isNaN(r.relativeLower())
+                    || !Double.isNaN(r.relativeUpper());
+            g.writeObjectFieldStart("relative");
+            number(g, "value", r.relative());
+            number(g, "lower", r.relativeLower());
+            number(g, "upper", r.relativeUpper());
+            number(g, "level", relative ? r.intervalLevel() : Double.NaN);
             g.writeEndObject();
             g.writeStringField("at", r.at() == null ? null : r.at().toString());
             g.writeStringField("decision_id", r.decisionId());
@@ -112,6 +126,14 @@ public final class DecisionJson {
         boolean noInterval = Double.isNaN(level);
         double lower = number(estimate, "estimate.lower", "lower", noInterval ? Double.NaN : Double.NEGATIVE_INFINITY);
         double upper = number(estimate, "estimate.upper", "upper", noInterval ? Double.NaN : Double.POSITIVE_INFINITY);
+        JsonNode rel = root.path("relative");
+        if (!rel.isMissingNode() && !rel.isNull() && !rel.isObject()) {
+            throw new IllegalArgumentException("decision record member 'relative' must be an object or null");
+        }
+        double relativeValue = finiteOrNaN(rel, "relative.value", "value");
+        boolean noRelative = Double.isNaN(finiteOrNaN(rel, "relative.level", "level"));
+        double relativeLower = number(rel, "relative.lower", "lower", noRelative ? Double.NaN : Double.NEGATIVE_INFINITY);
+        double relativeUpper = number(rel, "relative.upper", "upper", noRelative ? Double.NaN : Double.POSITIVE_INFINITY);
         double infiniteStatistic = value > 0 ? Double.POSITIVE_INFINITY : value < 0 ? Double.NEGATIVE_INFINITY : Double.NaN;
         return new DecisionRecord(
                 required(root, "experiment"), required(root, "arm"), required(root, "metric"),
@@ -122,7 +144,8 @@ public final class DecisionJson {
                 finiteOrNaN(root, "boundary", "boundary"),
                 finiteOrNaN(root, "alpha_spent", "alpha_spent"),
                 value, lower, upper, level,
-                at(root), required(root, "decision_id"), dryRun(root), optional(root, "action"));
+                at(root), required(root, "decision_id"), dryRun(root), optional(root, "action"),
+                relativeValue, relativeLower, relativeUpper);
     }
 
     private static void number(JsonGenerator g, String name, double value) throws IOException {

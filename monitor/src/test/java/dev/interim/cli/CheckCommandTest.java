@@ -90,6 +90,80 @@ class CheckCommandTest {
                 .orElseThrow(() -> new AssertionError("no line with " + containing + " in\n" + out));
     }
 
+    /** Per-unit and per-event experiments, a ratio metric, caps and a relative planned effect (an invented file). */
+    private static final String UNITS = """
+            kafka:
+              input_topics: [ember.events]
+              input_keyed_by_unit: true
+            events:
+              experiment: /exp
+              arm: /arm
+              unit: /shopper
+            experiments:
+              - id: ember-basket
+                control: plain
+                treatments: [bundle-hint]
+                metrics:
+                  - name: value-per-session
+                    kind: ratio
+                    role: primary
+                    worse: lower
+                    numerator: /basket/value
+                    denominator: /basket/sessions
+                    cap: 500
+                    denominator_cap: 40
+                    power: 0.8
+                    relative_effect: 0.05
+                  - name: page-ms
+                    kind: event-mean
+                    role: guardrail
+                    worse: higher
+                    field: /page/ms
+                    cap: 12000
+                    max_per_arm: 50000
+              - id: ember-canary
+                control: stable
+                treatments: [canary]
+                assignment: event
+                metrics:
+                  - name: returned
+                    kind: unit-rate
+                    role: guardrail
+                    worse: lower
+                    field: /returned
+                    counts_if: {equals: true}
+                    max_per_arm: 50000
+            """;
+
+    @Test
+    void theAssignmentCapsRatiosAndRelativeEffectsAreShown() throws IOException {
+        Path f = file(UNITS);
+        Cli.Result r = check(ENV, "--config", f.toString());
+
+        assertThat(r.exit()).as(r.err()).isZero();
+        assertThat(r.out()).contains("experiment ember-basket", "  assignment: per unit (each unit keeps its arm",
+                "experiment ember-canary", "  assignment: per event (each event is assigned on its own");
+        // relative_effect 0.05 is 5% of control's level, written as a percent.
+        assertThat(line(r.out(), "value-per-session")).contains("ratio", "power 0.8 for relative effect +5%, 10 planned looks",
+                "numerator /basket/value capped at 500, denominator /basket/sessions capped at 40");
+        assertThat(line(r.out(), "page-ms")).contains("event-mean", "/page/ms capped at 12000", "at most 50000 per arm");
+        assertThat(line(r.out(), "returned")).doesNotContain("capped");
+    }
+
+    /** Valid, so exit 0; but a per-event experiment where events carry a unit gets a warning under it, and only it. */
+    @Test
+    void perEventAssignmentWithUnitsIsWarnedAboutButValid() throws IOException {
+        Cli.Result r = check(ENV, "--config", file(UNITS).toString());
+
+        assertThat(r.exit()).isZero();
+        String out = r.out();
+        String warning = "  WARN: events carry a unit but arms are assigned per event: if units keep their arm, set assignment: unit";
+        assertThat(out).containsOnlyOnce(warning);
+        assertThat(out.indexOf(warning)).isGreaterThan(out.indexOf("experiment ember-canary"));
+        Cli.Result example = check(ENV, "--config", example().toString());
+        assertThat(example.out()).doesNotContain("WARN");
+    }
+
     @Test
     void withoutSecretsTheExampleChecksInAnEmptyEnvironment() {
         Cli.Result r = check(Map.of(), "--config", example().toString(), "--without-secrets");

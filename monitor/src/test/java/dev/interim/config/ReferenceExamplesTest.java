@@ -67,6 +67,26 @@ class ReferenceExamplesTest {
         assertThat(config.kafka().properties().forClients()).containsEntry("ssl.truststore.password", "pw-2");
     }
 
+    /** The ratio example (numerator, denominator, ranges, cap, relative_effect) loads as the shape's only metric. */
+    @Test
+    void theRatioExampleLoads() throws IOException {
+        List<String> blocks = yamlBlocks();
+        String ratio = blocks.stream().filter(b -> b.contains("kind: ratio")).findFirst().orElseThrow();
+        String shape = blocks.get(0);
+        String yaml = shape.substring(0, shape.indexOf("    metrics:\n")) + "    metrics:\n"
+                + ratio.lines().map(l -> "      " + l + "\n").reduce("", String::concat);
+
+        InterimConfig config = ConfigLoader.parse(yaml, Map.of("INTERIM_WEBHOOK_KEY", Configs.HOOK_KEY));
+
+        var definition = config.experiments().get(0).definition();
+        assertThat(definition.assignment().label()).as("events.unit is set: per unit by default").isEqualTo("unit");
+        var metric = definition.metrics().get(0);
+        assertThat(metric.kind().label()).isEqualTo("ratio");
+        assertThat(metric.cap()).isEqualTo(500.0);
+        assertThat(((dev.interim.experiment.Horizon.Powered) metric.horizon()).scale())
+                .isEqualTo(dev.interim.experiment.Horizon.Scale.RELATIVE);
+    }
+
     @Test
     void everyConditionExampleIsAccepted() throws IOException {
         String conditions = yamlBlocks().stream().filter(b -> b.startsWith("counts_if:")).findFirst().orElseThrow();

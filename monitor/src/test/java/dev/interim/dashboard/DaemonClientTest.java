@@ -4,13 +4,22 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 import static org.assertj.core.api.Assertions.within;
 
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentView;
+import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
+import dev.interim.stats.RatioMoments;
 import dev.interim.http.ExperimentApi;
 import dev.interim.http.HttpEndpoint;
 import dev.interim.http.HttpEndpoint.Response;
 import java.lang.reflect.Proxy;
+import java.net.http.HttpClient;
+import java.net.http.HttpRequest;
+import java.net.http.HttpResponse;
+import java.util.LinkedHashMap;
 import java.util.Map;
 import java.util.Optional;
 import java.util.concurrent.CompletableFuture;
@@ -41,11 +50,13 @@ class DaemonClientTest {
 
     @Test
     void anExperimentReadsBackIntoTheViewTheDaemonHolds() {
-        Map<String, ExperimentView> views = Scenarios.invented();
+        Map<String, ExperimentView> views = new LinkedHashMap<>(Scenarios.invented());
+        views.put("ember-basket", Scenarios.perUnitRatio());
         try (HttpEndpoint endpoint = api(views)) {
             DaemonClient client = DaemonClient.at(endpoint.uri() + "/");
             assertThat(client.address()).isEqualTo(endpoint.uri().toString());
-            assertThat(client.experimentIds()).containsExactly("harbor-search-ranking", "lantern-onboarding", "quay-pricing");
+            assertThat(client.experimentIds()).containsExactly("ember-basket", "harbor-search-ranking", "lantern-onboarding",
+                    "quay-pricing");
             for (ExperimentView v : views.values()) {
                 ExperimentView read = client.experiment(v.id());
                 // Everything but the tallies comes back bit for bit; a mean's sum of squared
@@ -56,6 +67,14 @@ class DaemonClientTest {
                     Tally back = read.tallies().get(metric).get(arm);
                     if (t instanceof Tally.Rate) {
                         assertThat(back).isEqualTo(t);
+                    } else if (t instanceof Tally.Ratio ratio) {
+                        // The API shows units and the mean numerator and denominator, not their spreads.
+                        RatioMoments m = ratio.moments();
+                        RatioMoments b = ((Tally.Ratio) back).moments();
+                        assertThat(b.count()).isEqualTo(m.count());
+                        assertThat(b.meanX()).isEqualTo(m.meanX());
+                        assertThat(b.meanY()).isEqualTo(m.meanY());
+                        assertThat(b.ratio()).isEqualTo(m.ratio());
                     } else {
                         Moments m = ((Tally.Mean) t).moments();
                         Moments b = ((Tally.Mean) back).moments();
@@ -70,7 +89,66 @@ class DaemonClientTest {
 
     private static ExperimentView withoutTallies(ExperimentView v) {
         return new ExperimentView(v.id(), v.control(), v.treatments(), v.dryRun(), v.held(), v.holdReason(), v.sampleRatio(), v.lastLook(),
-                v.exposures(), Map.of(), v.comparisons());
+                v.exposures(), Map.of(), v.comparisons(), v.assignment());
+    }
+
+    /**
+     * The API's JSON of a per-unit experiment: its assignment, the ratio tallies (units, mean
+     * numerator and denominator per unit, their ratio) and, on every look, the relative change with
+     * its interval. The expected relative change of the last look is computed here from the tallies
+     * alone: ratio(bundle-hint) / ratio(plain) − 1.
+     */
+    @Test
+    void theApiShowsAssignmentRatioTalliesAndTheRelativeChange() throws Exception {
+        ExperimentView v = Scenarios.perUnitRatio();
+        try (HttpEndpoint endpoint = api(Map.of(v.id(), v))) {
+            HttpResponse<String> answer = HttpClient.newHttpClient().send(HttpRequest.newBuilder(
+                    endpoint.uri().resolve("/api/experiments/ember-basket")).build(), HttpResponse.BodyHandlers.ofString());
+            JsonNode n = new ObjectMapper().readTree(answer.body());
+            assertThat(n.path("assignment").asText()).isEqualTo("unit");
+            RatioMoments plain = ((Tally.Ratio) v.tallies().get("value-per-session").get("plain")).moments();
+            RatioMoments hint = ((Tally.Ratio) v.tallies().get("value-per-session").get("bundle-hint")).moments();
+            JsonNode tally = n.path("tallies").path("value-per-session").path("plain");
+            assertThat(tally.path("units").asLong()).isEqualTo(4800).isEqualTo(tally.path("count").asLong());
+            assertThat(tally.path("numerator_mean").asDouble()).isEqualTo(plain.meanX());
+            assertThat(tally.path("denominator_mean").asDouble()).isEqualTo(plain.meanY());
+            assertThat(tally.path("ratio").asDouble()).isEqualTo(plain.meanX() / plain.meanY());
+            JsonNode comparison = n.path("comparisons").path(0);
+            JsonNode last = comparison.path("last");
+            assertThat(last.path("look").asInt()).as("the last look saw the tallies shown").isEqualTo(6);
+            double byHand = hint.ratio() / plain.ratio() - 1;
+            assertThat(last.path("relative").path("value").asDouble()).isCloseTo(byHand, within(1e-12));
+            assertThat(last.path("relative").path("lower").asDouble()).isLessThan(byHand);
+            assertThat(last.path("relative").path("upper").asDouble()).isGreaterThan(byHand);
+            for (JsonNode look : comparison.path("looks")) {
+                assertThat(look.path("relative").has("value")).isTrue();
+            }
+            JsonNode list = new ObjectMapper().readTree(HttpClient.newHttpClient().send(HttpRequest.newBuilder(
+                    endpoint.uri().resolve("/api/experiments")).build(), HttpResponse.BodyHandlers.ofString()).body());
+            assertThat(list.path(0).path("assignment").asText()).isEqualTo("unit");
+            assertThat(list.path(0).path("comparisons").path(0).path("last").path("relative").path("value").asDouble())
+                    .isCloseTo(byHand, within(1e-12));
+        }
+    }
+
+    /** An answer from an older daemon, without assignment, ratio tallies or relative changes, still reads. */
+    @Test
+    void anOlderAnswerReadsWithPerEventAssignmentAndNoRelativeChange() throws Exception {
+        String old = """
+                {"id":"kiln","control":"a","treatments":["b"],"dry_run":true,"held":false,
+                 "sample_ratio":{"p_value":0.5,"mismatch":false},"exposures":{"a":10,"b":10},"tallies":{},
+                 "comparisons":[{"arm":"b","metric":"m","kind":"event-mean","decision":"continue","alpha":0.05,
+                   "last":{"look":1,"at":"2027-03-08T09:01:00Z","fraction":0.1,"statistic":0.5,"upper":4.0,"lower":null,
+                   "alpha_spent":0.0001,"estimate":{"value":1.5,"lower":-2.0,"upper":null},"decision":"continue"}}]}
+                """;
+        ExperimentView v = ExperimentJson.read(new ObjectMapper().readTree(old));
+        assertThat(v.assignment()).isEqualTo(Assignment.EVENT);
+        LookPoint p = v.comparisons().get(0).looks().get(0);
+        assertThat(p.relative()).isNaN();
+        assertThat(p.relativeLower()).isNaN();
+        assertThat(p.relativeUpper()).isNaN();
+        assertThatThrownBy(() -> ExperimentJson.read(new ObjectMapper().readTree(old.replace("\"dry_run\"",
+                "\"assignment\":\"cohort\",\"dry_run\"")))).hasMessageContaining("unknown assignment 'cohort'");
     }
 
     @Test

@@ -5,9 +5,11 @@ import static org.assertj.core.api.Assertions.assertThat;
 import dev.interim.experiment.Decision;
 import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.ExperimentView.ComparisonView;
+import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.SampleRatio;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RatioMoments;
 import dev.interim.http.HttpEndpoint;
 import java.net.URI;
 import java.net.http.HttpClient;
@@ -92,6 +94,47 @@ class DashboardPageTest {
                 }
             }
         }
+    }
+
+    /**
+     * A per-unit experiment says how arms were assigned, shows its ratio tallies per unit, and each
+     * card the relative change next to the effect. The expected relative change is computed here
+     * from the tallies: ratio(bundle-hint) / ratio(plain) − 1, in percent with one decimal.
+     */
+    @Test
+    void aPerUnitExperimentShowsItsAssignmentRatiosAndTheRelativeChange() {
+        ExperimentView v = Scenarios.perUnitRatio();
+        Xhtml page = Xhtml.parse(ExperimentSection.html(v, 0, NOW));
+        String text = Xhtml.text(page.doc.getDocumentElement());
+        assertThat(text).contains("assignment", "arms assigned per unit");
+        RatioMoments plain = ((Tally.Ratio) v.tallies().get("value-per-session").get("plain")).moments();
+        RatioMoments hint = ((Tally.Ratio) v.tallies().get("value-per-session").get("bundle-hint")).moments();
+        assertThat(text).contains("plain: 4,800 units · ratio ", "bundle-hint: 4,800 units · ratio ");
+        String card = Xhtml.text(page.byClass("comparison").get(0));
+        double byHand = hint.ratio() / plain.ratio() - 1;
+        String percent = String.format(java.util.Locale.ROOT, "%+.1f%%", 100 * byHand);
+        assertThat(card).contains("relative change (95% repeated CI)", percent + " [");
+        ExperimentView perEvent = VIEWS.get("lantern-onboarding");
+        assertThat(Xhtml.text(Xhtml.parse(ExperimentSection.html(perEvent, 0, NOW)).doc.getDocumentElement()))
+                .contains("arms assigned per event");
+    }
+
+    /** The relative change in words; the numbers are chosen by hand, so the expected texts are too. */
+    @Test
+    void theRelativeChangeReadsAsAPercentWithItsInterval() {
+        // relative 0.041 = +4.1%, interval [0.003, 0.082] = [+0.3%, +8.2%]
+        assertThat(Wording.relative(point(0.041, 0.003, 0.082))).isEqualTo("+4.1% [+0.3%, +8.2%]");
+        // a one-sided interval open above; a decrease
+        assertThat(Wording.relative(point(-0.125, -0.2, Double.POSITIVE_INFINITY))).isEqualTo("-12.5% [-20.0%, ∞)");
+        // open below: exp(−∞) − 1 = −1
+        assertThat(Wording.relative(point(0.02, -1, 0.05))).isEqualTo("+2.0% (-100%, +5.0%]");
+        // undefined (a level that is not positive): a dash
+        assertThat(Wording.relative(point(Double.NaN, Double.NaN, Double.NaN))).isEqualTo("–");
+        assertThat(Wording.percent(0.0004)).isEqualTo("0.0%");
+    }
+
+    private static LookPoint point(double relative, double lower, double upper) {
+        return new LookPoint(1, NOW, 0.5, 1.0, 3.0, -3.0, 0.001, 0.5, -0.1, 1.1, Decision.CONTINUE, relative, lower, upper);
     }
 
     @Test

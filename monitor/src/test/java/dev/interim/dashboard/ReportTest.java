@@ -113,6 +113,31 @@ class ReportTest {
         assertThat(row).contains("+1.42 pp", "[0.610, ∞) pp", "97.5%", "4.200", "3.90 (harm)");
     }
 
+    /**
+     * The outcome and the look table show the relative change next to the effect. Numbers chosen by
+     * hand: treatment 1.042% against control 1.000% is 1.042/1.000 − 1 = +4.2%.
+     */
+    @Test
+    void theRelativeChangeIsShownInPercentWithItsInterval() {
+        LookPoint p = new LookPoint(3, GENERATED, 0.3, 2.1, 3.9, Double.NEGATIVE_INFINITY, 0.0012, 0.00042, -0.0001,
+                Double.POSITIVE_INFINITY, Decision.CONTINUE, 0.01042 / 0.01 - 1, -0.011, Double.POSITIVE_INFINITY);
+        ComparisonView c = new ComparisonView("b", "errors", "event-rate", "guardrail", "higher", "kill", 0.025, "greater", "obf",
+                Decision.CONTINUE, List.of(p));
+        Xhtml report = Xhtml.body(Report.html(view(List.of(c)), null, GENERATED));
+        assertThat(Xhtml.text(report.all("//table[@class='summary']/tbody/tr").get(0))).contains("+4.2% [-1.1%, ∞)");
+        assertThat(Xhtml.text(report.all("//table[@class='summary']/thead/tr").get(0))).contains("relative change (repeated CI)");
+        assertThat(Xhtml.text(report.all("//table[@class='history']/tbody/tr").get(0))).contains("+4.2% [-1.1%, ∞)");
+        ComparisonView none = new ComparisonView("b", "errors", "event-mean", "guardrail", "higher", "kill", 0.025, "greater", "obf",
+                Decision.CONTINUE, List.of(new LookPoint(1, GENERATED, 0.1, 0.4, 6.1, Double.NEGATIVE_INFINITY, 1e-6, 0.001, -0.01,
+                        Double.POSITIVE_INFINITY, Decision.CONTINUE)));
+        Element row = Xhtml.body(Report.html(view(List.of(none)), null, GENERATED)).all("//table[@class='summary']/tbody/tr").get(0);
+        // Without a relative change the cell before the level holds a dash.
+        int n = row.getElementsByTagName("td").getLength();
+        assertThat(row.getElementsByTagName("td").item(n - 2).getTextContent()).isEqualTo("–");
+        Xhtml unit = Xhtml.body(Report.html(Scenarios.perUnitRatio(), null, GENERATED));
+        assertThat(Xhtml.text(unit.doc.getDocumentElement())).contains("arms assigned per unit", "4,800 units · ratio ");
+    }
+
     @Test
     void aStopThatNoLookMadeIsSaidToBeAnOperatorsOrOlder() {
         ComparisonView c = new ComparisonView("b", "errors", "event-rate", "guardrail", "higher", "kill", 0.025, "greater", "obf",

@@ -1,5 +1,6 @@
 package dev.interim.dashboard;
 
+import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.ExperimentView;
@@ -13,6 +14,7 @@ import dev.interim.experiment.Worse;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RunningMoments;
+import dev.interim.stats.RunningRatioMoments;
 import java.time.Duration;
 import java.time.Instant;
 import java.util.HashMap;
@@ -82,6 +84,41 @@ final class Scenarios {
         arms.put("list-price", new double[] {0.10, 0, 0.10});
         arms.put("bundle", new double[] {0.10, 0, 0.11});
         return run(d, arms, 9, 250, Map.of(), 73);
+    }
+
+    /**
+     * "ember-basket": arms assigned per unit (each shopper keeps an arm); the primary metric is a
+     * ratio, basket value per session, summed per shopper. 'bundle-hint' raises the value per
+     * session by about 5%. Not part of {@link #invented()}.
+     */
+    static ExperimentView perUnitRatio() {
+        MetricDefinition value = new MetricDefinition("value-per-session", MetricKind.RATIO, Role.PRIMARY, Worse.LOWER, 0.05, 2,
+                SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.NONE);
+        ExperimentDefinition d = new ExperimentDefinition("ember-basket", "plain", List.of("bundle-hint"), null,
+                Duration.ofMinutes(1), 200, true, 0.001, List.of(value), Assignment.UNIT);
+        ExperimentMonitor monitor = new ExperimentMonitor(d);
+        SplittableRandom random = new SplittableRandom(74);
+        Map<String, Double> perSession = Map.of("plain", 20.0, "bundle-hint", 21.0);
+        Map<String, RunningRatioMoments> sums = new LinkedHashMap<>();
+        Map<String, Long> exposures = new HashMap<>();
+        for (int look = 1; look <= 6; look++) {
+            for (String arm : List.of("plain", "bundle-hint")) {
+                RunningRatioMoments r = sums.computeIfAbsent(arm, a -> new RunningRatioMoments());
+                for (int i = 0; i < 800; i++) {
+                    int sessions = 1 + (int) (-Math.log(1 - random.nextDouble()) * 2);
+                    double total = 0;
+                    for (int k = 0; k < sessions; k++) {
+                        total += perSession.get(arm) * (0.2 - Math.log(1 - random.nextDouble()) * 0.8);
+                    }
+                    r.accept(total, sessions);
+                }
+                exposures.merge(arm, 800L, Long::sum);
+            }
+            Map<String, Tally> byArm = new HashMap<>();
+            sums.forEach((arm, r) -> byArm.put(arm, new Tally.Ratio(r.snapshot())));
+            monitor.look(T0.plus(Duration.ofMinutes(look)), Map.copyOf(exposures), Map.of(value.name(), byArm));
+        }
+        return monitor.view();
     }
 
     static MetricDefinition metric(String name, MetricKind kind, Role role, Worse worse, int sides, String spending, long maxPerArm,

@@ -2,6 +2,7 @@ package dev.interim.signal;
 
 import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
+import static org.assertj.core.api.Assertions.within;
 
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentMonitor;
@@ -28,8 +29,46 @@ class DecisionJsonTest {
                 + "\"metric\":\"failed_payments\",\"role\":\"guardrail\",\"decision\":\"stop-harm\",\"previous\":\"continue\","
                 + "\"look\":4,\"fraction\":0.375,\"statistic\":3.912,\"boundary\":3.471,\"alpha_spent\":0.00211,"
                 + "\"estimate\":{\"value\":0.0184,\"lower\":0.0071,\"upper\":null,\"level\":0.95},"
+                + "\"relative\":{\"value\":null,\"lower\":null,\"upper\":null,\"level\":null},"
                 + "\"at\":\"2026-03-01T00:04:00Z\",\"decision_id\":\"6f1c0b0e-0d57-3d0b-9a41-2f0f1a0c5e11\","
                 + "\"dry_run\":false,\"action\":\"kill\"}");
+    }
+
+    /**
+     * A record with a relative change: the control fails 1.00% of payments, the candidate 1.05%.
+     * The value is computed by hand: 0.0105 / 0.0100 − 1 = 0.05; the interval's ends are invented
+     * (any finite numbers around it do), open above as a guardrail's one-sided interval is.
+     */
+    @Test
+    void aRelativeChangeIsWrittenAfterTheEstimateAndReadsBack() {
+        DecisionRecord r = new DecisionRecord("basket-v7", "candidate", "failed_payments", "guardrail", "continue", "continue",
+                3, 0.25, 1.2, 3.9, 0.0004, 0.0005, -0.0003, Double.POSITIVE_INFINITY, 0.95, Fixtures.T0, "r-1", false, "kill",
+                0.0105 / 0.0100 - 1, -0.021, Double.POSITIVE_INFINITY);
+        String json = DecisionJson.writeString(r);
+        assertThat(json).contains("\"estimate\":{\"value\":5.0E-4,\"lower\":-3.0E-4,\"upper\":null,\"level\":0.95},"
+                + "\"relative\":{\"value\":" + (0.0105 / 0.0100 - 1) + ",\"lower\":-0.021,\"upper\":null,\"level\":0.95},"
+                + "\"at\":");
+        DecisionRecord back = DecisionJson.read(json.getBytes(StandardCharsets.UTF_8));
+        assertThat(back).isEqualTo(r);
+        assertThat(back.relative()).isCloseTo(0.05, within(1e-12));
+        assertThat(back.relativeUpper()).isEqualTo(Double.POSITIVE_INFINITY);
+    }
+
+    /** A record written before the member existed (no "relative") reads back with NaN: no relative change. */
+    @Test
+    void aRecordWithoutRelativeReadsAsNoRelativeChange() {
+        String old = DecisionJson.writeString(Fixtures.stopForHarm("o", false))
+                .replace("\"relative\":{\"value\":null,\"lower\":null,\"upper\":null,\"level\":null},", "");
+        assertThat(old).doesNotContain("relative");
+        DecisionRecord back = DecisionJson.read(old.getBytes(StandardCharsets.UTF_8));
+        assertThat(back).isEqualTo(Fixtures.stopForHarm("o", false));
+        assertThat(back.relative()).isNaN();
+        assertThat(back.relativeLower()).isNaN();
+        assertThat(back.relativeUpper()).isNaN();
+        String nullRelative = old.replace("\"at\":", "\"relative\":null,\"at\":");
+        assertThat(DecisionJson.read(nullRelative.getBytes(StandardCharsets.UTF_8))).isEqualTo(Fixtures.stopForHarm("o", false));
+        assertThatThrownBy(() -> DecisionJson.read(old.replace("\"at\":", "\"relative\":{\"value\":\"5%\",\"level\":0.95},\"at\":")
+                .getBytes(StandardCharsets.UTF_8))).hasMessageContaining("'relative.value'");
     }
 
     @Test
