@@ -1,0 +1,146 @@
+package dev.interim.validity;
+
+import dev.interim.config.ConfigLoader;
+import dev.interim.config.InterimConfig;
+import dev.interim.experiment.Comparison;
+import dev.interim.experiment.Decision;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.LookReport;
+import dev.interim.experiment.LookResult;
+import dev.interim.stream.BadEventException;
+import dev.interim.stream.JsonEventReader;
+import dev.interim.stream.OfflineTally;
+import java.time.Instant;
+import java.util.List;
+import java.util.Locale;
+
+/**
+ * The real engine on synthetic traffic: a YAML configuration through {@link ConfigLoader}, JSON
+ * event bytes through {@link JsonEventReader} into {@link OfflineTally}, and looks with
+ * {@link ExperimentMonitor#look} on a schedule of event counts that starts at the first events.
+ */
+final class Engine {
+    static final String EXPERIMENT = "quillfen";
+    static final double ALPHA = 0.05;
+    static final double POWER = 0.8;
+    static final int PLANNED_LOOKS = 60;
+
+    private Engine() {
+    }
+
+    /**
+     * The configuration: one treatment against control at 80:20, five two-sided primary metrics with
+     * α = {@value #ALPHA} each, O'Brien–Fleming-type spending, and horizons sized by power
+     * {@value #POWER} for the planned effects {@code effects} (in the metrics' units).
+     */
+    static InterimConfig config(String assignment, double[] effects) {
+        String metric = "alpha: %s, sides: 2, spending: obf, power: %s, effect: %s, planned_looks: %d";
+        String[] tail = new String[5];
+        for (int i = 0; i < 5; i++) {
+            tail[i] = String.format(Locale.ROOT, metric, ALPHA, POWER, effects[i], PLANNED_LOOKS);
+        }
+        String yaml = """
+                kafka:
+                  input_topics: [quillfen.events]
+                  input_keyed_by_unit: true
+                events:
+                  experiment: /x
+                  arm: /a
+                  unit: /u
+                experiments:
+                  - id: quillfen
+                    control: base
+                    treatments: [fresh]
+                    split: {base: 80, fresh: 20}
+                    assignment: %s
+                    min_per_arm: 2
+                    sample_ratio_threshold: 0.000000001
+                    metrics:
+                      - {name: errors, kind: event-rate, role: primary, worse: higher, field: /status,
+                         counts_if: {equals: error}, %s}
+                      - {name: latency, kind: event-mean, role: primary, worse: higher, field: /ms, %s}
+                      - {name: bought, kind: unit-rate, role: primary, worse: lower, field: /step,
+                         counts_if: {equals: bought}, %s}
+                      - {name: revenue, kind: unit-total, role: primary, worse: lower, field: /spend, %s}
+                      - {name: basket, kind: ratio, role: primary, worse: lower, numerator: /value,
+                         denominator: /items, %s}
+                """.formatted(assignment, tail[0], tail[1], tail[2], tail[3], tail[4]);
+        return ConfigLoader.parseWithoutSecrets(yaml);
+    }
+
+    /** What one run found, per metric (in {@link Traffic#METRICS} order). */
+    record Run(Decision[] decisions, double[] stopEffects, boolean[] missed, int looks, int events, double[] lastFraction) {
+    }
+
+    /**
+     * Feeds {@code events} and looks after 2, 5, 10, 20, 40, 80, 160 events and then every
+     * {@code step} events, until every comparison is final or the events run out. {@code truth} is
+     * the true effect per metric; {@code missed[k]} says whether some repeated confidence interval of
+     * metric k failed to cover it.
+     */
+    static Run run(InterimConfig config, ExperimentMonitor monitor, List<Traffic.Event> events, int step,
+                   double[] truth) {
+        ExperimentDefinition definition = monitor.definition();
+        // A fresh start of the same designs (building them anew costs seconds: planning by power).
+        for (Comparison c : monitor.comparisons()) {
+            c.restore(List.of(), Decision.CONTINUE);
+        }
+        OfflineTally tally = new OfflineTally(List.of(definition));
+        JsonEventReader reader = new JsonEventReader(config);
+        int k = Traffic.METRICS.length;
+        boolean[] missed = new boolean[k];
+        double[] stopEffects = new double[k];
+        double[] lastFraction = new double[k];
+        int looks = 0;
+        int fed = 0;
+        int next = 2;
+        for (Traffic.Event e : events) {
+            try {
+                reader.read(e.json(), tally);
+            } catch (BadEventException ex) {
+                throw new AssertionError("the simulated event was refused: " + ex.getMessage(), ex);
+            }
+            fed++;
+            if (fed < next) {
+                continue;
+            }
+            next = next < 160 ? (next == 2 ? 5 : 2 * next) : next + step;
+            OfflineTally.Snapshot s = tally.snapshot(EXPERIMENT);
+            LookReport report = monitor.look(Instant.ofEpochSecond(fed), s.exposures(), s.tallies());
+            looks++;
+            for (LookResult r : report.results()) {
+                int m = index(r.metric());
+                if (!r.interval().contains(truth[m])) {
+                    missed[m] = true;
+                }
+                lastFraction[m] = r.look().fraction();
+                if (r.decision() == Decision.STOP_BENEFIT || r.decision() == Decision.STOP_HARM) {
+                    stopEffects[m] = r.estimate().effect();
+                }
+            }
+            if (monitor.comparisons().stream().allMatch(c -> c.decision().isFinal())) {
+                break;
+            }
+        }
+        Decision[] decisions = new Decision[k];
+        for (Comparison c : monitor.comparisons()) {
+            decisions[index(c.metric().name())] = c.decision();
+        }
+        return new Run(decisions, stopEffects, missed, looks, fed, lastFraction);
+    }
+
+    /** A monitor of the configuration's experiment, to be reused run after run. */
+    static ExperimentMonitor monitor(InterimConfig config) {
+        return new ExperimentMonitor(config.experiments().get(0).definition());
+    }
+
+    static int index(String metric) {
+        for (int i = 0; i < Traffic.METRICS.length; i++) {
+            if (Traffic.METRICS[i].equals(metric)) {
+                return i;
+            }
+        }
+        throw new IllegalArgumentException(metric);
+    }
+}
