@@ -19,10 +19,11 @@ import static dev.interim.stats.Alternative.TWO_SIDED;
  * the degrees of freedom behind it, each arm's level with its standard error (for the relative
  * change), and a conservative information for the information fraction.
  *
- * <p>Tests: rates per event use the two-proportion z test (pooled standard error for the statistic,
- * unpooled for the interval); means use Welch's t; ratios of per-unit sums (ratio metrics, and event
- * metrics under per-unit assignment) use Welch's t on the delta-method linearisation
- * ({@link RatioTests}). A t statistic meets the z boundaries through its p-value
+ * <p>Tests: every two-sample statistic is judged with the variance pooled under no change, every
+ * interval with the unpooled one (floored at the pooled one for means and ratios). Rates per event
+ * use the two-proportion z test; means the pooled t statistic and a Welch interval; ratios of
+ * per-unit sums (ratio metrics, and event metrics under per-unit assignment) the same on the
+ * delta-method linearisation ({@link RatioTests}). A t statistic meets the z boundaries through its p-value
  * ({@link TestResult#zEquivalent()}). One-sample tests replace the control by a fixed baseline.
  *
  * <p>Conservative information: the information fraction of a powered horizon is I/I_max with I
@@ -118,8 +119,8 @@ public record Estimate(double effect, double standardError, double z, double deg
                         upperVariance(a.linearisedVariance(), a.count()) / a.count(), 0);
             }
             RatioMoments b = ((Tally.Ratio) control).moments();
-            TestResult r = RatioTests.twoSample(a, b, TWO_SIDED);
-            return from(r, a.ratio(), b.ratio(), Math.sqrt(a.ratioVariance()), Math.sqrt(b.ratioVariance()),
+            TestResult r = RatioTests.twoSampleAtLeastPooled(a, b, TWO_SIDED);
+            return from(r, RatioTests.twoSampleUnderNull(a, b, TWO_SIDED), a.ratio(), b.ratio(), Math.sqrt(a.ratioVariance()), Math.sqrt(b.ratioVariance()),
                     upperVariance(a.linearisedVariance(), a.count()) / a.count(),
                     upperVariance(b.linearisedVariance(), b.count()) / b.count());
         }
@@ -130,10 +131,8 @@ public record Estimate(double effect, double standardError, double z, double deg
                     upperVariance(a.variance(), a.count()) / a.count(), 0);
         }
         Moments b = ((Tally.Mean) control).moments();
-        TestResult r = a.variance() == 0 || b.variance() == 0
-                ? MeanTests.pooledT(a, b, TWO_SIDED)   // a zero spread from a few values is no evidence of none
-                : MeanTests.welchT(a, b, TWO_SIDED);
-        return from(r, a.mean(), b.mean(), a.standardErrorOfMean(), b.standardErrorOfMean(),
+        TestResult r = MeanTests.welchTAtLeastPooled(a, b, TWO_SIDED);
+        return from(r, MeanTests.pooledT(a, b, TWO_SIDED), a.mean(), b.mean(), a.standardErrorOfMean(), b.standardErrorOfMean(),
                 upperVariance(a.variance(), a.count()) / a.count(), upperVariance(b.variance(), b.count()) / b.count());
     }
 
@@ -145,13 +144,28 @@ public record Estimate(double effect, double standardError, double z, double deg
 
     private static Estimate from(TestResult r, double treatmentLevel, double controlLevel, double treatmentError,
                                  double controlError, double treatmentShare, double controlShare) {
-        double se = r.standardError();
-        if (!(se > 0) || !Double.isFinite(r.statistic())) {
+        return from(r, r, treatmentLevel, controlLevel, treatmentError, controlError, treatmentShare, controlShare);
+    }
+
+    /**
+     * {@code interval} gives the estimate, its standard error and the degrees of freedom of the
+     * interval; {@code statistic} the Z the boundaries judge. Two-sample means and ratios judge the
+     * statistic with the variance pooled under no change ({@link MeanTests#pooledT},
+     * {@link RatioTests#twoSampleUnderNull}): it holds the false-stop rate at an uneven split with
+     * skewed values, where the unpooled (Welch) statistic does not; the interval keeps the unpooled
+     * standard error, with each arm's variance at least the pooled one, which stays right when the arms
+     * differ and is never narrower than the statistic's (an arm that has not met its tail yet borrows
+     * the other's spread; a zero spread from a few values is no evidence of none).
+     */
+    private static Estimate from(TestResult interval, TestResult statistic, double treatmentLevel, double controlLevel,
+                                 double treatmentError, double controlError, double treatmentShare, double controlShare) {
+        double se = interval.standardError();
+        if (!(se > 0) || !Double.isFinite(interval.statistic()) || !Double.isFinite(statistic.statistic())) {
             throw new InsufficientDataException("no variance yet: the effect has no standard error");
         }
         double conservative = 1 / (treatmentShare + controlShare);
-        return new Estimate(r.estimate(), se, r.zEquivalent(), r.degreesOfFreedom(), treatmentLevel, controlLevel,
-                treatmentError, controlError, conservative);
+        return new Estimate(interval.estimate(), se, statistic.zEquivalent(), interval.degreesOfFreedom(), treatmentLevel,
+                controlLevel, treatmentError, controlError, conservative);
     }
 
     private static double rateError(ProportionCounts c) {

@@ -130,6 +130,34 @@ public final class MeanTests {
         return TestResult.of(test, statistic, df, alternative, difference, se);
     }
 
+    /**
+     * Welch's test with each sample's variance taken as at least the pooled one, max(s², s_p²), and
+     * Welch–Satterthwaite degrees of freedom on those variances. Its standard error is never below the
+     * pooled test's, so an interval built on it never excludes a value the pooled test keeps; and a
+     * small sample whose spread is underestimated (a skewed sample that has not met its tail yet)
+     * borrows the other's. Conservative when the variances truly differ.
+     *
+     * @throws InsufficientDataException if either sample has fewer than 2 observations
+     */
+    public static TestResult welchTAtLeastPooled(Moments a, Moments b, Alternative alternative) {
+        String test = "Welch t, variances at least pooled";
+        checkTwo(test, a, b, alternative, 2);
+        double pooled = (a.sumSquaredDeviations() + b.sumSquaredDeviations()) / ((double) a.count() + b.count() - 2);
+        return welchFromVariances(test, Math.max(a.variance(), pooled), a.count(), Math.max(b.variance(), pooled),
+                b.count(), a.mean() - b.mean(), alternative);
+    }
+
+    /** Welch's t from the two per-observation variances and counts (shared with {@link RatioTests}). */
+    static TestResult welchFromVariances(String test, double varianceA, long na, double varianceB, long nb,
+                                         double difference, Alternative alternative) {
+        double va = varianceA / na;
+        double vb = varianceB / nb;
+        double se = Math.sqrt(va + vb);
+        double statistic = Checks.ratio(test, difference, se);
+        double df = se > 0.0 ? (va + vb) * (va + vb) / (va * va / (na - 1) + vb * vb / (nb - 1)) : (double) na + nb - 2;
+        return TestResult.of(test, statistic, df, alternative, difference, se);
+    }
+
     private static TestResult oneSampleT(String test, Moments sample, double mu0, Alternative alternative) {
         Checks.notNull("sample", sample);
         Checks.notNull("alternative", alternative);

@@ -169,6 +169,27 @@ class MeanTestsTest {
     }
 
     @Test
+    void welchWithVariancesAtLeastPooledIsWelchOnTheFlooredVariances() {
+        double[] a = {12, 15, 11, 30, 14};            // the wider sample
+        double[] b = {13, 14, 13, 12, 14, 13, 15, 12}; // the narrower: its variance is floored at the pooled one
+        Moments ma = Moments.ofValues(a);
+        Moments mb = Moments.ofValues(b);
+        double pooled = (ma.sumSquaredDeviations() + mb.sumSquaredDeviations()) / (a.length + b.length - 2);
+        TestResult r = MeanTests.welchTAtLeastPooled(ma, mb, Alternative.TWO_SIDED);
+        // reference library: Apache Commons Math 3.6.1 TTest (Welch's t) on summaries carrying the floored variances
+        org.apache.commons.math3.stat.descriptive.StatisticalSummaryValues sa =
+                new org.apache.commons.math3.stat.descriptive.StatisticalSummaryValues(ma.mean(),
+                        Math.max(ma.variance(), pooled), a.length, 30, 11, StatUtils.sum(a));
+        org.apache.commons.math3.stat.descriptive.StatisticalSummaryValues sb =
+                new org.apache.commons.math3.stat.descriptive.StatisticalSummaryValues(mb.mean(),
+                        Math.max(mb.variance(), pooled), b.length, 15, 12, StatUtils.sum(b));
+        assertThat(r.statistic()).isCloseTo(REFERENCE.t(sa, sb), within(1e-12));
+        assertClose(r.pValue(), REFERENCE.tTest(sa, sb));
+        assertThat(r.standardError()).as("never below the pooled test's")
+                .isGreaterThanOrEqualTo(MeanTests.pooledT(ma, mb, Alternative.TWO_SIDED).standardError());
+    }
+
+    @Test
     void zeroVarianceWithoutADifferenceIsRefused() {
         Moments same = Moments.ofValues(3, 3, 3);
         // documented convention (MeanTests javadoc): 0/0 has no p-value; R's t.test also refuses

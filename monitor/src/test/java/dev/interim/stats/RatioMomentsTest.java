@@ -237,6 +237,15 @@ class RatioMomentsTest {
         assertThat(t.degreesOfFreedom()).as("Welch–Satterthwaite df").isCloseTo(out.get("df").asDouble(), within(1e-9));
         assertThat(t.standardError()).isCloseTo(Math.sqrt(out.get("arms").get(0).get("variance").asDouble()
                 + out.get("arms").get(1).get("variance").asDouble()), within(1e-13));
+        // The statistic under no change (residuals at the common ratio, pooled) and the interval's
+        // standard error with each arm's variance at least the pooled one, as delta_ratio.py computes them.
+        TestResult pooled = RatioTests.twoSampleUnderNull(a, b, Alternative.TWO_SIDED);
+        assertThat(pooled.statistic()).as("pooled t").isCloseTo(out.get("t_pooled").asDouble(), within(1e-10));
+        assertThat(pooled.degreesOfFreedom()).isEqualTo(20.0);
+        TestResult floored = RatioTests.twoSampleAtLeastPooled(a, b, Alternative.TWO_SIDED);
+        assertThat(floored.standardError()).isCloseTo(out.get("se_floored").asDouble(), within(1e-12));
+        assertThat(floored.degreesOfFreedom()).isCloseTo(out.get("df_floored").asDouble(), within(1e-9));
+        assertThat(floored.standardError()).as("never below the statistic's").isGreaterThanOrEqualTo(pooled.standardError());
     }
 
     private static boolean hasNumpy(String python) {

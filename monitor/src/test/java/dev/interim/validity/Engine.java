@@ -54,7 +54,7 @@ final class Engine {
                     treatments: [fresh]
                     split: {base: 80, fresh: 20}
                     assignment: %s
-                    min_per_arm: 2
+                    min_per_arm: 100
                     sample_ratio_threshold: 0.000000001
                     metrics:
                       - {name: errors, kind: event-rate, role: primary, worse: higher, field: /status,
