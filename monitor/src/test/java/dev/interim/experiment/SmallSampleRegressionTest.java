@@ -40,7 +40,9 @@ class SmallSampleRegressionTest {
     @Test
     void aSplitOf99To1CountsBothArmsNotTheLargerOne() {
         // Before: control with 201 events, the treatment with 2 equal values: fraction 1.005 from the
-        // control's variance alone, and a stop for harm at look 1 (z 3.72).
+        // control's variance alone, and a stop for harm at look 1 (z 3.72). Here two equal values half a
+        // standard deviation above control's mean: Welch's statistic, taking the treatment's spread as
+        // zero, gave z near 7 from them.
         Comparison c = comparison(metric("latency", MetricKind.EVENT_MEAN, SpendingFunction.parse("pocock"),
                 new Horizon.MaxPerArm(200)), 2);
         double[] control = new double[201];
@@ -48,7 +50,7 @@ class SmallSampleRegressionTest {
         for (int i = 0; i < control.length; i++) {
             control[i] = 100 + 10 * random.nextGaussian();
         }
-        LookResult r = c.look(mean(140, 140), mean(control), T).orElseThrow();
+        LookResult r = c.look(mean(105, 105), mean(control), T).orElseThrow();
         // 2·2·201 / (200·203): the harmonic share of the planned counts, computed by hand.
         assertThat(r.look().fraction()).isCloseTo(2.0 * 2 * 201 / (200.0 * 203), org.assertj.core.api.Assertions.within(1e-15));
         assertThat(r.look().last()).isFalse();
@@ -57,7 +59,7 @@ class SmallSampleRegressionTest {
         // freedom), computed here from the textbook formula and mapped to Z through Commons Statistics.
         Moments controlMoments = Moments.ofValues(control);
         double pooled = controlMoments.sumSquaredDeviations() / 201;
-        double t = (140 - controlMoments.mean()) / Math.sqrt(pooled * (1.0 / 2 + 1.0 / 201));
+        double t = (105 - controlMoments.mean()) / Math.sqrt(pooled * (1.0 / 2 + 1.0 / 201));
         double z = org.apache.commons.statistics.distribution.NormalDistribution.of(0, 1).inverseSurvivalProbability(
                 org.apache.commons.statistics.distribution.TDistribution.of(201).survivalProbability(t));
         assertThat(r.estimate().z()).isCloseTo(z, org.assertj.core.api.Assertions.within(1e-9));
