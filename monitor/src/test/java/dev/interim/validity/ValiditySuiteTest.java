@@ -50,6 +50,11 @@ class ValiditySuiteTest {
 
     static Cell simulate(String name, Traffic.Shape shape, String assignment, double[] plan, boolean effect,
                          int units, long seed) {
+        return simulate(name, shape, assignment, plan, effect, units, seed, RUNS, LOOKS);
+    }
+
+    static Cell simulate(String name, Traffic.Shape shape, String assignment, double[] plan, boolean effect,
+                         int units, long seed, int runs, int lookCount) {
         InterimConfig config = Engine.config(assignment, plan);
         ExperimentMonitor monitor = Engine.monitor(config);
         double[] truth = effect ? plan : new double[plan.length];
@@ -60,8 +65,8 @@ class ValiditySuiteTest {
         int incomplete = 0;
         long looks = 0;
         int cap = (int) (units * 1.8);
-        int step = (int) Math.max(1, units * shape.expectedEvents() / LOOKS);
-        for (int run = 0; run < RUNS; run++) {
+        int step = (int) Math.max(1, units * shape.expectedEvents() / lookCount);
+        for (int run = 0; run < runs; run++) {
             List<Traffic.Event> events = Traffic.generate(shape, cap, truth, seed + 7919L * run);
             Engine.Run r = Engine.run(config, monitor, events, step, truth);
             looks += r.looks();
@@ -81,7 +86,7 @@ class ValiditySuiteTest {
                 }
             }
         }
-        return new Cell(name, RUNS, stops, detections, misses, incomplete, (double) looks / RUNS);
+        return new Cell(name, runs, stops, detections, misses, incomplete, (double) looks / runs);
     }
 
     static double se(double p, int n) {
@@ -162,6 +167,20 @@ class ValiditySuiteTest {
         SoftAssertions soft = new SoftAssertions();
         report(simulate("clustered, unit, effect", Traffic.CLUSTERED, "unit", CLUSTERED_EFFECTS, true, 3000, 22L),
                 true, soft);
+        soft.assertAll();
+    }
+
+    /**
+     * Continuous monitoring: the same clustered null traffic looked at about every 1/1,000 of the
+     * planned information (the full run only: about a second per run).
+     */
+    @Test
+    void clusteredUnitsUnderNoEffectWithAThousandLooks() {
+        org.junit.jupiter.api.Assumptions.assumeTrue(FULL, "SKIPPED: a thousand looks per run only in the full run "
+                + "(-Dinterim.validity.full=true)");
+        SoftAssertions soft = new SoftAssertions();
+        report(simulate("clustered, unit, null, 1000 looks", Traffic.CLUSTERED, "unit", CLUSTERED_EFFECTS, false, 3000,
+                41L, 400, 1000), false, soft);
         soft.assertAll();
     }
 
