@@ -19,11 +19,15 @@ import static dev.interim.stats.Alternative.TWO_SIDED;
  * the degrees of freedom behind it, each arm's level with its standard error (for the relative
  * change), and a conservative information for the information fraction.
  *
- * <p>Tests: every two-sample statistic is judged with the variance pooled under no change, every
- * interval with the unpooled one (floored at the pooled one for means and ratios). Rates per event
- * use the two-proportion z test; means the pooled t statistic and a Welch interval; ratios of
- * per-unit sums (ratio metrics, and event metrics under per-unit assignment) the same on the
- * delta-method linearisation ({@link RatioTests}). A t statistic meets the z boundaries through its p-value
+ * <p>Tests: a two-sample comparison has one standard error, for its statistic and its interval
+ * alike: each arm's per-observation variance taken as at least the variance pooled over both arms
+ * ({@link ProportionTests#twoProportionZAtLeastPooled} for rates per event,
+ * {@link MeanTests#welchTAtLeastPooled} for means and totals, {@link RatioTests#twoSampleAtLeastPooled}
+ * for ratios of per-unit sums: ratio metrics, and event metrics under per-unit assignment). It is
+ * never below the pooled standard error, whose statistic approximates the permutation test and so
+ * holds its level under an uneven split with skewed values; Welch's alone does not, as a small arm
+ * that has not met its tail yet shows both a low mean and a low spread. And the interval excludes no
+ * change exactly when the test rejects. A t statistic meets the z boundaries through its p-value
  * ({@link TestResult#zEquivalent()}). One-sample tests replace the control by a fixed baseline.
  *
  * <p>Conservative information: the information fraction of a powered horizon is I/I_max with I
@@ -108,7 +112,8 @@ public record Estimate(double effect, double standardError, double z, double deg
                 throw new InsufficientDataException("no variance yet: every event so far is "
                         + (a.successes() + b.successes() == 0 ? "a failure" : "a success") + " in both arms");
             }
-            return from(ProportionTests.twoProportionZ(a, b, TWO_SIDED), a.rate(), b.rate(), rateError(a), rateError(b),
+            return from(ProportionTests.twoProportionZAtLeastPooled(a, b, TWO_SIDED), a.rate(), b.rate(), rateError(a),
+                    rateError(b),
                     upperRateVariance(a) / a.trials(), upperRateVariance(b) / b.trials());
         }
         if (treatment instanceof Tally.Ratio t) {
@@ -120,7 +125,7 @@ public record Estimate(double effect, double standardError, double z, double deg
             }
             RatioMoments b = ((Tally.Ratio) control).moments();
             TestResult r = RatioTests.twoSampleAtLeastPooled(a, b, TWO_SIDED);
-            return from(r, RatioTests.twoSampleUnderNull(a, b, TWO_SIDED), a.ratio(), b.ratio(), Math.sqrt(a.ratioVariance()), Math.sqrt(b.ratioVariance()),
+            return from(r, a.ratio(), b.ratio(), Math.sqrt(a.ratioVariance()), Math.sqrt(b.ratioVariance()),
                     upperVariance(a.linearisedVariance(), a.count()) / a.count(),
                     upperVariance(b.linearisedVariance(), b.count()) / b.count());
         }
@@ -132,7 +137,7 @@ public record Estimate(double effect, double standardError, double z, double deg
         }
         Moments b = ((Tally.Mean) control).moments();
         TestResult r = MeanTests.welchTAtLeastPooled(a, b, TWO_SIDED);
-        return from(r, MeanTests.pooledT(a, b, TWO_SIDED), a.mean(), b.mean(), a.standardErrorOfMean(), b.standardErrorOfMean(),
+        return from(r, a.mean(), b.mean(), a.standardErrorOfMean(), b.standardErrorOfMean(),
                 upperVariance(a.variance(), a.count()) / a.count(), upperVariance(b.variance(), b.count()) / b.count());
     }
 
@@ -144,28 +149,13 @@ public record Estimate(double effect, double standardError, double z, double deg
 
     private static Estimate from(TestResult r, double treatmentLevel, double controlLevel, double treatmentError,
                                  double controlError, double treatmentShare, double controlShare) {
-        return from(r, r, treatmentLevel, controlLevel, treatmentError, controlError, treatmentShare, controlShare);
-    }
-
-    /**
-     * {@code interval} gives the estimate, its standard error and the degrees of freedom of the
-     * interval; {@code statistic} the Z the boundaries judge. Two-sample means and ratios judge the
-     * statistic with the variance pooled under no change ({@link MeanTests#pooledT},
-     * {@link RatioTests#twoSampleUnderNull}): it holds the false-stop rate at an uneven split with
-     * skewed values, where the unpooled (Welch) statistic does not; the interval keeps the unpooled
-     * standard error, with each arm's variance at least the pooled one, which stays right when the arms
-     * differ and is never narrower than the statistic's (an arm that has not met its tail yet borrows
-     * the other's spread; a zero spread from a few values is no evidence of none).
-     */
-    private static Estimate from(TestResult interval, TestResult statistic, double treatmentLevel, double controlLevel,
-                                 double treatmentError, double controlError, double treatmentShare, double controlShare) {
-        double se = interval.standardError();
-        if (!(se > 0) || !Double.isFinite(interval.statistic()) || !Double.isFinite(statistic.statistic())) {
+        double se = r.standardError();
+        if (!(se > 0) || !Double.isFinite(r.statistic())) {
             throw new InsufficientDataException("no variance yet: the effect has no standard error");
         }
         double conservative = 1 / (treatmentShare + controlShare);
-        return new Estimate(interval.estimate(), se, statistic.zEquivalent(), interval.degreesOfFreedom(), treatmentLevel,
-                controlLevel, treatmentError, controlError, conservative);
+        return new Estimate(r.estimate(), se, r.zEquivalent(), r.degreesOfFreedom(), treatmentLevel, controlLevel,
+                treatmentError, controlError, conservative);
     }
 
     private static double rateError(ProportionCounts c) {

@@ -42,6 +42,32 @@ public final class ProportionTests {
     }
 
     /**
+     * The two-proportion z test with one standard error for the statistic and the interval: each
+     * arm's Bernoulli variance taken as at least the pooled one, max(p(1 − p), p̄(1 − p̄)). It is
+     * never below the pooled (score) standard error, so the test is at most as ready to reject as the
+     * score test, and an interval built on it excludes no difference exactly when the test rejects;
+     * an arm whose few events happen to show no failures (or no successes) borrows the pooled spread
+     * instead of collapsing to a point.
+     *
+     * @throws InsufficientDataException as {@link #twoProportionZ}
+     */
+    public static TestResult twoProportionZAtLeastPooled(ProportionCounts a, ProportionCounts b, Alternative alternative) {
+        String test = "two-proportion z, variances at least pooled";
+        Checks.notNull("a", a);
+        Checks.notNull("b", b);
+        Checks.notNull("alternative", alternative);
+        Checks.atLeast(test, "trials in the first sample", a.trials(), 1);
+        Checks.atLeast(test, "trials in the second sample", b.trials(), 1);
+        double pa = a.rate();
+        double pb = b.rate();
+        double pooled = ((double) a.successes() + b.successes()) / ((double) a.trials() + b.trials());
+        double vp = pooled * (1 - pooled);
+        double se = Math.sqrt(Math.max(pa * (1 - pa), vp) / a.trials() + Math.max(pb * (1 - pb), vp) / b.trials());
+        double difference = pa - pb;
+        return TestResult.of(test, Checks.ratio(test, difference, se), Z, alternative, difference, se);
+    }
+
+    /**
      * One-proportion z test of {@code rate = p0} (e.g. an error rate against a service-level
      * objective); the estimate is the observed rate.
      *

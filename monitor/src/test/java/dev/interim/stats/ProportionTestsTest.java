@@ -113,4 +113,22 @@ class ProportionTestsTest {
         assertThatThrownBy(() -> ProportionTests.twoProportionZ(some, some, null))
                 .isInstanceOf(IllegalArgumentException.class);
     }
+
+    @Test
+    void atLeastPooledTakesEachArmsVarianceAsAtLeastThePooledOne() {
+        ProportionCounts a = new ProportionCounts(12, 400);
+        ProportionCounts b = new ProportionCounts(4, 380);
+        TestResult r = ProportionTests.twoProportionZAtLeastPooled(a, b, Alternative.GREATER);
+        // By hand: p̄ = 16/780; the second arm's p(1 − p) is below p̄(1 − p̄), so it takes the pooled one.
+        double pooled = 16.0 / 780 * (1 - 16.0 / 780);
+        double se = Math.sqrt(Math.max(0.03 * 0.97, pooled) / 400 + pooled / 380);
+        org.assertj.core.api.Assertions.assertThat(r.standardError()).isCloseTo(se, org.assertj.core.api.Assertions.within(1e-15));
+        org.assertj.core.api.Assertions.assertThat(r.statistic()).isCloseTo((0.03 - 4.0 / 380) / se,
+                org.assertj.core.api.Assertions.within(1e-12));
+        org.assertj.core.api.Assertions.assertThat(r.standardError()).as("never below the score test's")
+                .isGreaterThanOrEqualTo(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).standardError()
+                        * Math.abs(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).estimate())
+                        / Math.abs(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).statistic())
+                        - 1e-15);
+    }
 }
