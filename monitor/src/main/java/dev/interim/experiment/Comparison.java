@@ -36,6 +36,12 @@ public final class Comparison {
     private final double plannedDrift;
     /** Why the last look due found nothing to look at, or null. */
     private String skipped;
+    /**
+     * The horizons in observations per arm that the looks of the latest half of the data implied, as
+     * (count, need) with decreasing needs, the largest first (see {@link #fraction}); empty before the
+     * first look and again after a restart.
+     */
+    private final java.util.ArrayDeque<double[]> needs = new java.util.ArrayDeque<>();
     private SequentialMonitor monitor;
     /** The recent fractions, oldest first: {@code recentCount} of them, unboxed. */
     private double[] recent = new double[16];
@@ -125,6 +131,7 @@ public final class Comparison {
     public void restore(SequentialMonitor.Snapshot snapshot, Decision restored) {
         monitor = SequentialMonitor.restore(design, snapshot);
         recentCount = 0;
+        needs.clear();
         decision = restored == null ? Decision.CONTINUE : restored;
     }
 
@@ -132,6 +139,7 @@ public final class Comparison {
     public void restore(List<Double> seen, Decision restored) {
         monitor = design.monitor();
         recentCount = 0;
+        needs.clear();
         for (double t : seen) {
             monitor.lookAt(t);
             remember(t);
@@ -263,6 +271,12 @@ public final class Comparison {
      * from whole numbers, so no rounding keeps a design short of its end). Against a baseline, n_t/N.
      * For a powered horizon: the conservative information over I_max = (drift/δ)², δ the planned
      * effect (a relative one times the control's level, or the baseline's), at most n/{@link #FULL_COUNT}.
+     * That information implies a horizon in observations, N* = n·I_max/I; the fraction is n/N* with
+     * the largest N* implied by the looks made since the data were half what they are. A
+     * heavy-tailed variance estimated low at one look (a tail met less often lately) would otherwise
+     * end the design at the first look whose estimate happened to be low: the final look would come at
+     * the minimum of many noisy horizons, short of the planned information, and the power below the
+     * plan. Looks on less than half the data are forgotten, as their estimates are the least precise.
      */
     private double fraction(Estimate e, long treatmentCount, long controlCount) {
         if (metric.horizon() instanceof Horizon.MaxPerArm max) {
@@ -279,7 +293,18 @@ public final class Comparison {
         double planned = (plannedDrift / delta) * (plannedDrift / delta);
         double t = treatmentCount;
         double counted = controlCount < 0 ? t : 2 * t * controlCount / (t + controlCount);
-        return Math.min(e.conservativeInformation() / planned, counted / FULL_COUNT);
+        // The horizon in observations that this look's information implies, and the largest of those
+        // implied by the looks of the latest half of the data (a sliding-window maximum: a deque of
+        // (count, need) with decreasing needs).
+        double needed = counted * planned / e.conservativeInformation();
+        while (!needs.isEmpty() && needs.peekLast()[1] <= needed) {
+            needs.pollLast();
+        }
+        needs.addLast(new double[] {counted, needed});
+        while (needs.peekFirst()[0] < counted / 2) {
+            needs.pollFirst();
+        }
+        return Math.min(counted / needs.peekFirst()[1], counted / FULL_COUNT);
     }
 
     /**
