@@ -26,14 +26,10 @@ public final class ProportionTests {
      */
     public static TestResult twoProportionZ(ProportionCounts a, ProportionCounts b, Alternative alternative) {
         String test = "two-proportion z";
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "trials in the first sample", a.trials(), 1);
-        Checks.atLeast(test, "trials in the second sample", b.trials(), 1);
+        checkTwo(test, a, b, alternative);
         double pa = a.rate();
         double pb = b.rate();
-        double pooled = ((double) a.successes() + b.successes()) / ((double) a.trials() + b.trials());
+        double pooled = pooledRate(a, b);
         double pooledSe = Math.sqrt(pooled * (1 - pooled) * (1.0 / a.trials() + 1.0 / b.trials()));
         double difference = pa - pb;
         double statistic = Checks.ratio(test, difference, pooledSe);
@@ -53,14 +49,10 @@ public final class ProportionTests {
      */
     public static TestResult twoProportionZAtLeastPooled(ProportionCounts a, ProportionCounts b, Alternative alternative) {
         String test = "two-proportion z, variances at least pooled";
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "trials in the first sample", a.trials(), 1);
-        Checks.atLeast(test, "trials in the second sample", b.trials(), 1);
+        checkTwo(test, a, b, alternative);
         double pa = a.rate();
         double pb = b.rate();
-        double pooled = ((double) a.successes() + b.successes()) / ((double) a.trials() + b.trials());
+        double pooled = pooledRate(a, b);
         double vp = pooled * (1 - pooled);
         double se = Math.sqrt(Math.max(pa * (1 - pa), vp) / a.trials() + Math.max(pb * (1 - pb), vp) / b.trials());
         double difference = pa - pb;
@@ -84,5 +76,17 @@ public final class ProportionTests {
         double nullSe = Math.sqrt(p0 * (1 - p0) / sample.trials());
         double se = Math.sqrt(rate * (1 - rate) / sample.trials());
         return TestResult.of(test, (rate - p0) / nullSe, Z, alternative, rate, se);
+    }
+
+    private static void checkTwo(String test, ProportionCounts a, ProportionCounts b, Alternative alternative) {
+        Checks.notNull("a", a);
+        Checks.notNull("b", b);
+        Checks.notNull("alternative", alternative);
+        Checks.atLeast(test, "trials in the first sample", a.trials(), 1);
+        Checks.atLeast(test, "trials in the second sample", b.trials(), 1);
+    }
+
+    private static double pooledRate(ProportionCounts a, ProportionCounts b) {
+        return ((double) a.successes() + b.successes()) / ((double) a.trials() + b.trials());
     }
 }

@@ -25,13 +25,7 @@ public final class RatioTests {
      */
     public static TestResult twoSample(RatioMoments a, RatioMoments b, Alternative alternative) {
         String test = "delta-method Welch t";
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "units in the first sample", a.count(), 2);
-        Checks.atLeast(test, "units in the second sample", b.count(), 2);
-        requireDenominator(test, a);
-        requireDenominator(test, b);
+        checkTwo(test, a, b, alternative);
         double sa = a.linearisedVariance();
         double sb = b.linearisedVariance();
         if (sa == 0 && sb == 0) {
@@ -70,13 +64,7 @@ public final class RatioTests {
      */
     public static TestResult twoSampleUnderNull(RatioMoments a, RatioMoments b, Alternative alternative) {
         String test = "delta-method pooled t";
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "units in the first sample", a.count(), 2);
-        Checks.atLeast(test, "units in the second sample", b.count(), 2);
-        requireDenominator(test, a);
-        requireDenominator(test, b);
+        checkTwo(test, a, b, alternative);
         double na = a.count();
         double nb = b.count();
         double sumY = na * a.meanY() + nb * b.meanY();
@@ -130,6 +118,16 @@ public final class RatioTests {
         double difference = sample.ratio() - value;
         return TestResult.of(test, Checks.ratio(test, difference, se), sample.count() - 1.0, alternative,
                 sample.ratio(), se);
+    }
+
+    private static void checkTwo(String test, RatioMoments a, RatioMoments b, Alternative alternative) {
+        Checks.notNull("a", a);
+        Checks.notNull("b", b);
+        Checks.notNull("alternative", alternative);
+        Checks.atLeast(test, "units in the first sample", a.count(), 2);
+        Checks.atLeast(test, "units in the second sample", b.count(), 2);
+        requireDenominator(test, a);
+        requireDenominator(test, b);
     }
 
     private static void requireDenominator(String test, RatioMoments m) {

@@ -35,8 +35,7 @@ class ScipyCrossCheckTest {
 
     @Test
     void crossingProbabilitiesAgreeWithScipy(@TempDir Path dir) throws Exception {
-        String python = System.getenv().getOrDefault("INTERIM_PYTHON", "python3");
-        Assumptions.assumeTrue(hasScipy(python),
+        Assumptions.assumeTrue(dev.interim.reference.PythonReference.imports("scipy.stats"),
                 "SKIPPED: python3 with SciPy is not available here; scripts/test installs it (Debian python3-scipy)");
 
         SplittableRandom random = new SplittableRandom(314159);
@@ -72,7 +71,7 @@ class ScipyCrossCheckTest {
             schedules.add(fractions);
         }
 
-        JsonNode output = run(python, dir, JSON.writeValueAsString(input));
+        JsonNode output = dev.interim.reference.PythonReference.run("mvn_crossing.py", dir, JSON.writeValueAsString(input), 300);
         System.out.println("SciPy " + output.get("scipy").asText() + " cross-checked " + designs.size() + " designs");
         for (int i = 0; i < designs.size(); i++) {
             JsonNode crossed = output.get("crossed").get(i);
@@ -101,33 +100,5 @@ class ScipyCrossCheckTest {
             t[i] = i == looks - 1 ? 1 : t[i] / sum;
         }
         return t;
-    }
-
-    private static boolean hasScipy(String python) {
-        try {
-            Process p = new ProcessBuilder(python, "-c", "import scipy.stats").redirectErrorStream(true).start();
-            p.getInputStream().readAllBytes();
-            return p.waitFor(60, TimeUnit.SECONDS) && p.exitValue() == 0;
-        } catch (IOException e) {
-            return false;
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-            return false;
-        }
-    }
-
-    private static JsonNode run(String python, Path dir, String input) throws Exception {
-        Path script = dir.resolve("mvn_crossing.py");
-        try (InputStream in = ScipyCrossCheckTest.class.getResourceAsStream("/reference/mvn_crossing.py")) {
-            Files.write(script, in.readAllBytes());
-        }
-        Path stdin = dir.resolve("designs.json");
-        Files.writeString(stdin, input);
-        Process p = new ProcessBuilder(python, script.toString()).redirectInput(stdin.toFile()).start();
-        byte[] out = p.getInputStream().readAllBytes();
-        byte[] err = p.getErrorStream().readAllBytes();
-        assertThat(p.waitFor(300, TimeUnit.SECONDS)).as("SciPy finished").isTrue();
-        assertThat(p.exitValue()).as(new String(err, StandardCharsets.UTF_8)).isZero();
-        return JSON.readTree(out);
     }
 }

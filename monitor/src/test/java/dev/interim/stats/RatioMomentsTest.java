@@ -201,8 +201,7 @@ class RatioMomentsTest {
 
     @Test
     void welchTOnTheLinearisationAgreesWithNumpy(@TempDir Path dir) throws Exception {
-        String python = System.getenv().getOrDefault("INTERIM_PYTHON", "python3");
-        Assumptions.assumeTrue(hasNumpy(python),
+        Assumptions.assumeTrue(dev.interim.reference.PythonReference.imports("numpy"),
                 "SKIPPED: python3 with NumPy is not available here (Debian python3-numpy); the delta-method "
                         + "cross-check needs it");
         // A small fixed data set: per-unit error counts (x) over requests (y), two arms.
@@ -219,7 +218,7 @@ class RatioMomentsTest {
                 ya.add(ys[a][i]);
             }
         }
-        JsonNode out = run(python, dir, JSON.writeValueAsString(input));
+        JsonNode out = dev.interim.reference.PythonReference.run("delta_ratio.py", dir, JSON.writeValueAsString(input), 120);
         System.out.println("NumPy " + out.get("numpy").asText() + ": delta-method variance cross-checked on 2 arms");
         RatioMoments a = RatioMoments.of(xs[0], ys[0]);
         RatioMoments b = RatioMoments.of(xs[1], ys[1]);
@@ -246,33 +245,5 @@ class RatioMomentsTest {
         assertThat(floored.standardError()).isCloseTo(out.get("se_floored").asDouble(), within(1e-12));
         assertThat(floored.degreesOfFreedom()).isCloseTo(out.get("df_floored").asDouble(), within(1e-9));
         assertThat(floored.standardError()).as("never below the statistic's").isGreaterThanOrEqualTo(pooled.standardError());
-    }
-
-    private static boolean hasNumpy(String python) {
-        try {
-            Process p = new ProcessBuilder(python, "-c", "import numpy").redirectErrorStream(true).start();
-            p.getInputStream().readAllBytes();
-            return p.waitFor(60, TimeUnit.SECONDS) && p.exitValue() == 0;
-        } catch (IOException e) {
-            return false;
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-            return false;
-        }
-    }
-
-    private static JsonNode run(String python, Path dir, String input) throws Exception {
-        Path script = dir.resolve("delta_ratio.py");
-        try (InputStream in = RatioMomentsTest.class.getResourceAsStream("/reference/delta_ratio.py")) {
-            Files.write(script, in.readAllBytes());
-        }
-        Path stdin = dir.resolve("arms.json");
-        Files.writeString(stdin, input);
-        Process p = new ProcessBuilder(python, script.toString()).redirectInput(stdin.toFile()).start();
-        byte[] out = p.getInputStream().readAllBytes();
-        byte[] err = p.getErrorStream().readAllBytes();
-        assertThat(p.waitFor(120, TimeUnit.SECONDS)).as("NumPy finished").isTrue();
-        assertThat(p.exitValue()).as(new String(err, StandardCharsets.UTF_8)).isZero();
-        return JSON.readTree(out);
     }
 }
