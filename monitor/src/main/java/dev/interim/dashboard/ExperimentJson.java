@@ -107,7 +107,8 @@ final class ExperimentJson {
         }
         return new ComparisonView(text(c, "arm"), text(c, "metric"), c.path("kind").asText(null), c.path("role").asText(null),
                 c.path("worse").asText(null), c.path("action").asText(null), number(c.get("alpha"), Double.NaN),
-                c.path("alternative").asText(null), c.path("spending").asText(null), decision(c.get("decision")), looks);
+                c.path("alternative").asText(null), c.path("spending").asText(null), decision(c.get("decision")), looks,
+                c.path("skipped").asText(null));
     }
 
     private static LookPoint point(JsonNode p) {

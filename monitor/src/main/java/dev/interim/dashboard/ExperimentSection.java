@@ -133,7 +133,7 @@ final class ExperimentSection {
             counts += "<span class=\"line\">" + h(v.control()) + ": " + h(Wording.observed(v, c.metric(), v.control())) + "</span>";
         }
         if (looks.isEmpty()) {
-            item(out, "look", "none yet");
+            item(out, "look", c.skipped() == null ? "none yet" : "none yet: " + h(c.skipped()));
             wide(out, "counted at the last look", counts);
             return out.append("</dl>\n").toString();
         }

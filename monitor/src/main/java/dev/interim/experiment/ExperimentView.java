@@ -37,13 +37,20 @@ public record ExperimentView(String id, String control, List<String> treatments,
 
     /**
      * One treatment on one metric: its design and its looks so far (the most recent ones; older looks
-     * are thinned once there are more than {@link Comparison#KEPT_POINTS}).
+     * are thinned once there are more than {@link Comparison#KEPT_POINTS}), and why the last look due
+     * found nothing to look at (too few observations, no variance yet), or null.
      */
     public record ComparisonView(String arm, String metric, String kind, String role, String worse, String action,
                                  double alpha, String alternative, String spending, Decision decision,
-                                 List<LookPoint> looks) {
+                                 List<LookPoint> looks, String skipped) {
         public ComparisonView {
             looks = List.copyOf(looks);
+        }
+
+        /** A view whose last look due was not skipped. */
+        public ComparisonView(String arm, String metric, String kind, String role, String worse, String action,
+                              double alpha, String alternative, String spending, Decision decision, List<LookPoint> looks) {
+            this(arm, metric, kind, role, worse, action, alpha, alternative, spending, decision, looks, null);
         }
     }
 }

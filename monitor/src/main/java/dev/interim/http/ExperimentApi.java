@@ -213,6 +213,9 @@ public final class ExperimentApi {
             cn.put("alternative", c.alternative());
             cn.put("spending", c.spending());
             cn.put("decision", c.decision().label());
+            if (c.skipped() != null) {
+                cn.put("skipped", c.skipped());
+            }
             List<LookPoint> looks = c.looks();
             if (!looks.isEmpty()) {
                 cn.set("last", point(looks.get(looks.size() - 1)));

@@ -119,6 +119,18 @@ class DashboardPageTest {
                 .contains("arms assigned per event");
     }
 
+    @Test
+    void aComparisonThatCouldNotLookYetSaysWhy() {
+        ExperimentView v = Scenarios.perUnitRatio();
+        ComparisonView c = v.comparisons().get(0);
+        ComparisonView waiting = new ComparisonView(c.arm(), c.metric(), c.kind(), c.role(), c.worse(), c.action(), c.alpha(),
+                c.alternative(), c.spending(), c.decision(), List.of(), "no variance yet: every event so far is a failure in both arms");
+        ExperimentView w = new ExperimentView(v.id(), v.control(), v.treatments(), v.dryRun(), v.held(), v.holdReason(),
+                v.sampleRatio(), v.lastLook(), v.exposures(), v.tallies(), List.of(waiting), v.assignment());
+        String card = Xhtml.text(Xhtml.parse(ExperimentSection.html(w, 0, NOW)).byClass("comparison").get(0));
+        assertThat(card).contains("none yet: no variance yet: every event so far is a failure in both arms");
+    }
+
     /** The relative change in words; the numbers are chosen by hand, so the expected texts are too. */
     @Test
     void theRelativeChangeReadsAsAPercentWithItsInterval() {

@@ -100,6 +100,7 @@ class SmallSampleRegressionTest {
                 new Tally.Rate(new ProportionCounts(0, 2000)), T);
         assertThat(r).isEmpty();
         assertThat(c.skipped()).startsWith("no variance yet").contains("a failure");
+        assertThat(c.view().skipped()).as("the API and the dashboard show it").isEqualTo(c.skipped());
     }
 
     @Test
