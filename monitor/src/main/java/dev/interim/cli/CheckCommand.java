@@ -96,6 +96,8 @@ public final class CheckCommand implements Callable<Integer> {
     /** The warning for an experiment assigned per event while events carry a unit (valid, but often a slip). */
     static final String PER_EVENT_WITH_UNITS = "events carry a unit but arms are assigned per event: if units keep their "
             + "arm, set assignment: unit";
+    /** Below this, a look leans on a normal approximation a few skewed values do not support (common practice: 30). */
+    static final long FEW_PER_ARM = 30;
 
     private static void experiment(PrintWriter out, ExperimentConfig config, boolean unitMapped) {
         ExperimentDefinition e = config.definition();
@@ -113,6 +115,11 @@ public final class CheckCommand implements Callable<Integer> {
                 : "per event (each event is assigned on its own: events are independent observations)"));
         if (e.assignment() == Assignment.EVENT && unitMapped) {
             out.println("  WARN: " + PER_EVENT_WITH_UNITS);
+        }
+        if (e.minPerArm() < FEW_PER_ARM) {
+            out.println("  WARN: min_per_arm " + e.minPerArm() + " lets looks run on fewer than " + FEW_PER_ARM
+                    + " observations per arm, where the normal approximation behind every boundary does not hold for"
+                    + " skewed values; the measured error rates in the README use 100");
         }
         out.println("  looks every " + Durations.format(e.lookEvery()) + " once every arm has " + e.minPerArm()
                 + "; sample ratio mismatch holds decisions below p = " + Decimals.plain(e.sampleRatioThreshold()));

@@ -164,6 +164,16 @@ class CheckCommandTest {
         assertThat(example.out()).doesNotContain("WARN");
     }
 
+    /** Valid, so exit 0; a min_per_arm below 30 gets a warning (the README's figures use 100). */
+    @Test
+    void aMinimumBelowThirtyPerArmIsWarnedAbout() throws IOException {
+        String yaml = Files.readString(example()).replace("min_per_arm: 500", "min_per_arm: 5");
+        Path f = Files.writeString(Files.createTempFile("interim-few", ".yaml"), yaml);
+        Cli.Result r = check(ENV, "--config", f.toString());
+        assertThat(r.exit()).as(r.err()).isZero();
+        assertThat(r.out()).contains("  WARN: min_per_arm 5 lets looks run on fewer than 30 observations per arm");
+    }
+
     @Test
     void withoutSecretsTheExampleChecksInAnEmptyEnvironment() {
         Cli.Result r = check(Map.of(), "--config", example().toString(), "--without-secrets");
