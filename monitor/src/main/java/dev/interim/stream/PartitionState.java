@@ -6,7 +6,6 @@ import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.MetricKind;
 import dev.interim.experiment.Tally;
 import dev.interim.experiment.TallyForm;
-import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RunningMoments;
 import dev.interim.stats.RunningRatioMoments;
@@ -520,7 +519,6 @@ final class PartitionState implements ObservationSink {
             }
             StateCodec.UnitEncoder encoder = e.encoder();
             Metric[] rates = e.unitRates;
-            Metric[] totals = e.unitTotals;
             t.drainChanged(slot -> {
                 int met = 0;
                 for (Metric m : rates) {

@@ -15,13 +15,12 @@ import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.Tally;
-import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RatioMoments;
 import java.io.IOException;
-import java.math.BigDecimal;
-import java.math.BigInteger;
-import java.math.MathContext;
+
+
+
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
@@ -268,14 +267,6 @@ class ReplayScenarioTest {
                 sxy += (u[x] - mx) * (u[y] - my);
             }
             return new RatioMoments(users.size(), mx, my, sxx, syy, sxy);
-        }
-
-        /** Mean Σx/n and M2 = Σx² − (Σx)²/n, exact in integers, rounded once. */
-        private static Moments exactMoments(long n, long sum, long sumOfSquares) {
-            BigInteger nm2 = BigInteger.valueOf(n).multiply(BigInteger.valueOf(sumOfSquares))
-                    .subtract(BigInteger.valueOf(sum).pow(2));
-            double m2 = new BigDecimal(nm2).divide(BigDecimal.valueOf(n), MathContext.DECIMAL128).doubleValue();
-            return new Moments(n, (double) sum / n, n == 1 ? 0 : m2);
         }
     }
 
