@@ -160,4 +160,21 @@ class SmallSampleRegressionTest {
         }
         assertThat(rejected).as("both outcomes occur").isBetween(20, 380);
     }
+
+    @Test
+    void aPoweredHorizonIsTheLargestThatTheLooksOfTheLatestHalfOfTheDataImplied() {
+        // A heavy-tailed variance estimated lower at a later look must not shorten the horizon that an
+        // earlier look on at least half as much data implied; looks on less than half are forgotten.
+        Comparison c = comparison(metric("latency", MetricKind.EVENT_MEAN, SpendingFunction.parse("obf"),
+                new Horizon.Powered(0.8, 0.5, 10)), 2);
+        LookResult a = c.look(new Tally.Mean(Moments.of(100, 5, 10)), new Tally.Mean(Moments.of(100, 5, 10)), T).orElseThrow();
+        LookResult b = c.look(new Tally.Mean(Moments.of(150, 5, 5)), new Tally.Mean(Moments.of(150, 5, 5)), T).orElseThrow();
+        // The need implied at a, 100/fraction_a observations per arm, still holds at b (100 ≥ 150/2).
+        assertThat(b.look().fraction()).isCloseTo(150 / (100 / a.look().fraction()), org.assertj.core.api.Assertions.within(1e-12));
+        LookResult c3 = c.look(new Tally.Mean(Moments.of(400, 5, 5)), new Tally.Mean(Moments.of(400, 5, 5)), T).orElseThrow();
+        // At 400 per arm both earlier looks are on less than half the data: the look's own information.
+        double own = a.look().fraction() * c3.estimate().conservativeInformation() / a.estimate().conservativeInformation();
+        assertThat(c3.look().fraction()).isCloseTo(own, org.assertj.core.api.Assertions.within(1e-12));
+        assertThat(own).as("the example is not capped").isLessThan(Math.min(1, 400 / Comparison.FULL_COUNT));
+    }
 }
