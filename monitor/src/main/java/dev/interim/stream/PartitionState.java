@@ -694,7 +694,10 @@ final class PartitionState implements ObservationSink {
     record Partial(PartialKey key, Tally tally) {
     }
 
-    /** Suffixes of a ratio's two totals columns on the units changelog (metric names hold no '/'). */
-    static final String NUMERATOR = "/numerator";
-    static final String DENOMINATOR = "/denominator";
+    /**
+     * Suffixes of a ratio's two totals columns on the units changelog, numerator then denominator
+     * (metric names hold no '/'): short, since every changed unit's record repeats them.
+     */
+    static final String NUMERATOR = "/x";
+    static final String DENOMINATOR = "/y";
 }
