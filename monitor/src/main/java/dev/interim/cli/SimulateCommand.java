@@ -47,7 +47,7 @@ import picocli.CommandLine.Spec;
             "Effects are treatment minus control, as drift (the effect over its standard error at the planned "
                     + "maximum: the mean of Z at the final look) or, for metrics planned with power and effect, in "
                     + "the metric's units. Without --effects: 0 and 0.5, 1 and 1.5 times the configured effect, or "
-                    + "without one the drift a single look needs for 90% power, in the direction the test watches.",
+                    + "without one the drift a single look needs for 90%% power, in the direction the test watches.",
             "The same --stream gives the same numbers with any number of threads.",
         },
         footerHeading = "%nExamples:%n",
