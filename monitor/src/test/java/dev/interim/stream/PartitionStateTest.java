@@ -79,6 +79,7 @@ class PartitionStateTest {
                   - {name: ms, kind: event-mean, role: guardrail, worse: higher, field: /ms, cap: 600, max_per_arm: 1000}
                   - {name: fare, kind: ratio, role: primary, worse: lower, numerator: /fare, denominator: /seats,
                      cap: 400, max_per_arm: 1000}
+                  - {name: tips, kind: unit-total, role: guardrail, worse: lower, field: /tip, cap: 30, max_per_arm: 1000}
             """;
     private static final List<ExperimentDefinition> DEFINITIONS =
             ConfigLoader.parseWithoutSecrets(YAML).experiments().stream().map(e -> e.definition()).toList();
@@ -230,6 +231,22 @@ class PartitionStateTest {
         assertThat(((Tally.Rate) tally(s, FARES, "x", PartialKey.EXPOSURES)).count()).as("units").isEqualTo(3);
     }
 
+    @Test
+    void aUnitTotalsCapAppliesToTheUnitsTotalNotToEachValue() {
+        // By hand: ana tips 20 then 25 (total 45, capped at 30); ben tips 10; cy nothing (0).
+        PartitionState s = state();
+        s.exposure(FARES, "x", "ana");
+        s.value(FARES, "x", "ana", "tips", 20);
+        s.value(FARES, "x", "ana", "tips", 25);
+        s.exposure(FARES, "x", "ben");
+        s.value(FARES, "x", "ben", "tips", 10);
+        s.exposure(FARES, "x", "cy");
+        Moments tips = ((Tally.Mean) tally(s, FARES, "x", "tips")).moments();
+        assertThat(tips.count()).isEqualTo(3);
+        assertThat(tips.mean()).isCloseTo((30 + 10 + 0) / 3.0, within(1e-12));
+        assertThat(tips.sumSquaredDeviations()).isCloseTo(Moments.ofValues(30, 10, 0).sumSquaredDeviations(), within(1e-9));
+    }
+
     // ---- what a commit writes, and what a restore reads -----------------------------------------
 
     @Test
@@ -325,6 +342,9 @@ class PartitionStateTest {
                     }
                     if ((mask & 8) != 0) {
                         calls.add(new Call(3, FARES, arm, unit, "fare", v));
+                    }
+                    if ((mask & 6) == 6) {
+                        calls.add(new Call(2, FARES, arm, unit, "tips", v / 20));
                     }
                     return new Step(calls);
                 });
