@@ -32,7 +32,7 @@ class ReplaySpeedCheck {
                 .write(events, true);
         assertThat(lines).isGreaterThan(1_000_000);
         // As configured, every comparison is decided within minutes; with large horizons, every look computes.
-        Path longer = Scenario.configWith(dir, "max_per_arm: 3000", "max_per_arm: 400000");
+        Path longer = Scenario.configWith(dir, "max_per_arm: 650", "max_per_arm: 100000");   // users: 250,000 in all
         for (Path config : new Path[] {Scenario.config(), longer}) {
             InterimConfig c = ConfigLoader.loadWithoutSecrets(config);
             for (int run = 1; run <= 2; run++) {
