@@ -8,6 +8,7 @@ import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
 import dev.interim.experiment.Tally;
+import dev.interim.experiment.TallyForm;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import java.time.Clock;
@@ -262,9 +263,20 @@ public final class JudgeStage implements Runnable, AutoCloseable {
 
     /** Per-arm tallies of every metric and the exposures, summed over the input partitions. */
     private Merged merge(ExperimentDefinition definition) {
+        // What each key's tally must hold now: a source not yet rewritten since a metric's kind or
+        // the experiment's assignment changed still holds partials of the old form, which do not add.
+        Map<String, TallyForm> forms = new HashMap<>();
+        for (String arm : definition.arms()) {
+            forms.put(arm + '\u001f' + PartialKey.EXPOSURES, TallyForm.RATE);
+            definition.metrics().forEach(metric -> forms.put(arm + '\u001f' + metric.name(), definition.form(metric)));
+        }
         Map<String, Tally> sum = new HashMap<>();
         for (Map<String, Tally> bySource : partials.getOrDefault(definition.id(), Map.of()).values()) {
-            bySource.forEach((k, t) -> sum.merge(k, t, JudgeStage::plus));
+            bySource.forEach((k, t) -> {
+                if (t.form() == forms.get(k)) {
+                    sum.merge(k, t, JudgeStage::plus);
+                }
+            });
         }
         Merged m = new Merged();
         for (String arm : definition.arms()) {
@@ -272,7 +284,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             m.exposures.put(arm, exposures == null ? 0L : exposures.count());
             definition.metrics().forEach(metric -> {
                 Tally t = sum.get(arm + '\u001f' + metric.name());
-                if (t != null && t.form() == definition.form(metric)) {
+                if (t != null) {
                     m.tallies.computeIfAbsent(metric.name(), x -> new HashMap<>()).put(arm, t);
                 }
             });
@@ -285,14 +297,10 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         final Map<String, Map<String, Tally>> tallies = new HashMap<>();
     }
 
-    /**
-     * Two partials of one key summed. Partials of different forms (a source not yet rewritten after
-     * the metric's kind or the experiment's assignment changed) do not add: the one of the current
-     * form is kept by {@link #merge}, which drops a sum of the wrong form.
-     */
+    /** Two partials of one key, of one form ({@link #merge} leaves out those of another), summed. */
     static Tally plus(Tally a, Tally b) {
         if (a.form() != b.form()) {
-            return b;
+            throw new IllegalArgumentException("partials of different forms do not add: " + a.form() + " and " + b.form());
         }
         if (a instanceof Tally.Ratio x && b instanceof Tally.Ratio y) {
             return new Tally.Ratio(x.moments().plus(y.moments()));
