@@ -56,11 +56,6 @@ public record Estimate(double effect, double standardError, double z, double deg
     /** Confidence of the upper variance limits behind {@link #conservativeInformation()}. */
     static final double INFORMATION_CONFIDENCE = 0.8;
 
-    /** Information I = 1/se². */
-    public double information() {
-        return 1 / (standardError * standardError);
-    }
-
     /**
      * The relative change, treatment / control − 1; NaN unless both levels are positive (a ratio of
      * levels of different signs, or over zero, is no change in percent).

@@ -119,15 +119,7 @@ public final class MeanTests {
     public static TestResult welchT(Moments a, Moments b, Alternative alternative) {
         String test = "Welch t";
         checkTwo(test, a, b, alternative, 2);
-        double va = a.variance() / a.count();
-        double vb = b.variance() / b.count();
-        double se = Math.sqrt(va + vb);
-        double difference = a.mean() - b.mean();
-        double statistic = Checks.ratio(test, difference, se);
-        double df = se > 0.0
-                ? (va + vb) * (va + vb) / (va * va / (a.count() - 1) + vb * vb / (b.count() - 1))
-                : (double) a.count() + b.count() - 2;
-        return TestResult.of(test, statistic, df, alternative, difference, se);
+        return welchFromVariances(test, a.variance(), a.count(), b.variance(), b.count(), a.mean() - b.mean(), alternative);
     }
 
     /**

@@ -8,10 +8,9 @@ package dev.interim.stats;
  * <p>The two-sample test is Welch's t on the linearised unit values (X − R·Y)/ȳ of each arm: the
  * estimate is R_a − R_b, its standard error √(Var(R_a) + Var(R_b)) by the delta method (Deng,
  * Knoblich &amp; Lu 2018, KDD), and the degrees of freedom Welch–Satterthwaite's on those variances,
- * so that small samples are judged on t as the event-level means are. When one arm shows no spread
- * yet and the other does, its variance is not taken as zero (a zero sample variance from a few units
- * is no evidence of a zero population variance): the linearised variances are pooled, as in the
- * pooled t test.
+ * so that small samples are judged on t as the event-level means are. The monitor uses
+ * {@link #twoSampleAtLeastPooled}: the same with each arm's variance at least the one pooled under no
+ * change ({@link #twoSampleUnderNull}).
  */
 public final class RatioTests {
     private RatioTests() {
@@ -32,22 +31,7 @@ public final class RatioTests {
             throw new InsufficientDataException(test + ": no unit differs from another in either arm yet, so the"
                     + " ratio has no variance; wait for data that vary");
         }
-        double na = a.count();
-        double nb = b.count();
-        double df;
-        if (sa == 0 || sb == 0) {
-            df = na + nb - 2;
-            double pooled = ((na - 1) * sa + (nb - 1) * sb) / df;
-            sa = pooled;
-            sb = pooled;
-        } else {
-            double va = sa / na;
-            double vb = sb / nb;
-            df = (va + vb) * (va + vb) / (va * va / (na - 1) + vb * vb / (nb - 1));
-        }
-        double se = Math.sqrt(sa / na + sb / nb);
-        double difference = a.ratio() - b.ratio();
-        return TestResult.of(test, Checks.ratio(test, difference, se), df, alternative, difference, se);
+        return MeanTests.welchFromVariances(test, sa, a.count(), sb, b.count(), a.ratio() - b.ratio(), alternative);
     }
 
     /**

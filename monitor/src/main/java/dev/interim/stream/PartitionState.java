@@ -82,7 +82,6 @@ final class PartitionState implements ObservationSink {
     private static final class Metric {
         final String name;
         final MetricKind kind;
-        final TallyForm form;
         final MetricDefinition definition;
         /** True for a ratio of per-unit sums (its numerator and denominator in two totals columns). */
         final boolean unitRatio;
@@ -98,7 +97,6 @@ final class PartitionState implements ObservationSink {
             this.name = definition.name();
             this.kind = definition.kind();
             this.definition = definition;
-            this.form = form;
             this.unitRatio = form == TallyForm.RATIO && column >= 0;
             this.slot = slot;
             this.column = column;
