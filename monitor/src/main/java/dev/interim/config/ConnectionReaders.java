@@ -195,9 +195,10 @@ final class ConnectionReaders {
                 throw t.error("'" + name + "' is also the " + (name.equals(decisions) ? "decisions_topic" : "dead_letter_topic")
                         + ": the daemon would read its own output; give them different topics");
             }
-            if (name.startsWith(statePrefix + ".")) {
-                throw t.error("'" + name + "' starts with the state_topic_prefix '" + statePrefix
-                        + ".', which names the daemon's own state topics; choose another state_topic_prefix");
+            // The state topics are <prefix>-tallies, -units, -looks and -deliveries (StreamSettings).
+            if (name.startsWith(statePrefix + "-")) {
+                throw t.error("'" + name + "' starts with '" + statePrefix + "-', the names of the daemon's own state topics ("
+                        + statePrefix + "-tallies, -units, -looks, -deliveries); choose another state_topic_prefix");
             }
             names.add(name);
         }
