@@ -10,8 +10,8 @@ import picocli.CommandLine.Spec;
 /**
  * The {@code interim} command line. Each subcommand is one class, listed once in {@code subcommands}.
  *
- * <p>Exit codes: 0 success, 2 bad usage or bad input (one line on stderr starting with
- * {@code "interim: "}), 1 an unexpected failure. See {@link UserErrorHandler}.
+ * <p>Exit codes: 0 success, 2 bad usage, bad input or an ordinary problem of the environment (one
+ * line on stderr starting with {@code "interim: "}), 1 an unexpected failure. See {@link UserErrorHandler}.
  */
 @Command(name = "interim",
         mixinStandardHelpOptions = true,
@@ -30,7 +30,7 @@ import picocli.CommandLine.Spec;
         exitCodeList = {
             "0:success",
             "1:unexpected failure (please report it)",
-            "2:bad usage or bad input",
+            "2:bad usage, bad input, or an ordinary problem of the environment (a port in use, brokers out of reach)",
         })
 public final class Interim implements Callable<Integer> {
     public static final String VERSION = "interim 0.1.0";

@@ -6,7 +6,7 @@ import dev.interim.daemon.Daemon;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.concurrent.Callable;
-import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.CompletableFuture;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
@@ -39,17 +39,29 @@ public final class RunCommand implements Callable<Integer> {
             throw new IllegalArgumentException("no configuration file at " + config + "; see config/interim.example.yaml");
         }
         InterimConfig loaded = ConfigLoader.load(config);
-        CountDownLatch stopped = new CountDownLatch(1);
+        CompletableFuture<Void> stopped = new CompletableFuture<>();
         Daemon daemon = Daemon.start(loaded, new Daemon.Options(dataDir, null, null));
         Thread hook = new Thread(() -> {
             daemon.close();
-            stopped.countDown();
+            stopped.complete(null);
         }, "interim-shutdown");
         Runtime.getRuntime().addShutdownHook(hook);
         spec.commandLine().getErr().println("interim: running; metrics at http://" + loaded.http().bindAddress() + ":"
                 + daemon.httpPort() + "/metrics (Ctrl-C to stop)");
         spec.commandLine().getErr().flush();
-        stopped.await();
+        CompletableFuture.anyOf(stopped, daemon.failure()).join();
+        if (!stopped.isDone()) {
+            // The daemon cannot go on (another daemon took its instance id, a stage stopped): stop it
+            // and exit with the reason, so that a supervisor sees the failure.
+            try {
+                Runtime.getRuntime().removeShutdownHook(hook);
+            } catch (IllegalStateException shuttingDown) {
+                stopped.join();
+                return Interim.OK;
+            }
+            daemon.close();
+            throw daemon.failure().join();
+        }
         return Interim.OK;
     }
 }

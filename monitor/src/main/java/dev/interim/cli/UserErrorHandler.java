@@ -1,5 +1,6 @@
 package dev.interim.cli;
 
+import dev.interim.daemon.EnvironmentException;
 import java.io.PrintWriter;
 import picocli.CommandLine;
 import picocli.CommandLine.IExecutionExceptionHandler;
@@ -11,8 +12,10 @@ import picocli.CommandLine.UnmatchedArgumentException;
 /**
  * Turns every failure into one line on stderr and an exit code. Bad usage (picocli's parameter
  * errors) and bad input (an {@link IllegalArgumentException} from the statistics, whose messages are
- * written for users) exit with 2 and point at the command's help; anything else is a bug and exits
- * with 1. Set the environment variable {@code INTERIM_DEBUG} to also get the stack trace of a bug.
+ * written for users) exit with 2 and point at the command's help; an ordinary problem of the
+ * environment ({@link EnvironmentException}: a port in use, brokers out of reach, ...) exits with 2
+ * and its message, which says what to do; anything else is a bug and exits with 1. Set the
+ * environment variable {@code INTERIM_DEBUG} to also get the stack trace of a bug.
  */
 final class UserErrorHandler implements IParameterExceptionHandler, IExecutionExceptionHandler {
     static final String PREFIX = "interim: ";
@@ -32,6 +35,14 @@ final class UserErrorHandler implements IParameterExceptionHandler, IExecutionEx
     public int handleExecutionException(Exception ex, CommandLine command, ParseResult parsed) {
         if (ex instanceof IllegalArgumentException) {
             return badInput(command, ex.getMessage());
+        }
+        if (ex instanceof EnvironmentException) {
+            PrintWriter err = command.getErr();
+            String what = ex.getMessage() == null || ex.getMessage().isBlank() ? "the environment is not as configured"
+                    : oneLine(ex.getMessage());
+            err.println(PREFIX + what);
+            err.flush();
+            return Interim.BAD_INPUT;
         }
         PrintWriter err = command.getErr();
         err.println(PREFIX + "unexpected failure (" + ex.getClass().getSimpleName()

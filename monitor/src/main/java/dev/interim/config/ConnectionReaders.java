@@ -19,7 +19,7 @@ import java.util.regex.Pattern;
 final class ConnectionReaders {
     static final Set<String> KAFKA_KEYS = keys("bootstrap_servers", "properties", "input_topics", "decisions_topic",
             "dead_letter_topic", "state_topic_prefix", "consumer_group_prefix", "commit_interval", "input_keyed_by_unit",
-            "tally_threads");
+            "tally_threads", "instance_id", "startup_timeout");
     static final Set<String> EVENTS_KEYS = keys("experiment", "arm", "unit", "time");
     static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env");
     static final Set<String> WEBHOOK_KEYS = keys("url", "signing_key_env", "timeout", "max_attempts", "initial_backoff");
@@ -30,6 +30,9 @@ final class ConnectionReaders {
     static final String DEFAULT_GROUP_PREFIX = "interim";
     static final Duration DEFAULT_COMMIT_INTERVAL = Duration.ofMillis(500);
     static final int DEFAULT_TALLY_THREADS = 1;
+    static final Duration DEFAULT_STARTUP_TIMEOUT = Duration.ofMinutes(5);
+    /** Kafka refuses a group.instance.id over 249 characters; stage suffixes and prefixes are added to this one. */
+    private static final Pattern INSTANCE_ID = Pattern.compile("[A-Za-z0-9._-]{1,200}");
     static final String DEFAULT_BIND_ADDRESS = "127.0.0.1";
     static final int DEFAULT_PORT = 8080;
 
@@ -69,8 +72,18 @@ final class ConnectionReaders {
                 .map(d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(1))).orElse(DEFAULT_COMMIT_INTERVAL);
         boolean keyed = k.optional("input_keyed_by_unit").map(ConfigNode::bool).orElse(false);
         int tallyThreads = k.optional("tally_threads").map(t -> t.smallInteger(1, 64)).orElse(DEFAULT_TALLY_THREADS);
+        Optional<String> instanceId = k.optional("instance_id").map(i -> {
+            String text = i.text();
+            if (!INSTANCE_ID.matcher(text).matches()) {
+                throw i.error("must be 1 to 200 letters, digits, '.', '_' or '-' (it names this daemon in the "
+                        + "consumer groups), such as interim-eu-1");
+            }
+            return text;
+        });
+        Duration startupTimeout = k.optional("startup_timeout")
+                .map(d -> d.duration(Duration.ofSeconds(1), Duration.ofHours(1))).orElse(DEFAULT_STARTUP_TIMEOUT);
         return new KafkaSettings(servers, properties, inputTopics, decisions, deadLetters, statePrefix, groupPrefix,
-                commit, keyed, tallyThreads);
+                commit, keyed, tallyThreads, instanceId, startupTimeout);
     }
 
     private static List<String> servers(ConfigNode at) {

@@ -2,6 +2,7 @@ package dev.interim.config;
 
 import java.time.Duration;
 import java.util.List;
+import java.util.Optional;
 
 /**
  * How the daemon reaches Kafka and which topics it uses.
@@ -17,11 +18,15 @@ import java.util.List;
  * @param inputKeyedByUnit the producers key input records by unit id (per-unit metrics need it)
  * @param tallyThreads tally stages in this process, each a member of the tally group with its share
  *                     of the input partitions
+ * @param instanceId this daemon's stable identity in the consumer groups (static membership); empty:
+ *                   derived from the host name and the HTTP port
+ * @param startupTimeout how long {@code run} keeps trying to reach the brokers at start before it
+ *                       gives up
  */
 public record KafkaSettings(List<String> bootstrapServers, ClientProperties properties, List<String> inputTopics,
                             String decisionsTopic, String deadLetterTopic, String stateTopicPrefix,
                             String consumerGroupPrefix, Duration commitInterval, boolean inputKeyedByUnit,
-                            int tallyThreads) {
+                            int tallyThreads, Optional<String> instanceId, Duration startupTimeout) {
 
     public KafkaSettings {
         bootstrapServers = List.copyOf(bootstrapServers);

@@ -73,6 +73,10 @@ public final class DaemonClient {
         }
         String path = "/api/experiments/" + URLEncoder.encode(id, StandardCharsets.UTF_8).replace("+", "%20");
         HttpResponse<byte[]> response = get(path);
+        String elsewhere = error(response);
+        if (response.statusCode() == 404 && elsewhere != null && elsewhere.contains("decided by another instance")) {
+            throw new IllegalArgumentException("the daemon at " + address() + ": " + elsewhere);
+        }
         if (response.statusCode() == 404) {
             List<String> known = experimentIds();
             throw new IllegalArgumentException("the daemon at " + address() + " decides no experiment '" + id + "'; "
@@ -118,7 +122,25 @@ public final class DaemonClient {
         return e.getMessage() == null || e.getMessage().isBlank() ? e.getClass().getSimpleName() : e.getMessage();
     }
 
+    /** The {@code error} of a JSON error answer, or null. */
+    private static String error(HttpResponse<byte[]> response) {
+        if (response.statusCode() == 200) {
+            return null;
+        }
+        try {
+            JsonNode error = JSON.readTree(response.body()).path("error");
+            return error.isTextual() ? error.asText() : null;
+        } catch (IOException | RuntimeException e) {
+            return null;
+        }
+    }
+
     private JsonNode json(String path, HttpResponse<byte[]> response) {
+        if (response.statusCode() == 503 && error(response) != null) {
+            // The daemon is up but owns nothing yet (it connects to Kafka or joins its group).
+            throw new IllegalArgumentException("the daemon at " + address() + " is not ready: " + error(response)
+                    + "; try again in a few seconds");
+        }
         if (response.statusCode() != 200) {
             throw new IllegalArgumentException("the daemon at " + address() + " answered HTTP " + response.statusCode() + " to GET " + path
                     + "; is this the address of an Interim daemon?");

@@ -17,6 +17,7 @@ import java.util.Comparator;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
 import java.util.concurrent.CompletableFuture;
 import java.util.concurrent.ExecutionException;
 import java.util.concurrent.TimeUnit;
@@ -41,7 +42,16 @@ import java.util.function.Supplier;
  *       {@code http.admin_token_env}, compared in constant time. Without a configured token they are
  *       disabled.</li>
  * </ul>
- * Numbers that are not finite (an infinite boundary before any α is spent) are written as null; a
+ * While this instance holds no assignment in the judge group yet (it is connecting to the brokers,
+ * joining the group or in a rebalance) it decides nothing it can show: {@code GET /api/experiments},
+ * one experiment and the operator actions on a configured experiment answer 503 with the reason and
+ * {@code Retry-After} (RFC 9110, section 10.2.3), never an empty list that reads as "no experiments".
+ * Once assigned, the list holds the experiments decided here (with several daemons, possibly none),
+ * and the header {@code Interim-Decided-Elsewhere} counts the configured ones decided by another
+ * instance; one experiment or an action on one decided elsewhere is 404 (read) or 409 (action), naming
+ * the instance that decides it when the group says so; an experiment not configured is 404.
+ *
+ * <p>Numbers that are not finite (an infinite boundary before any α is spent) are written as null; a
  * relative change that is undefined (a level not positive) has null value and ends. Tallies: a rate
  * shows {@code count} and {@code successes}; a mean {@code count}, {@code mean}, {@code sum},
  * {@code sd}; a ratio of per-unit sums {@code count} and {@code units} (the same number),
@@ -61,7 +71,40 @@ public final class ExperimentApi {
         CompletableFuture<List<DecisionRecord>> forceStop(String experiment, String arm, String reason);
 
         CompletableFuture<List<DecisionRecord>> acknowledge(String experiment);
+
+        /** Whether this instance holds its share of the work now and, when not, why. */
+        default Ownership ownership() {
+            return Ownership.ASSIGNED;
+        }
+
+        /** Every configured experiment id, decided here or not. */
+        default Set<String> configured() {
+            return views().keySet();
+        }
+
+        /** The instance that decides a configured experiment not decided here, when known. */
+        default Optional<String> ownerOf(String experiment) {
+            return Optional.empty();
+        }
     }
+
+    /**
+     * Whether this instance holds its assignment in the judge group.
+     *
+     * @param reason why not, such as "joining the consumer group 'interim-judge'" (empty when assigned)
+     */
+    public record Ownership(boolean assigned, String reason) {
+        public static final Ownership ASSIGNED = new Ownership(true, "");
+
+        public static Ownership notYet(String reason) {
+            return new Ownership(false, reason);
+        }
+    }
+
+    /** Seconds a client is asked to wait before it asks again while this instance owns nothing yet. */
+    public static final int RETRY_AFTER_SECONDS = 5;
+    /** Header of the list: how many configured experiments another instance decides. */
+    public static final String ELSEWHERE_HEADER = "Interim-Decided-Elsewhere";
 
     private final Operations operations;
     private final Supplier<Optional<String>> adminToken;
@@ -83,18 +126,48 @@ public final class ExperimentApi {
     }
 
     private Response list(Request request) throws Exception {
+        Ownership ownership = operations.ownership();
+        if (!ownership.assigned()) {
+            return notYet(ownership);
+        }
+        Map<String, ExperimentView> views = operations.views();
         ArrayNode out = JSON.createArrayNode();
-        operations.views().values().stream().sorted(Comparator.comparing(ExperimentView::id))
+        views.values().stream().sorted(Comparator.comparing(ExperimentView::id))
                 .forEach(v -> out.add(summary(v, false)));
-        return Response.json(200, JSON.writeValueAsBytes(out));
+        long elsewhere = operations.configured().stream().filter(id -> !views.containsKey(id)).count();
+        return Response.json(200, JSON.writeValueAsBytes(out)).withHeader(ELSEWHERE_HEADER, Long.toString(elsewhere));
     }
 
     private Response one(Request request) throws Exception {
         ExperimentView v = operations.views().get(request.param("id"));
         if (v == null) {
-            return error(404, "no experiment '" + request.param("id") + "' is decided here; GET /api/experiments lists them");
+            return notHere(request.param("id"), false);
         }
         return Response.json(200, JSON.writeValueAsBytes(summary(v, true)));
+    }
+
+    /** 503 with the reason and Retry-After: this instance owns nothing yet. */
+    private static Response notYet(Ownership ownership) throws Exception {
+        ObjectNode body = JSON.createObjectNode()
+                .put("error", "this instance owns no experiments yet: " + ownership.reason())
+                .put("retry_after_seconds", RETRY_AFTER_SECONDS);
+        return Response.json(503, JSON.writeValueAsBytes(body)).withHeader("Retry-After", Integer.toString(RETRY_AFTER_SECONDS));
+    }
+
+    /** An experiment not decided here: not configured (404), not yet assigned (503), or decided elsewhere. */
+    private Response notHere(String id, boolean action) throws Exception {
+        String shown = id.length() > 130 ? id.substring(0, 128) + "…" : id;
+        if (!operations.configured().contains(id)) {
+            return error(404, "no experiment '" + shown + "' is configured; GET /api/experiments lists the ones decided here");
+        }
+        Ownership ownership = operations.ownership();
+        if (!ownership.assigned()) {
+            return notYet(ownership);
+        }
+        String where = operations.ownerOf(id).map(o -> "another instance (" + o + ")").orElse("another instance");
+        return action
+                ? error(409, "experiment '" + shown + "' is decided by " + where + ", not this one; send the action there")
+                : error(404, "experiment '" + shown + "' is decided by " + where + ", not this one; ask that instance");
     }
 
     private enum Action { HOLD, RESUME, ACKNOWLEDGE, STOP }
@@ -109,7 +182,7 @@ public final class ExperimentApi {
         }
         String id = request.param("id");
         if (!operations.views().containsKey(id)) {
-            return error(404, "no experiment '" + id + "' is decided here; GET /api/experiments lists them");
+            return notHere(id, true);
         }
         String reason = "operator";
         if ((action == Action.HOLD || action == Action.STOP) && request.body().length > 0) {

@@ -71,8 +71,23 @@ public final class HttpEndpoint implements AutoCloseable {
         }
     }
 
-    /** A complete answer. */
-    public record Response(int status, String contentType, byte[] body) {
+    /** A complete answer; {@code headers} are added to the response as they are (names as written). */
+    public record Response(int status, String contentType, byte[] body, Map<String, String> headers) {
+        public Response {
+            headers = Map.copyOf(headers);
+        }
+
+        public Response(int status, String contentType, byte[] body) {
+            this(status, contentType, body, Map.of());
+        }
+
+        /** The same answer with one more header, such as {@code Retry-After} on a 503. */
+        public Response withHeader(String name, String value) {
+            Map<String, String> more = new java.util.LinkedHashMap<>(headers);
+            more.put(name, value);
+            return new Response(status, contentType, body, more);
+        }
+
         public static Response text(int status, String text) {
             return new Response(status, "text/plain; charset=utf-8", text.getBytes(StandardCharsets.UTF_8));
         }
@@ -236,6 +251,7 @@ public final class HttpEndpoint implements AutoCloseable {
 
     private static void send(HttpExchange exchange, Response response) throws IOException {
         exchange.getResponseHeaders().set("Content-Type", response.contentType());
+        response.headers().forEach((name, value) -> exchange.getResponseHeaders().set(name, value));
         byte[] body = response.body();
         exchange.sendResponseHeaders(response.status(), body.length == 0 ? -1 : body.length);
         if (body.length > 0) {

@@ -3,6 +3,7 @@ package dev.interim.signal;
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.Decision;
 import dev.interim.experiment.DecisionRecord;
+import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
@@ -20,7 +21,7 @@ import java.time.Duration;
 import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
-import java.util.concurrent.atomic.AtomicLong;
+import java.util.function.BooleanSupplier;
 import java.util.function.ToDoubleFunction;
 import java.util.regex.Pattern;
 
@@ -28,8 +29,8 @@ import java.util.regex.Pattern;
  * The daemon's meters, scraped in the Prometheus text format (every meter is listed in
  * docs/metrics.md). Names are ours, under the prefix {@code interim_}.
  *
- * <p>Gauges read the registered {@link ExperimentMonitor}s at scrape time, so they always show the
- * state of the last look without being pushed. They hold their monitors strongly: Micrometer's gauges
+ * <p>Gauges read the owned {@link ExperimentMonitor}s at scrape time, so they always show the
+ * state of the last look without being pushed. They hold what they read strongly: Micrometer's gauges
  * hold weakly by default and would report NaN once nothing else referred to the object.
  *
  * <p>Values Prometheus gets where the statistics have none: before a comparison's first look its
@@ -38,6 +39,16 @@ import java.util.regex.Pattern;
  * look that has no α to spend yet; one-sided intervals have one infinite end. The text format
  * writes these as {@code NaN}, {@code +Inf} and {@code -Inf}; comparisons in PromQL treat NaN as
  * never equal, greater or less.
+ *
+ * <p>Ownership: with several daemons sharing the work, each experiment is decided by one of them,
+ * and ownership moves when they start, stop or crash. Every configured experiment keeps its series
+ * on every instance ({@link #expect}); while this instance does not decide it, {@code interim_owned}
+ * is 0 and the gauges that describe its state (decision, statistics, paging, held, sample ratio,
+ * observations) are NaN: "not known here", never a stale value that another instance may already
+ * have changed. PromQL's {@code max} and {@code sum} skip NaN beside a number, so
+ * {@code max by (experiment) (interim_paging)} over all instances is the owner's value. Counters
+ * and {@code interim_dry_run} (from the configuration) keep their values. {@code interim_assigned}
+ * says whether this instance holds its share of the work at all (its consumer group assignment).
  *
  * <p>Reading a monitor from the scrape thread while the judge thread looks is a benign race: each
  * gauge reads one immutable look result or one enum, so a scrape may be one look behind, never
@@ -48,8 +59,31 @@ public final class Meters {
     private static final Pattern REASON = Pattern.compile("[a-z0-9_.-]{1,64}");
 
     private final PrometheusMeterRegistry registry;
-    private final Map<String, ExperimentMonitor> monitors = new ConcurrentHashMap<>();
-    private final Map<List<String>, AtomicLong> observations = new ConcurrentHashMap<>();
+    /** experiment → its slot: the monitor while this instance decides it, else none. */
+    private final Map<String, Slot> slots = new ConcurrentHashMap<>();
+    private final Map<List<String>, Observations> observations = new ConcurrentHashMap<>();
+    private volatile BooleanSupplier assigned = () -> false;
+
+    /** Where the gauges of one experiment read: the monitor while owned, null while not. */
+    private static final class Slot {
+        final ExperimentDefinition definition;
+        volatile ExperimentMonitor monitor;
+        /** "metric\u001farm" → the comparison of the owned monitor. */
+        final Map<String, ComparisonSlot> comparisons = new ConcurrentHashMap<>();
+
+        Slot(ExperimentDefinition definition) {
+            this.definition = definition;
+        }
+    }
+
+    private static final class ComparisonSlot {
+        volatile Comparison comparison;
+    }
+
+    /** The observation count of one arm on one metric at the last look; NaN while not owned. */
+    private static final class Observations {
+        volatile double value = Double.NaN;
+    }
 
     public Meters() {
         this(new PrometheusMeterRegistry(PrometheusConfig.DEFAULT));
@@ -58,6 +92,15 @@ public final class Meters {
     /** Meters on a registry of the caller's (which may carry JVM and process meters as well). */
     public Meters(PrometheusMeterRegistry registry) {
         this.registry = registry;
+        Gauge.builder("interim.assigned", this, m -> m.assigned.getAsBoolean() ? 1 : 0)
+                .description("1 while this instance holds its share of the work (its consumer group assignment, "
+                        + "even an empty one), 0 while it connects, joins the group or rebalances")
+                .strongReference(true).register(registry);
+    }
+
+    /** Where {@code interim_assigned} reads whether this instance holds its consumer group assignment. */
+    public void assignment(BooleanSupplier holdsAssignment) {
+        this.assigned = java.util.Objects.requireNonNull(holdsAssignment, "holdsAssignment");
     }
 
     public MeterRegistry registry() {
@@ -70,37 +113,88 @@ public final class Meters {
     }
 
     /**
-     * Registers the gauges of one experiment and of each of its comparisons. Registering an
-     * experiment id again (a restart with a new monitor) replaces the old gauges.
+     * Registers the series of a configured experiment, not (yet) decided here: {@code interim_owned}
+     * 0, its state gauges NaN, its counters at 0. Does nothing when it is registered already.
      */
-    public void register(ExperimentMonitor monitor) {
-        String experiment = monitor.definition().id();
-        if (monitors.containsKey(experiment)) {
-            remove(experiment);
+    public void expect(ExperimentDefinition definition) {
+        String experiment = definition.id();
+        if (slots.containsKey(experiment)) {
+            return;
         }
-        monitors.put(experiment, monitor);
+        Slot slot = new Slot(definition);
+        slots.put(experiment, slot);
         Tags tags = Tags.of("experiment", experiment);
+        gauge("interim.owned", "1 while this instance decides the experiment, 0 while another instance does or nobody yet",
+                tags, slot, x -> x.monitor == null ? 0 : 1);
         gauge("interim.sample.ratio.p.value", "p-value of the sample-ratio check at the last look (1 while too few exposures)",
-                tags, monitor, m -> m.sampleRatio().pValue());
+                tags, slot, x -> owned(x, m -> m.sampleRatio().pValue()));
         gauge("interim.sample.ratio.mismatch", "1 while the exposures contradict the configured split, else 0",
-                tags, monitor, m -> m.sampleRatio().mismatch() ? 1 : 0);
+                tags, slot, x -> owned(x, m -> m.sampleRatio().mismatch() ? 1 : 0));
         gauge("interim.held", "1 while automated decisions are held (sample-ratio mismatch or operator hold), else 0",
-                tags, monitor, m -> m.held() ? 1 : 0);
+                tags, slot, x -> owned(x, m -> m.held() ? 1 : 0));
         gauge("interim.dry.run", "1 when the experiment runs in dry-run mode (no kill webhook), else 0",
-                tags, monitor, m -> m.definition().dryRun() ? 1 : 0);
+                tags, slot, x -> x.definition.dryRun() ? 1 : 0);
         gauge("interim.paging", "1 while a comparison whose action is page or kill is stopped for harm, else 0",
-                tags, monitor, Meters::paging);
+                tags, slot, x -> owned(x, Meters::paging));
         // Created at zero so that "no events for N minutes" is an increase of 0, not an absent series.
         acceptedCounter(experiment);
         lookCounter(experiment);
-        for (Comparison c : monitor.comparisons()) {
-            registerComparison(experiment, c);
+        for (Comparison c : new ExperimentMonitor(definition).comparisons()) {
+            ComparisonSlot cs = new ComparisonSlot();
+            slot.comparisons.put(c.metric().name() + '\u001f' + c.arm(), cs);
+            registerComparison(experiment, c, cs);
         }
+    }
+
+    /**
+     * This instance decides the experiment now, with this monitor: its gauges read it. Registers the
+     * experiment first when it was not expected; counters keep their values.
+     */
+    public void own(ExperimentMonitor monitor) {
+        expect(monitor.definition());
+        Slot slot = slots.get(monitor.definition().id());
+        for (Comparison c : monitor.comparisons()) {
+            ComparisonSlot cs = slot.comparisons.get(c.metric().name() + '\u001f' + c.arm());
+            if (cs != null) {
+                cs.comparison = c;
+            }
+        }
+        slot.monitor = monitor;
+    }
+
+    /**
+     * This instance no longer decides the experiment (another one does, or nobody yet): its series
+     * stay, {@code interim_owned} 0 and its state gauges NaN.
+     */
+    public void disown(String experiment) {
+        Slot slot = slots.get(experiment);
+        if (slot != null) {
+            slot.monitor = null;
+            slot.comparisons.values().forEach(cs -> cs.comparison = null);
+        }
+        observations.forEach((k, v) -> {
+            if (k.get(0).equals(experiment)) {
+                v.value = Double.NaN;
+            }
+        });
+    }
+
+    /**
+     * Registers the gauges of one experiment and of each of its comparisons, owned by this instance.
+     * Registering an experiment id again (a restart with a new monitor) replaces the old series,
+     * counters included.
+     */
+    public void register(ExperimentMonitor monitor) {
+        String experiment = monitor.definition().id();
+        if (slots.containsKey(experiment)) {
+            remove(experiment);
+        }
+        own(monitor);
     }
 
     /** Removes every meter of an experiment (no longer configured). */
     public void remove(String experiment) {
-        monitors.remove(experiment);
+        slots.remove(experiment);
         observations.keySet().removeIf(k -> k.get(0).equals(experiment));
         for (Meter m : registry.getMeters()) {
             if (experiment.equals(m.getId().getTag("experiment"))) {
@@ -143,7 +237,7 @@ public final class Meters {
         Timer.builder("interim.look.duration").description("Time taken by one look of an experiment, all comparisons included")
                 .tag("experiment", experiment).register(registry).record(took);
         tallies.forEach((metric, byArm) -> byArm.forEach((arm, tally) ->
-                observationGauge(experiment, arm, metric).set(tally.count())));
+                observationGauge(experiment, arm, metric).value = tally.count()));
     }
 
     /** One decision record published (a look's state change, a hold or a resume). */
@@ -159,36 +253,36 @@ public final class Meters {
                 .tag("outcome", result.outcome().label()).register(registry).increment();
     }
 
-    private void registerComparison(String experiment, Comparison c) {
+    private void registerComparison(String experiment, Comparison c, ComparisonSlot slot) {
         Tags tags = Tags.of("experiment", experiment, "arm", c.arm(), "metric", c.metric().name(),
                 "role", c.metric().role().name().toLowerCase(), "action", c.metric().action().name().toLowerCase());
         gauge("interim.estimate", "Effect estimate at the last look: treatment minus control (or baseline), in the metric's units",
-                tags, c, x -> last(x, r -> r.estimate().effect()));
+                tags, slot, x -> last(x, r -> r.estimate().effect()));
         gauge("interim.interval.lower", "Lower end of the repeated confidence interval of the effect",
-                tags, c, x -> last(x, r -> r.interval().lower()));
+                tags, slot, x -> last(x, r -> r.interval().lower()));
         gauge("interim.interval.upper", "Upper end of the repeated confidence interval of the effect",
-                tags, c, x -> last(x, r -> r.interval().upper()));
+                tags, slot, x -> last(x, r -> r.interval().upper()));
         gauge("interim.statistic", "Test statistic at the last look, on the standard normal scale",
-                tags, c, x -> last(x, r -> r.estimate().z()));
+                tags, slot, x -> last(x, r -> r.estimate().z()));
         gauge("interim.boundary", "Boundary at the last look on the standard normal scale, by side",
-                tags.and("side", "upper"), c, x -> last(x, r -> r.look().upper()));
+                tags.and("side", "upper"), slot, x -> last(x, r -> r.look().upper()));
         gauge("interim.boundary", "Boundary at the last look on the standard normal scale, by side",
-                tags.and("side", "lower"), c, x -> last(x, r -> r.look().lower()));
+                tags.and("side", "lower"), slot, x -> last(x, r -> r.look().lower()));
         gauge("interim.alpha.spent", "Type I error spent so far by the comparison's boundaries",
-                tags, c, x -> x.last() == null ? 0 : x.last().look().alphaSpent());
+                tags, slot, x -> compared(x, k -> k.last() == null ? 0 : k.last().look().alphaSpent()));
         gauge("interim.information.fraction", "Information fraction of the last look (1 = planned maximum)",
-                tags, c, x -> last(x, r -> r.look().fraction()));
+                tags, slot, x -> last(x, r -> r.look().fraction()));
         gauge("interim.decision", "Decision state: 0 continue, 1 stop-harm, 2 stop-benefit, 3 stop-futility, 4 complete, 5 held",
-                tags, c, x -> x.decision().code());
+                tags, slot, x -> compared(x, k -> k.decision().code()));
         gauge("interim.last.look", "Number of the comparison's last look (0 before the first)",
-                tags, c, x -> x.last() == null ? 0 : x.last().look().number());
+                tags, slot, x -> compared(x, k -> k.last() == null ? 0 : k.last().look().number()));
     }
 
-    private AtomicLong observationGauge(String experiment, String arm, String metric) {
+    private Observations observationGauge(String experiment, String arm, String metric) {
         return observations.computeIfAbsent(List.of(experiment, arm, metric), k -> {
-            AtomicLong value = new AtomicLong();
+            Observations value = new Observations();
             gauge("interim.observations", "Observations (events or units) of one arm on one metric at the last look",
-                    Tags.of("experiment", experiment, "arm", arm, "metric", metric), value, AtomicLong::get);
+                    Tags.of("experiment", experiment, "arm", arm, "metric", metric), value, o -> o.value);
             return value;
         });
     }
@@ -207,9 +301,24 @@ public final class Meters {
         Gauge.builder(name, source, value).description(description).tags(tags).strongReference(true).register(registry);
     }
 
-    private static double last(Comparison c, ToDoubleFunction<LookResult> value) {
-        LookResult r = c.last();
-        return r == null ? Double.NaN : value.applyAsDouble(r);
+    /** NaN while not owned here. */
+    private static double owned(Slot slot, ToDoubleFunction<ExperimentMonitor> value) {
+        ExperimentMonitor m = slot.monitor;
+        return m == null ? Double.NaN : value.applyAsDouble(m);
+    }
+
+    /** NaN while not owned here. */
+    private static double compared(ComparisonSlot slot, ToDoubleFunction<Comparison> value) {
+        Comparison c = slot.comparison;
+        return c == null ? Double.NaN : value.applyAsDouble(c);
+    }
+
+    /** NaN while not owned here, and before the comparison's first look. */
+    private static double last(ComparisonSlot slot, ToDoubleFunction<LookResult> value) {
+        return compared(slot, c -> {
+            LookResult r = c.last();
+            return r == null ? Double.NaN : value.applyAsDouble(r);
+        });
     }
 
     static double paging(ExperimentMonitor monitor) {

@@ -35,6 +35,7 @@ import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.KafkaException;
 import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.FencedInstanceIdException;
 import org.apache.kafka.common.errors.WakeupException;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -57,6 +58,8 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final Clock clock;
     private final StageEvents events;
     private final Function<DecisionRecord, byte[]> decisionJson;
+    private final String member;
+    private volatile boolean assigned;
     private final AtomicBoolean running = new AtomicBoolean(true);
     /** experiment → source → (arm, metric) → latest cumulative partial. */
     private final Map<String, Map<String, Map<String, Tally>>> partials = new HashMap<>();
@@ -69,11 +72,29 @@ public final class JudgeStage implements Runnable, AutoCloseable {
 
     public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
                       Function<DecisionRecord, byte[]> decisionJson) {
+        this(settings, catalog, clock, events, decisionJson, null);
+    }
+
+    /**
+     * @param member this instance's static member id in the judge group ({@code group.instance.id}),
+     *               stable across restarts of the same daemon; null for a dynamic member
+     */
+    public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
+                      Function<DecisionRecord, byte[]> decisionJson, String member) {
         this.settings = settings;
         this.catalog = catalog;
         this.clock = clock;
         this.events = events;
         this.decisionJson = decisionJson;
+        this.member = member;
+    }
+
+    /**
+     * True while this instance holds its assignment in the judge group (its share of the
+     * experiments, possibly none); false while it connects, joins or rebalances.
+     */
+    public boolean assigned() {
+        return assigned;
     }
 
     /** The experiments this instance decides now (read by meters; do not mutate). */
@@ -131,8 +152,8 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     @Override
     public void run() {
         try {
-            consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.judgeGroup()));
-            producer = Clients.transactionalProducer(settings, "judge");
+            consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.judgeGroup(), member));
+            producer = Clients.transactionalProducer(settings, "judge", member);
             consumer.subscribe(List.of(settings.talliesTopic()), new Rebalance());
             while (running.get()) {
                 for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
@@ -146,6 +167,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 throw e;
             }
         } finally {
+            assigned = false;
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
             Clients.quietly(LOG, () -> consumer.close(Duration.ofSeconds(5)));
         }
@@ -230,11 +252,14 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             }
             producer.commitTransaction();
             pending.clear();
+        } catch (FencedInstanceIdException e) {
+            done.forEach(c -> c.done().completeExceptionally(e));
+            throw e;   // another process uses this instance's member id: stopping is the only safe answer
         } catch (KafkaException e) {
             LOG.warn("judge commit failed ({}); restoring owned experiments from the committed look history", e.toString());
             Clients.quietly(LOG, producer::abortTransaction);
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-            producer = Clients.transactionalProducer(settings, "judge");
+            producer = Clients.transactionalProducer(settings, "judge", member);
             done.forEach(c -> c.done().completeExceptionally(e));
             Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
             disown(assigned);
@@ -372,12 +397,22 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final class Rebalance implements ConsumerRebalanceListener {
         @Override
         public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
+            if (!partitions.isEmpty() && partitions.containsAll(consumer.assignment())) {
+                assigned = false;   // everything leaves: a rebalance that gives out everything again
+            }
             disown(partitions);
         }
 
         @Override
         public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
             own(partitions);
+            assigned = true;   // called after every rebalance, with what was added (possibly nothing)
+        }
+
+        @Override
+        public void onPartitionsLost(Collection<TopicPartition> partitions) {
+            assigned = false;
+            disown(partitions);
         }
     }
 

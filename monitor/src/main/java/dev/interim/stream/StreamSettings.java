@@ -61,6 +61,15 @@ public record StreamSettings(String bootstrapServers, Map<String, Object> client
         return groupPrefix + "-judge";
     }
 
+    /**
+     * Checks the client properties ({@code kafka.properties}) as the Kafka clients will read them.
+     *
+     * @throws org.apache.kafka.common.config.ConfigException naming the property and the problem
+     */
+    public void checkClientProperties() {
+        Clients.check(this);
+    }
+
     /** The tallies (and looks) partition that owns {@code experiment}: one owner per experiment. */
     public int stateFor(String experiment) {
         return Math.floorMod(experiment.hashCode(), statePartitions);

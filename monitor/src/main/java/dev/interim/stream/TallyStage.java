@@ -23,6 +23,7 @@ import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.KafkaException;
 import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.FencedInstanceIdException;
 import org.apache.kafka.common.errors.WakeupException;
 import org.apache.kafka.common.header.internals.RecordHeader;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
@@ -54,6 +55,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private final Catalog catalog;
     private final EventReader reader;
     private final StageEvents events;
+    private final String member;
     private final AtomicBoolean running = new AtomicBoolean(true);
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
@@ -66,17 +68,27 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private long lastCommit = System.nanoTime();
 
     public TallyStage(StreamSettings settings, Catalog catalog, EventReader reader, StageEvents events) {
+        this(settings, catalog, reader, events, null);
+    }
+
+    /**
+     * @param member this stage's static member id in the tally group ({@code group.instance.id}),
+     *               stable across restarts of the same daemon and distinct between stages; null for
+     *               a dynamic member
+     */
+    public TallyStage(StreamSettings settings, Catalog catalog, EventReader reader, StageEvents events, String member) {
         this.settings = settings;
         this.catalog = catalog;
         this.reader = reader;
         this.events = events;
+        this.member = member;
     }
 
     @Override
     public void run() {
         try {
-            consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.tallyGroup()));
-            producer = Clients.transactionalProducer(settings, "tally");
+            consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.tallyGroup(), member));
+            producer = Clients.transactionalProducer(settings, "tally", member);
             consumer.subscribe(settings.inputTopics(), new Rebalance());
             while (running.get()) {
                 ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
@@ -189,6 +201,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
             });
             uncommittedAccepted.clear();
             uncommittedRejected.clear();
+        } catch (FencedInstanceIdException e) {
+            throw e;   // another process uses this stage's member id: stopping is the only safe answer
         } catch (KafkaException e) {
             LOG.warn("tally commit failed ({}); rebuilding the assigned partitions from the committed state", e.toString());
             recover();
@@ -203,7 +217,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         uncommittedAccepted.clear();
         uncommittedRejected.clear();
         Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-        producer = Clients.transactionalProducer(settings, "tally");
+        producer = Clients.transactionalProducer(settings, "tally", member);
         Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
         states.clear();
         restore(assigned);

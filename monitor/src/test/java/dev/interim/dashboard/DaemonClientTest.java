@@ -43,6 +43,7 @@ class DaemonClientTest {
         ExperimentApi.Operations operations = (ExperimentApi.Operations) Proxy.newProxyInstance(
                 ExperimentApi.Operations.class.getClassLoader(), new Class<?>[] {ExperimentApi.Operations.class},
                 (proxy, method, args) -> method.getName().equals("views") ? views
+                        : method.isDefault() ? java.lang.reflect.InvocationHandler.invokeDefault(proxy, method, args)
                         : CompletableFuture.failedFuture(new UnsupportedOperationException(method.getName())));
         ExperimentApi.install(endpoint, operations, Optional::empty);
         return endpoint;

@@ -192,6 +192,55 @@ class MetersTest {
         assertThat(Scrape.of(meters.scrape()).samples()).noneMatch(x -> EXPERIMENT.equals(x.labels().get("experiment")));
     }
 
+    /**
+     * Regression (issue 10, defect 4): the series of an experiment another instance decides used to
+     * vanish. They stay, with interim_owned 0 and the state gauges NaN (never a stale value), and come
+     * back to the owner's values when this instance owns the experiment again; counters keep counting.
+     */
+    @Test
+    void anExperimentNotOwnedHereKeepsItsSeriesWithNaNAndOwnedZero() {
+        Meters meters = new Meters();
+        ExperimentMonitor first = killOnHarm();
+        meters.expect(first.definition());
+        Scrape before = Scrape.of(meters.scrape());
+        assertThat(before.value("interim_owned", "experiment", EXPERIMENT)).isZero();
+        assertThat(before.value("interim_assigned")).isZero();
+        assertThat(before.one("interim_decision", CANDIDATE).value()).isEqualTo("NaN");
+        assertThat(before.one("interim_paging", "experiment", EXPERIMENT).value()).isEqualTo("NaN");
+        assertThat(before.one("interim_held", "experiment", EXPERIMENT).value()).isEqualTo("NaN");
+        assertThat(before.value("interim_dry_run", "experiment", EXPERIMENT)).isZero();   // from the configuration
+        assertThat(before.value("interim_looks_total", "experiment", EXPERIMENT)).isZero();
+
+        meters.assignment(() -> true);
+        meters.own(first);
+        int looks = lookUntilStopped(first, meters);
+        meters.eventsAccepted(EXPERIMENT, 500);
+        Scrape owned = Scrape.of(meters.scrape());
+        assertThat(owned.value("interim_assigned")).isEqualTo(1);
+        assertThat(owned.value("interim_owned", "experiment", EXPERIMENT)).isEqualTo(1);
+        assertThat(owned.value("interim_decision", CANDIDATE)).isEqualTo(1);
+        assertThat(owned.value("interim_paging", "experiment", EXPERIMENT)).isEqualTo(1);
+
+        meters.disown(EXPERIMENT);   // a rebalance gave the experiment to another instance
+        Scrape elsewhere = Scrape.of(meters.scrape());
+        assertThat(elsewhere.value("interim_owned", "experiment", EXPERIMENT)).isZero();
+        for (String name : List.of("interim_decision", "interim_estimate", "interim_statistic", "interim_alpha_spent",
+                "interim_last_look", "interim_observations")) {
+            assertThat(elsewhere.one(name, CANDIDATE).value()).as(name).isEqualTo("NaN");
+        }
+        assertThat(elsewhere.one("interim_paging", "experiment", EXPERIMENT).value()).isEqualTo("NaN");
+        assertThat(elsewhere.value("interim_looks_total", "experiment", EXPERIMENT)).isEqualTo(looks);
+        assertThat(elsewhere.value("interim_events_accepted_total", "experiment", EXPERIMENT)).isEqualTo(500);
+
+        ExperimentMonitor again = killOnHarm();   // owned again, restored afresh: its own values, counters kept
+        meters.own(again);
+        Scrape back = Scrape.of(meters.scrape());
+        assertThat(back.value("interim_owned", "experiment", EXPERIMENT)).isEqualTo(1);
+        assertThat(back.value("interim_decision", CANDIDATE)).isZero();
+        assertThat(back.value("interim_paging", "experiment", EXPERIMENT)).isZero();
+        assertThat(back.value("interim_looks_total", "experiment", EXPERIMENT)).isEqualTo(looks);
+    }
+
     private static String[] add(String[] labels, String key, String value) {
         String[] more = java.util.Arrays.copyOf(labels, labels.length + 2);
         more[labels.length] = key;

@@ -32,7 +32,7 @@ class MetricsReferenceTest {
         assertThat(documented).containsAll(scraped);
         assertThat(scraped).as("meters used by config/alerts.yml").containsAll(inRules);
         assertThat(inRules).contains("interim_paging", "interim_decision", "interim_held", "interim_sample_ratio_mismatch",
-                "interim_events_accepted_total");
+                "interim_events_accepted_total", "interim_owned", "interim_assigned");
     }
 
     /** Sample names of a scrape in which every meter has a series, with the summary's suffixes folded. */
