@@ -95,6 +95,13 @@ final class Clients {
      * @throws org.apache.kafka.common.config.ConfigException naming the property
      */
     static void check(StreamSettings settings) {
+        // As written (the deliveries log's producer), and as the stages' producers amend them.
+        Properties plain = new Properties();
+        plain.putAll(settings.clientProperties());
+        plain.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
+        plain.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+        plain.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+        new ProducerConfig(plain);
         new ProducerConfig(producerProperties(settings, "check", null));
         new ConsumerConfig(groupConsumer(settings, "check", "check"));
         Properties admin = new Properties();

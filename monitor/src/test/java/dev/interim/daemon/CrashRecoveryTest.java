@@ -72,6 +72,142 @@ class CrashRecoveryTest {
         }
     }
 
+    /**
+     * Issue 10, defect 4: after SIGKILL the restarted daemon owned nothing for 45–49 s (8–14 s after
+     * SIGTERM), and its API answered 200 [] meanwhile. With static membership (a stable
+     * kafka.instance_id) it owns its experiments again within seconds. Kafka's and Interim's own
+     * session settings here (30 s), not the short ones of the other tests: a dynamic member would
+     * wait that long. Measured from the restarted process's start (JVM start-up included) until
+     * GET /api/experiments lists all three experiments, and printed; the 10 s limit is the issue's
+     * acceptance limit. Meanwhile the API never answers 200 with fewer than the three experiments
+     * (it answers 503 with Retry-After until it owns them), and the tallies stay exact.
+     */
+    @Test
+    @Timeout(400)
+    void aRestartedDaemonOwnsItsExperimentsAgainWithinSeconds(@TempDir Path dir) throws Exception {
+        try (EmbeddedKafka broker = EmbeddedKafka.start(dir.resolve("broker"))) {
+            Map<String, double[]> truth = new HashMap<>();
+            DaemonProcess daemon = new DaemonProcess(broker.bootstrapServers(), dir, "");
+            Trickle trickle = new Trickle(broker.bootstrapServers(), truth);
+            daemon.start();
+            trickle.start();
+            Ownership first = awaitOwned(daemon, Duration.ofSeconds(120));
+            assertThat(first.owned()).as("the first start owns the experiments; log %s", daemon.log()).isTrue();
+            Thread.sleep(3000);   // events keep coming: the tally stage has a transaction open most of the time
+
+            long killedAt = System.nanoTime();
+            daemon.kill();
+            long restartedAt = System.nanoTime();
+            daemon.start();
+            Ownership afterKill = awaitOwned(daemon, Duration.ofSeconds(120));
+            double killOwned = seconds(afterKill.at() - restartedAt);
+            trickle.stop();
+            long countedAt = waitUntilCounted(daemon, truth, Duration.ofSeconds(120));
+            double killCounted = seconds(countedAt - restartedAt);
+            checkTallies(json.readTree(get(daemon.api()).body()), truth);
+
+            daemon.stop();   // SIGTERM: the orderly shutdown
+            long stoppedAt = System.nanoTime();
+            daemon.start();
+            Ownership afterTerm = awaitOwned(daemon, Duration.ofSeconds(120));
+            double termOwned = seconds(afterTerm.at() - stoppedAt);
+            daemon.kill();
+
+            System.out.printf(java.util.Locale.ROOT, "restart ownership: after SIGKILL the restarted process owned its 3 experiments "
+                            + "%.1f s after it was started (%.1f s after the kill), counted every event again after %.1f s; "
+                            + "after SIGTERM %.1f s; API answers while not owning: %d x 503, %d x 200 with fewer than 3%n",
+                    killOwned, seconds(afterKill.at() - killedAt), killCounted, termOwned,
+                    afterKill.unavailable() + afterTerm.unavailable(), afterKill.partial() + afterTerm.partial());
+            assertThat(afterKill.owned()).as("owned after SIGKILL; log %s", daemon.log()).isTrue();
+            assertThat(afterTerm.owned()).as("owned after SIGTERM; log %s", daemon.log()).isTrue();
+            assertThat(afterKill.partial() + afterTerm.partial()).as("200 answers listing fewer than the 3 experiments").isZero();
+            assertThat(killOwned).as("seconds from restart to owning again after SIGKILL (issue 10: at most 10)").isLessThanOrEqualTo(10);
+            assertThat(termOwned).as("seconds from SIGTERM to owning again after the restart").isLessThanOrEqualTo(10);
+        }
+    }
+
+    /** What a wait for ownership saw: when it ended, and the answers meanwhile. */
+    record Ownership(boolean owned, long at, int unavailable, int partial) {}
+
+    /** Polls GET /api/experiments until it lists the three experiments; 503s and short lists are counted. */
+    Ownership awaitOwned(DaemonProcess daemon, Duration limit) throws Exception {
+        long deadline = System.nanoTime() + limit.toNanos();
+        int unavailable = 0;
+        int partial = 0;
+        while (System.nanoTime() < deadline) {
+            try {
+                HttpResponse<String> r = get(daemon.api());
+                if (r.statusCode() == 503) {
+                    unavailable++;
+                    assertThat(r.headers().firstValue("Retry-After")).as("Retry-After of a 503").isPresent();
+                    assertThat(json.readTree(r.body()).path("error").asText()).startsWith("this instance owns no experiments yet: ");
+                } else if (r.statusCode() == 200) {
+                    JsonNode list = json.readTree(r.body());
+                    if (list.size() == EXPERIMENTS.length) {
+                        return new Ownership(true, System.nanoTime(), unavailable, partial);
+                    }
+                    partial++;
+                }
+            } catch (IOException notUpYet) {
+                // the process is starting: nothing listens yet
+            }
+            Thread.sleep(50);
+        }
+        return new Ownership(false, System.nanoTime(), unavailable, partial);
+    }
+
+    private long waitUntilCounted(DaemonProcess daemon, Map<String, double[]> truth, Duration limit) throws Exception {
+        long deadline = System.nanoTime() + limit.toNanos();
+        while (System.nanoTime() < deadline) {
+            HttpResponse<String> r = get(daemon.api());
+            if (r.statusCode() == 200 && complete(json.readTree(r.body()), truth)) {
+                return System.nanoTime();
+            }
+            Thread.sleep(100);
+        }
+        throw new AssertionError("not every event counted within " + limit + "; log " + daemon.log());
+    }
+
+    private HttpResponse<String> get(String uri) throws IOException, InterruptedException {
+        return http.send(HttpRequest.newBuilder(URI.create(uri)).timeout(Duration.ofSeconds(5)).GET().build(),
+                HttpResponse.BodyHandlers.ofString());
+    }
+
+    private static double seconds(long nanos) {
+        return nanos / 1e9;
+    }
+
+    /** Writes events at a steady pace on its own thread (about 2,000 a second) until stopped, recording them. */
+    static final class Trickle {
+        private final String bootstrap;
+        private final Map<String, double[]> truth;
+        private final java.util.concurrent.atomic.AtomicBoolean running = new java.util.concurrent.atomic.AtomicBoolean(true);
+        private Thread thread;
+
+        Trickle(String bootstrap, Map<String, double[]> truth) {
+            this.bootstrap = bootstrap;
+            this.truth = truth;
+        }
+
+        void start() {
+            thread = new Thread(() -> {
+                SplittableRandom random = new SplittableRandom(31);
+                int from = 0;
+                while (running.get()) {
+                    produce(bootstrap, truth, random, from, from + 200);
+                    from += 200;
+                    sleep(100);
+                }
+            }, "trickle");
+            thread.start();
+        }
+
+        void stop() throws InterruptedException {
+            running.set(false);
+            thread.join();
+        }
+    }
+
     /** Counts equal, successes equal, sums within 1e-9 relative. */
     static void checkTallies(JsonNode experiments, Map<String, double[]> truth) {
             for (String e : EXPERIMENTS) {
@@ -183,17 +319,34 @@ class CrashRecoveryTest {
         }
     }
 
-    /** The daemon as a separate JVM: started with `interim run`, killed with SIGKILL. */
+    /**
+     * The daemon as a separate JVM: started with `interim run`, killed with SIGKILL. It keeps its HTTP
+     * port across restarts, as a deployed daemon keeps its configuration, and so its default
+     * kafka.instance_id (host name and port).
+     */
     static final class DaemonProcess {
+        /** Short group sessions: a dynamic member that crashed is noticed in seconds. */
+        static final String SHORT_SESSIONS = """
+                      properties:
+                        session.timeout.ms: "6000"
+                        heartbeat.interval.ms: "1000"
+                    """;
         private final String bootstrap;
         private final Path dir;
+        private final String properties;
         private Process process;
         private int port;
         private int starts;
 
         DaemonProcess(String bootstrap, Path dir) {
+            this(bootstrap, dir, SHORT_SESSIONS);
+        }
+
+        /** @param properties the kafka.properties block of the configuration, or "" for the defaults */
+        DaemonProcess(String bootstrap, Path dir, String properties) {
             this.bootstrap = bootstrap;
             this.dir = dir;
+            this.properties = properties;
         }
 
         boolean alive() {
@@ -207,17 +360,17 @@ class CrashRecoveryTest {
         }
 
         void start() throws IOException {
-            try (ServerSocket s = new ServerSocket(0)) {
-                port = s.getLocalPort();
+            if (port == 0) {
+                try (ServerSocket s = new ServerSocket(0)) {
+                    port = s.getLocalPort();
+                }
             }
             Files.createDirectories(dir);
             Path config = dir.resolve("daemon-" + starts + ".yaml");
             Files.writeString(config, """
                     kafka:
                       bootstrap_servers: [%s]
-                      properties:
-                        session.timeout.ms: "6000"
-                        heartbeat.interval.ms: "1000"
+                    """.formatted(bootstrap) + properties + """
                       input_topics: [harbor.events]
                       decisions_topic: harbor.decisions
                       dead_letter_topic: harbor.dead
@@ -231,7 +384,7 @@ class CrashRecoveryTest {
                     http:
                       port: %d
                     experiments:
-                    """.formatted(bootstrap, port) + experiments());
+                    """.formatted(port) + experiments());
             String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
             process = new ProcessBuilder(java, "-Xmx384m", "-cp", System.getProperty("java.class.path"),
                     "dev.interim.cli.Interim", "run", "--config", config.toString(), "--data-dir", dir.resolve("unused").toString())
@@ -272,6 +425,14 @@ class CrashRecoveryTest {
 
         String api() {
             return "http://127.0.0.1:" + port + "/api/experiments";
+        }
+
+        String health() {
+            return "http://127.0.0.1:" + port + "/health";
+        }
+
+        Path log() {
+            return dir.resolve("daemon-" + (starts - 1) + ".log");
         }
 
         void kill() throws InterruptedException {
