@@ -61,6 +61,7 @@ class BrokerRestartAndRebalanceTest {
             first.start();
             second.start();
             CrashRecoveryTest.produce(bootstrap, truth, new SplittableRandom(8), 0, CrashRecoveryTest.EVENTS / 2);
+            checks.checkSharedOwnership(first, second);
             Thread.sleep(4000);
             second.stop();
             CrashRecoveryTest.produce(bootstrap, truth, new SplittableRandom(9), CrashRecoveryTest.EVENTS / 2,

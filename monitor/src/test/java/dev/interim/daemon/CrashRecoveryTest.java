@@ -111,7 +111,10 @@ class CrashRecoveryTest {
             daemon.start();
             Ownership afterTerm = awaitOwned(daemon, Duration.ofSeconds(120));
             double termOwned = seconds(afterTerm.at() - stoppedAt);
+            HttpResponse<String> health = get(daemon.health());
             daemon.kill();
+            assertThat(health.statusCode()).isEqualTo(200);
+            assertThat(health.body()).isEqualTo("ok: decides 3 of 3 configured experiment(s)");
 
             System.out.printf(java.util.Locale.ROOT, "restart ownership: after SIGKILL the restarted process owned its 3 experiments "
                             + "%.1f s after it was started (%.1f s after the kill), counted every event again after %.1f s; "
@@ -123,6 +126,39 @@ class CrashRecoveryTest {
             assertThat(afterKill.partial() + afterTerm.partial()).as("200 answers listing fewer than the 3 experiments").isZero();
             assertThat(killOwned).as("seconds from restart to owning again after SIGKILL (issue 10: at most 10)").isLessThanOrEqualTo(10);
             assertThat(termOwned).as("seconds from SIGTERM to owning again after the restart").isLessThanOrEqualTo(10);
+        }
+    }
+
+    /**
+     * Two daemons sharing the work: each experiment is listed by exactly one of them; the other
+     * counts it in Interim-Decided-Elsewhere and answers 404 naming the member that decides it (the
+     * judge group's static member id, kafka.instance_id + "-judge").
+     */
+    void checkSharedOwnership(DaemonProcess a, DaemonProcess b) throws Exception {
+        long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
+        JsonNode listA = null;
+        JsonNode listB = null;
+        while (System.nanoTime() < deadline) {
+            HttpResponse<String> ra = get(a.api());
+            HttpResponse<String> rb = get(b.api());
+            if (ra.statusCode() == 200 && rb.statusCode() == 200) {
+                listA = json.readTree(ra.body());
+                listB = json.readTree(rb.body());
+                if (listA.size() + listB.size() == EXPERIMENTS.length) {
+                    assertThat(ra.headers().firstValue("Interim-Decided-Elsewhere")).contains(Integer.toString(listB.size()));
+                    break;
+                }
+            }
+            Thread.sleep(200);
+        }
+        assertThat(listA.size() + listB.size()).as("each experiment decided by one of the two").isEqualTo(EXPERIMENTS.length);
+        for (String e : EXPERIMENTS) {
+            HttpResponse<String> fromA = get(a.api() + "/" + e);
+            HttpResponse<String> fromB = get(b.api() + "/" + e);
+            assertThat(List.of(fromA.statusCode(), fromB.statusCode())).as(e).containsExactlyInAnyOrder(200, 404);
+            HttpResponse<String> elsewhere = fromA.statusCode() == 404 ? fromA : fromB;
+            assertThat(json.readTree(elsewhere.body()).path("error").asText()).as(e)
+                    .startsWith("experiment '" + e + "' is decided by another instance (member '").contains("-judge' on ");
         }
     }
 
