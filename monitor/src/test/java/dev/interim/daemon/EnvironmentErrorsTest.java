@@ -166,6 +166,14 @@ class EnvironmentErrorsTest {
         }
     }
 
+    /** The default kafka.instance_id: stable for one host and port, distinct for another port. */
+    @Test
+    void theDefaultInstanceIdIsTheHostNameAndTheHttpPort() {
+        String id = Daemon.defaultInstanceId(8080);
+        assertThat(id).matches("[A-Za-z0-9._-]{1,180}-8080").isEqualTo(Daemon.defaultInstanceId(8080));
+        assertThat(Daemon.defaultInstanceId(8081)).isNotEqualTo(id);
+    }
+
     /** What one `interim run` printed, and its exit code. */
     record Run(int exit, String output) {
         /** The one line the command line printed for the error (the last line starting "interim: "). */
