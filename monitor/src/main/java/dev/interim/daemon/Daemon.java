@@ -175,10 +175,16 @@ public final class Daemon implements AutoCloseable {
                 .maxAttempts(w.maxAttempts()).backoff(w.initialBackoff(), w.initialBackoff().multipliedBy(32))
                 .requestTimeout(w.timeout()).deliveryLog(deliveries).build()).orElse(null);
         StageEvents events = new Events(meters, sender, webhooks, options.onDecision());
+        // A default id made of an HTTP port the system chose (http.port: 0) will not come back after a
+        // restart: such a daemon leaves its groups when it stops, instead of holding its partitions
+        // until its session expires.
+        boolean leave = config.kafka().instanceId().isEmpty() && config.http().port() == 0;
         for (int i = 0; i < config.kafka().tallyThreads(); i++) {
-            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events, tallyMember(i)));
+            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events, tallyMember(i))
+                    .leaveGroupOnClose(leave));
         }
-        judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write, judgeMember());
+        judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write, judgeMember())
+                .leaveGroupOnClose(leave);
         for (int i = 0; i < tallies.size(); i++) {
             start(tallies.get(i), tallies.size() == 1 ? "interim-tally" : "interim-tally-" + (i + 1),
                     settings.tallyGroup(), tallyMember(i));

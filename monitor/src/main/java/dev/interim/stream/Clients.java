@@ -3,7 +3,10 @@ package dev.interim.stream;
 import java.util.Properties;
 import java.util.UUID;
 import org.apache.kafka.clients.admin.AdminClientConfig;
+import java.time.Duration;
+import org.apache.kafka.clients.consumer.CloseOptions;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
@@ -108,6 +111,19 @@ final class Clients {
         admin.putAll(settings.clientProperties());
         admin.put(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, settings.bootstrapServers());
         new AdminClientConfig(admin);
+    }
+
+    /**
+     * Closes a stage's consumer. A static member stays in its group by default when it closes, so
+     * that its restart takes its partitions straight back; one whose id will not come back (it was
+     * not stable) leaves at once, so that the others need not wait for its session to expire.
+     */
+    static void close(KafkaConsumer<?, ?> consumer, boolean leaveGroup) {
+        CloseOptions options = CloseOptions.timeout(Duration.ofSeconds(5));
+        if (leaveGroup) {
+            options = options.withGroupMembershipOperation(CloseOptions.GroupMembershipOperation.LEAVE_GROUP);
+        }
+        consumer.close(options);
     }
 
     /** Runs a clean-up step whose failure must not hide the reason for stopping. */

@@ -59,6 +59,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final StageEvents events;
     private final Function<DecisionRecord, byte[]> decisionJson;
     private final String member;
+    private volatile boolean leaveGroupOnClose;
     private volatile boolean assigned;
     private final AtomicBoolean running = new AtomicBoolean(true);
     /** experiment → source → (arm, metric) → latest cumulative partial. */
@@ -169,7 +170,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         } finally {
             assigned = false;
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-            Clients.quietly(LOG, () -> consumer.close(Duration.ofSeconds(5)));
+            Clients.quietly(LOG, () -> Clients.close(consumer, leaveGroupOnClose));
         }
     }
 
@@ -414,6 +415,15 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             assigned = false;
             disown(partitions);
         }
+    }
+
+    /**
+     * Leave the group when closing, rather than stay as a static member until the session expires:
+     * for a member id that a restart will not use again. Call before {@link #run()}.
+     */
+    public JudgeStage leaveGroupOnClose(boolean leave) {
+        this.leaveGroupOnClose = leave;
+        return this;
     }
 
     @Override

@@ -56,6 +56,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private final EventReader reader;
     private final StageEvents events;
     private final String member;
+    private volatile boolean leaveGroupOnClose;
     private final AtomicBoolean running = new AtomicBoolean(true);
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
@@ -107,7 +108,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
             Clients.quietly(LOG, this::commit);
         } finally {
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-            Clients.quietly(LOG, () -> consumer.close(Duration.ofSeconds(5)));
+            Clients.quietly(LOG, () -> Clients.close(consumer, leaveGroupOnClose));
         }
     }
 
@@ -305,6 +306,15 @@ public final class TallyStage implements Runnable, AutoCloseable {
             pending.keySet().removeAll(partitions);
             partitions.forEach(states::remove);
         }
+    }
+
+    /**
+     * Leave the group when closing, rather than stay as a static member until the session expires:
+     * for a member id that a restart will not use again. Call before {@link #run()}.
+     */
+    public TallyStage leaveGroupOnClose(boolean leave) {
+        this.leaveGroupOnClose = leave;
+        return this;
     }
 
     @Override
