@@ -100,7 +100,17 @@ public final class Daemon implements AutoCloseable {
         for (int i = 0; i < config.kafka().tallyThreads(); i++) {
             tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events));
         }
-        judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write);
+        judge = new JudgeStage(settings, catalog, options.clock(), events, new dev.interim.stream.DecisionWriter() {
+            @Override
+            public byte[] decision(DecisionRecord record) {
+                return DecisionJson.write(record);
+            }
+
+            @Override
+            public byte[] acknowledgement(dev.interim.experiment.Acknowledgement acknowledgement) {
+                return DecisionJson.write(acknowledgement);
+            }
+        });
         http = HttpEndpoint.builder().bindAddress(config.http().bindAddress()).port(config.http().port())
                 .metrics(meters::scrape).start();
         ExperimentApi.install(http, new ExperimentApi.Operations() {
@@ -182,7 +192,7 @@ public final class Daemon implements AutoCloseable {
         List<DecisionRecord> undelivered = new ArrayList<>();
         try {
             dev.interim.stream.StateReader.readAll(settings, settings.decisionsTopic(), null, (key, value) -> {
-                if (value == null) {
+                if (value == null || DecisionJson.ACKNOWLEDGEMENT_TYPE.equals(DecisionJson.type(value))) {
                     return;
                 }
                 try {

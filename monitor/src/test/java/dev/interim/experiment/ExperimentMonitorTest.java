@@ -88,7 +88,7 @@ class ExperimentMonitorTest {
         assertThat(stop.intervalLower()).isPositive();           // the one-sided RCI excludes no harm
         assertThat(stop.intervalUpper()).isEqualTo(Double.POSITIVE_INFINITY);
         assertThat(stop.killRequested()).isTrue();
-        assertThat(stop.decisionId()).isEqualTo(DecisionRecord.id("checkout-canary", "candidate", "errors",
+        assertThat(stop.decisionId()).isEqualTo(DecisionRecord.id("", "checkout-canary", "candidate", "errors",
                 Decision.STOP_HARM, stop.look()));
         assertThat(monitor.comparison("errors", "candidate").decision()).isEqualTo(Decision.STOP_HARM);
         // Absorbing: more data, even reassuring data, changes nothing.
