@@ -231,7 +231,7 @@ public final class ExperimentMonitor {
         }
         String reason = operatorHold != null ? operatorHold : sampleRatio.mismatch() ? "sample-ratio mismatch" : null;
         return new ExperimentView(definition.id(), definition.control(), definition.treatments(), definition.dryRun(),
-                held(), reason, sampleRatio, lastLook, lastExposures, lastTallies, views, definition.assignment());
+                held(), reason, sampleRatio, lastLook, lastExposures, lastTallies, views, definition.assignment(), run);
     }
 
     public boolean held() {

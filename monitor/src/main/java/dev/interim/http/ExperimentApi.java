@@ -166,6 +166,9 @@ public final class ExperimentApi {
         v.treatments().forEach(treatments::add);
         n.put("assignment", v.assignment().label());
         n.put("dry_run", v.dryRun());
+        if (!v.run().isEmpty()) {
+            n.put("run", v.run());
+        }
         n.put("held", v.held());
         if (v.holdReason() != null) {
             n.put("hold_reason", v.holdReason());
