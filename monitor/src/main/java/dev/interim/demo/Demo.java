@@ -27,7 +27,7 @@ import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.serialization.StringSerializer;
 
 /**
- * The demonstration: the embedded broker, the invented "tidepool" rollout (three builds, synthetic
+ * The demonstration: the embedded broker, the invented "quorvel" rollout (three builds, synthetic
  * shoppers), a local stand-in for the flag service that receives and verifies kill webhooks, and the
  * daemon. Prints every decision record as one JSON line as it happens, and a summary at the end. It
  * ends once the harmful build has been switched off and the rest have had a few more looks, or

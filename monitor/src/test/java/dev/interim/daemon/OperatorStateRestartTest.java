@@ -43,8 +43,8 @@ import org.junit.jupiter.api.io.TempDir;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class OperatorStateRestartTest {
-    static final String EXPERIMENT = "quay-rollout";
-    static final String TOKEN = "quay-operator-token-5521";
+    static final String EXPERIMENT = "tamsel-rollout";
+    static final String TOKEN = "tamsel-operator-token-5521";
 
     private final ObjectMapper json = new ObjectMapper();
     private final HttpClient http = HttpClient.newBuilder().connectTimeout(Duration.ofSeconds(2)).build();
@@ -54,7 +54,7 @@ class OperatorStateRestartTest {
     void holdsAcknowledgementsAndLookHistorySurviveRestarts(@TempDir Path dir) throws Exception {
         try (EmbeddedKafka broker = EmbeddedKafka.start(dir.resolve("broker"))) {
             String bootstrap = broker.bootstrapServers();
-            Daemon daemon = new Daemon(bootstrap, dir.resolve("first"), "quay.state", "quay", "quay.decisions");
+            Daemon daemon = new Daemon(bootstrap, dir.resolve("first"), "tamsel.state", "tamsel", "tamsel.decisions");
             daemon.start();
             produce(bootstrap, 0, 6000, 0.01, 1);
             JsonNode before = waitFor(daemon, e -> looks(e) >= 3, "three looks");
@@ -80,7 +80,7 @@ class OperatorStateRestartTest {
             ExperimentView report = DaemonClient.at(daemon.address()).experiment(EXPERIMENT);
             assertThat(report.comparisons().get(0).looks()).as("what the report draws").hasSize(looksAtHold);
             Thread.sleep(4000);   // several looks are due meanwhile: none may write a record
-            assertThat(decisions(bootstrap, "quay.decisions")).extracting(r -> r.path("decision").asText())
+            assertThat(decisions(bootstrap, "tamsel.decisions")).extracting(r -> r.path("decision").asText())
                     .as("a restart publishes nothing").containsExactly("held");
 
             // Resume picks up from the last look before the hold.
@@ -97,7 +97,7 @@ class OperatorStateRestartTest {
             assertThat(daemon.paging()).isEqualTo(1.0);
             daemon.post("acknowledge", "");
             assertThat(daemon.paging()).isEqualTo(0.0);
-            List<JsonNode> acknowledgements = decisions(bootstrap, "quay.decisions").stream()
+            List<JsonNode> acknowledgements = decisions(bootstrap, "tamsel.decisions").stream()
                     .filter(r -> r.path("type").asText().equals("interim.acknowledgement")).toList();
             assertThat(acknowledgements).hasSize(1);
             assertThat(acknowledgements.get(0).path("stops").path(0).path("arm").asText()).isEqualTo("skiff");
@@ -112,17 +112,17 @@ class OperatorStateRestartTest {
             assertThat(daemon.paging()).as("an acknowledged stop does not page again after a restart").isEqualTo(0.0);
             assertThat(again.path("run").asText()).isEqualTo(run);
             daemon.kill();
-            String firstStop = stopId(decisions(bootstrap, "quay.decisions"));
-            checkChain(decisions(bootstrap, "quay.decisions"));
+            String firstStop = stopId(decisions(bootstrap, "tamsel.decisions"));
+            checkChain(decisions(bootstrap, "tamsel.decisions"));
 
             // The same experiment on a fresh state (another state prefix): a new run, new decision ids.
-            Daemon fresh = new Daemon(bootstrap, dir.resolve("second"), "quay.fresh", "quay-fresh", "quay.decisions.fresh");
+            Daemon fresh = new Daemon(bootstrap, dir.resolve("second"), "tamsel.fresh", "tamsel-fresh", "tamsel.decisions.fresh");
             fresh.start();
             JsonNode rerun = waitFor(fresh, e -> "stop-harm".equals(e.path("comparisons").path(0).path("decision").asText()),
                     "the rerun's stop");
             assertThat(rerun.path("run").asText()).isNotEmpty().isNotEqualTo(run);
             fresh.kill();
-            String secondStop = stopId(decisions(bootstrap, "quay.decisions.fresh"));
+            String secondStop = stopId(decisions(bootstrap, "tamsel.decisions.fresh"));
             assertThat(secondStop).as("decision ids are unique per run").isNotEqualTo(firstStop);
         }
     }
@@ -169,7 +169,7 @@ class OperatorStateRestartTest {
             for (int i = from; i < to; i++) {
                 String arm = random.nextBoolean() ? "berth" : "skiff";
                 boolean error = random.nextDouble() < (arm.equals("skiff") ? treatmentRate : 0.01);
-                p.send(new ProducerRecord<>("quay.events", "u" + i,
+                p.send(new ProducerRecord<>("tamsel.events", "u" + i,
                         "{\"exp\":\"" + EXPERIMENT + "\",\"arm\":\"" + arm + "\",\"status\":" + (error ? 503 : 200) + "}"));
             }
             p.flush();
@@ -229,9 +229,9 @@ class OperatorStateRestartTest {
                       properties:
                         session.timeout.ms: "6000"
                         heartbeat.interval.ms: "1000"
-                      input_topics: [quay.events]
+                      input_topics: [tamsel.events]
                       decisions_topic: %s
-                      dead_letter_topic: quay.dead
+                      dead_letter_topic: tamsel.dead
                       state_topic_prefix: %s
                       consumer_group_prefix: %s
                       commit_interval: 300ms
@@ -240,7 +240,7 @@ class OperatorStateRestartTest {
                       arm: /arm
                     http:
                       port: %d
-                      admin_token_env: QUAY_ADMIN_TOKEN
+                      admin_token_env: TAMSEL_ADMIN_TOKEN
                     experiments:
                       - id: %s
                         control: berth
@@ -263,7 +263,7 @@ class OperatorStateRestartTest {
                     dir.resolve("unused").toString())
                     .redirectErrorStream(true)
                     .redirectOutput(dir.resolve("daemon-" + starts + ".log").toFile());
-            b.environment().put("QUAY_ADMIN_TOKEN", TOKEN);
+            b.environment().put("TAMSEL_ADMIN_TOKEN", TOKEN);
             process = b.start();
             starts++;
         }

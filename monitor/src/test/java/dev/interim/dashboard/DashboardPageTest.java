@@ -58,12 +58,12 @@ class DashboardPageTest {
             assertThat(Xhtml.text(card)).contains(look);
         }
         assertThat(page.byClass("experiment")).extracting(e -> e.getAttribute("data-experiment"))
-                .containsExactly("harbor-search-ranking", "lantern-onboarding", "quay-pricing");
+                .containsExactly("harbor-search-ranking", "mossglint-onboarding", "tamsel-pricing");
     }
 
     @Test
     void aStopForHarmIsCalledOutInWordsNotOnlyInColour() {
-        ExperimentView onboarding = VIEWS.get("lantern-onboarding");
+        ExperimentView onboarding = VIEWS.get("mossglint-onboarding");
         List<String> harmed = onboarding.comparisons().stream().filter(c -> c.decision() == Decision.STOP_HARM)
                 .map(ComparisonView::metric).toList();
         assertThat(harmed).as("the scenario stops 'express' for harm").isNotEmpty();
@@ -78,7 +78,7 @@ class DashboardPageTest {
 
     @Test
     void eachCardShowsWhatTheLastLookCountedForItsArmAndControl() {
-        ExperimentView onboarding = VIEWS.get("lantern-onboarding");
+        ExperimentView onboarding = VIEWS.get("mossglint-onboarding");
         Xhtml page = Xhtml.parse(ExperimentSection.html(onboarding, 0, NOW));
         for (Element card : page.byClass("comparison")) {
             String metric = card.getAttribute("data-metric");
@@ -114,7 +114,7 @@ class DashboardPageTest {
         double byHand = hint.ratio() / plain.ratio() - 1;
         String percent = String.format(java.util.Locale.ROOT, "%+.1f%%", 100 * byHand);
         assertThat(card).contains("relative change (95% repeated CI)", percent + " [");
-        ExperimentView perEvent = VIEWS.get("lantern-onboarding");
+        ExperimentView perEvent = VIEWS.get("mossglint-onboarding");
         assertThat(Xhtml.text(Xhtml.parse(ExperimentSection.html(perEvent, 0, NOW)).doc.getDocumentElement()))
                 .contains("arms assigned per event");
     }
@@ -205,11 +205,11 @@ class DashboardPageTest {
             assertThat(empty.statusCode()).isEqualTo(200);
             assertThat(empty.headers().firstValue("Content-Type")).hasValue("text/html; charset=utf-8");
             assertThat(empty.body()).contains("0 experiments");
-            now.set(Map.of("quay-pricing", VIEWS.get("quay-pricing")));
+            now.set(Map.of("tamsel-pricing", VIEWS.get("tamsel-pricing")));
             HttpResponse<String> fragment = client.send(HttpRequest.newBuilder(base.resolve("/dashboard/fragment")).build(),
                     HttpResponse.BodyHandlers.ofString());
             assertThat(fragment.statusCode()).isEqualTo(200);
-            assertThat(fragment.body()).contains("data-experiment=\"quay-pricing\"", "as of 2027-03-08 09:15:00 UTC")
+            assertThat(fragment.body()).contains("data-experiment=\"tamsel-pricing\"", "as of 2027-03-08 09:15:00 UTC")
                     .doesNotContain("<html");
             assertThat(client.send(HttpRequest.newBuilder(base.resolve("/dashboard")).POST(HttpRequest.BodyPublishers.noBody()).build(),
                     HttpResponse.BodyHandlers.ofString()).statusCode()).isEqualTo(405);

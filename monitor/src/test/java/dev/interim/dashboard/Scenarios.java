@@ -45,11 +45,11 @@ final class Scenarios {
     }
 
     /**
-     * "lantern-onboarding": a new sign-up flow in two variants; 'express' fails 2.6% of sign-ups
+     * "mossglint-onboarding": a new sign-up flow in two variants; 'express' fails 2.6% of sign-ups
      * instead of 1% and must be stopped for harm; 'guided' is healthy.
      */
     static ExperimentView onboarding() {
-        ExperimentDefinition d = new ExperimentDefinition("lantern-onboarding", "classic", List.of("guided", "express"), null,
+        ExperimentDefinition d = new ExperimentDefinition("mossglint-onboarding", "classic", List.of("guided", "express"), null,
                 Duration.ofMinutes(1), 200, true, 0.001, List.of(
                         metric("signup-errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 60_000, StopAction.KILL),
                         metric("first-task-seconds", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER, 1, "pocock", 60_000, StopAction.PAGE),
@@ -73,12 +73,12 @@ final class Scenarios {
         return run(d, arms, 6, 2000, Map.of("learned", 0.34), 72);
     }
 
-    /** "quay-pricing": a one-sided primary metric with a powered horizon and a futility boundary; no true effect. */
+    /** "tamsel-pricing": a one-sided primary metric with a powered horizon and a futility boundary; no true effect. */
     static ExperimentView pricing() {
         MetricDefinition conversion = new MetricDefinition("checkout-conversion", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, 1,
                 SpendingFunction.parse("hsd:-4"), SpendingFunction.parse("hsd:-2"), new Horizon.Powered(0.9, 0.02, 4), null,
                 StopAction.NONE);
-        ExperimentDefinition d = new ExperimentDefinition("quay-pricing", "list-price", List.of("bundle"), null,
+        ExperimentDefinition d = new ExperimentDefinition("tamsel-pricing", "list-price", List.of("bundle"), null,
                 Duration.ofMinutes(1), 200, true, 0.001, List.of(conversion));
         Map<String, double[]> arms = new LinkedHashMap<>();
         arms.put("list-price", new double[] {0.10, 0, 0.10});

@@ -38,7 +38,7 @@ final class Designs {
     /** An invented experiment with the given number of treatments and metrics. */
     static ExperimentDefinition experiment(int treatments, MetricDefinition... metrics) {
         List<String> arms = java.util.stream.IntStream.rangeClosed(1, treatments).mapToObj(i -> "variant-" + i).toList();
-        return new ExperimentDefinition("lantern-checkout", "baseline", arms, null, Duration.ofMinutes(1), 100, true,
+        return new ExperimentDefinition("mossglint-checkout", "baseline", arms, null, Duration.ofMinutes(1), 100, true,
                 0.001, List.of(metrics));
     }
 

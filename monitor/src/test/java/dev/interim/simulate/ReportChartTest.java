@@ -65,7 +65,7 @@ class ReportChartTest {
         List<Element> blocks = byClass(root, "g", "comparison");
         assertThat(blocks).extracting(b -> b.getAttribute("data-metric")).containsExactly("orders", "page-load-ms");
         for (Element block : blocks) {
-            assertThat(block.getTextContent()).contains("lantern-checkout / " + block.getAttribute("data-metric"));
+            assertThat(block.getTextContent()).contains("mossglint-checkout / " + block.getAttribute("data-metric"));
             Element histogram = byClass(block, "g", "stopping-looks").get(0);
             List<Element> lines = byClass(histogram, "polyline", "effect");
             assertThat(lines).hasSize(4); // the null and three effects
