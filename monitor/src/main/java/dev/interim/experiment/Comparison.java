@@ -96,6 +96,14 @@ public final class Comparison {
         return arm;
     }
 
+    /**
+     * The drift η at which the design has the planned power at its planned looks (a powered horizon:
+     * the planned information is I_max = (η/δ)²); NaN for a maximum per arm.
+     */
+    public double plannedDrift() {
+        return plannedDrift;
+    }
+
     public MetricDefinition metric() {
         return metric;
     }
@@ -240,7 +248,7 @@ public final class Comparison {
         remember(fraction);
         Decision previous = decision;
         if (look.informationAdded()) {
-            decision = decide(look, e.z());
+            decision = Decision.at(look, e.z(), metric.worse());
         }
         ConfidenceInterval interval = RepeatedConfidenceInterval.at(design, look, e.effect(), e.standardError(),
                 e.degreesOfFreedom());
@@ -349,15 +357,4 @@ public final class Comparison {
      * usual rule of thumb for it (common practice).
      */
     static final double FULL_COUNT = 30;
-
-    private Decision decide(Look look, double z) {
-        if (look.rejects(z)) {
-            boolean harmful = metric.worse() == Worse.HIGHER ? z > 0 : z < 0;
-            return harmful ? Decision.STOP_HARM : Decision.STOP_BENEFIT;
-        }
-        if (look.futile(z)) {
-            return Decision.STOP_FUTILITY;
-        }
-        return look.last() ? Decision.COMPLETE : Decision.CONTINUE;
-    }
 }
