@@ -80,7 +80,7 @@ class TestResultTest {
         for (Alternative alternative : Alternative.values()) {
             double z = t(statistic, df, alternative).zEquivalent();
             TestResult asZ = TestResult.of("z", z, Double.POSITIVE_INFINITY, alternative, 1.5, 0.5);
-            // the defining property (DESIGN.md: "t mapped to the z scale through its p-value"), against
+            // the defining property (TestResult.zEquivalent: t mapped to the z scale through its p-value), against
             // reference library: Apache Commons Math 3.6.1 TDistribution
             double expected = switch (alternative) {
                 case GREATER -> reference.cumulativeProbability(-statistic);
