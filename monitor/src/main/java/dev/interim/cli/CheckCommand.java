@@ -131,7 +131,7 @@ public final class CheckCommand implements Callable<Integer> {
                 m.name(), m.kind().label(), lower(m.role()), lower(m.worse()),
                 Decimals.plain(e.comparisonAlpha(m)) + (e.treatments().size() > 1 ? " (" + Decimals.plain(m.alpha())
                         + "/" + e.treatments().size() + ")" : ""),
-                String.valueOf(m.sides()),
+                String.valueOf(m.sides().count()),
                 SpendingNames.describe(m.spending()) + (m.futility() == null ? "" : ", futility "
                         + SpendingNames.describe(m.futility())),
                 horizon(m.horizon()) + (m.baseline() == null ? "" : ", vs baseline " + Decimals.plain(m.baseline())),

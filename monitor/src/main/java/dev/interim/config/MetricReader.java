@@ -1,5 +1,7 @@
 package dev.interim.config;
 
+import dev.interim.experiment.Sides;
+
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.interim.experiment.Horizon;
@@ -57,7 +59,7 @@ final class MetricReader {
             throw m.required("denominator_cap", "").error("applies to ratio metrics only; leave it out, or use cap");
         }
         MetricDefinition definition = Domain.build(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
-                sides, spending, futility, horizon, baseline, action, cap, denominatorCap));
+                Sides.of(sides), spending, futility, horizon, baseline, action, cap, denominatorCap));
         return new Read(definition, source);
     }
 

@@ -86,7 +86,7 @@ public final class Comparison {
         if (metric.role() == Role.GUARDRAIL) {
             return metric.worse().harm();
         }
-        if (metric.sides() == 2) {
+        if (metric.sides() == Sides.TWO) {
             return Alternative.TWO_SIDED;
         }
         return metric.worse().harm() == Alternative.GREATER ? Alternative.LESS : Alternative.GREATER;

@@ -466,8 +466,11 @@ final class StateCodec {
     }
 
     private static Look look(int number, String alternative, int flags, double[] v) {
-        return new Look(number, v[0], v[1], v[2], Alternative.valueOf(alternative), v[3], v[4], v[5], (flags & 1) != 0,
-                (flags & 2) != 0);
+        boolean added = (flags & 1) != 0;
+        boolean last = (flags & 2) != 0;
+        Look.Stage stage = added ? (last ? Look.Stage.FINAL : Look.Stage.INTERIM)
+                : (last ? Look.Stage.AFTER_END : Look.Stage.NO_INFORMATION);
+        return new Look(number, v[0], v[1], v[2], Alternative.valueOf(alternative), v[3], v[4], v[5], stage);
     }
 
     /**

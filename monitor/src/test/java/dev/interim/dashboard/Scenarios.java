@@ -1,5 +1,7 @@
 package dev.interim.dashboard;
 
+import dev.interim.experiment.Sides;
+
 import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
@@ -75,7 +77,7 @@ final class Scenarios {
 
     /** "tamsel-pricing": a one-sided primary metric with a powered horizon and a futility boundary; no true effect. */
     static ExperimentView pricing() {
-        MetricDefinition conversion = new MetricDefinition("checkout-conversion", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, 1,
+        MetricDefinition conversion = new MetricDefinition("checkout-conversion", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, Sides.ONE,
                 SpendingFunction.parse("hsd:-4"), SpendingFunction.parse("hsd:-2"), new Horizon.Powered(0.9, 0.02, 4), null,
                 StopAction.NONE);
         ExperimentDefinition d = new ExperimentDefinition("tamsel-pricing", "list-price", List.of("bundle"), null,
@@ -92,7 +94,7 @@ final class Scenarios {
      * session by about 5%. Not part of {@link #invented()}.
      */
     static ExperimentView perUnitRatio() {
-        MetricDefinition value = new MetricDefinition("value-per-session", MetricKind.RATIO, Role.PRIMARY, Worse.LOWER, 0.05, 2,
+        MetricDefinition value = new MetricDefinition("value-per-session", MetricKind.RATIO, Role.PRIMARY, Worse.LOWER, 0.05, Sides.TWO,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.NONE);
         ExperimentDefinition d = new ExperimentDefinition("ember-basket", "plain", List.of("bundle-hint"), null,
                 Duration.ofMinutes(1), 200, true, 0.001, List.of(value), Assignment.UNIT);
@@ -123,7 +125,7 @@ final class Scenarios {
 
     static MetricDefinition metric(String name, MetricKind kind, Role role, Worse worse, int sides, String spending, long maxPerArm,
                                    StopAction action) {
-        return new MetricDefinition(name, kind, role, worse, 0.05, sides, SpendingFunction.parse(spending), null,
+        return new MetricDefinition(name, kind, role, worse, 0.05, Sides.of(sides), SpendingFunction.parse(spending), null,
                 new Horizon.MaxPerArm(maxPerArm), null, action);
     }
 

@@ -23,7 +23,7 @@ class SmallSampleRegressionTest {
     private static final Instant T = Instant.parse("2026-03-01T00:00:00Z");
 
     private static MetricDefinition metric(String name, MetricKind kind, SpendingFunction spending, Horizon horizon) {
-        return new MetricDefinition(name, kind, Role.GUARDRAIL, Worse.HIGHER, 0.05, 1, spending, null, horizon, null,
+        return new MetricDefinition(name, kind, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.ONE, spending, null, horizon, null,
                 StopAction.NONE);
     }
 

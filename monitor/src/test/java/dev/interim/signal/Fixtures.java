@@ -1,5 +1,7 @@
 package dev.interim.signal;
 
+import dev.interim.experiment.Sides;
+
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Horizon;
@@ -25,7 +27,7 @@ final class Fixtures {
 
     /** An error-rate guardrail, one-sided at α = 0.05, O'Brien–Fleming-type spending. */
     static MetricDefinition failedPayments(StopAction action) {
-        return new MetricDefinition("failed_payments", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, 1,
+        return new MetricDefinition("failed_payments", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.ONE,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(20_000), null, action);
     }
 

@@ -49,7 +49,8 @@ class NaiveRepeatedTestingTest {
         double[] t = c.fractions();
         Look[] looks = new Look[t.length];
         for (int k = 0; k < t.length; k++) {
-            looks[k] = new Look(k + 1, t[k], z, -z, Alternative.TWO_SIDED, Double.NaN, Double.NaN, 0, true, k == t.length - 1);
+            looks[k] = new Look(k + 1, t[k], z, -z, Alternative.TWO_SIDED, Double.NaN, Double.NaN, 0,
+                    k == t.length - 1 ? Look.Stage.FINAL : Look.Stage.INTERIM);
         }
         assertThat(t).containsExactly(Fractions.equallySpaced(t.length));
         return new SimulatedComparison(c.experiment(), c.arm(), c.treatments(), c.metric(), c.design(), t, looks,
