@@ -1,5 +1,7 @@
 package dev.interim.config;
 
+import dev.interim.experiment.RunMode;
+
 import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
@@ -58,7 +60,7 @@ final class ExperimentReader {
             throw metricsNode.error("must list at least one metric");
         }
         ExperimentDefinition definition = Domain.build(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
-                split, lookEvery, minPerArm, dryRun, sampleRatio, metrics, assignment));
+                split, lookEvery, minPerArm, RunMode.dryRun(dryRun), sampleRatio, metrics, assignment));
         return new ExperimentConfig(definition, sources);
     }
 

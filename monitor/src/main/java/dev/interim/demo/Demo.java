@@ -31,27 +31,35 @@ import org.apache.kafka.common.serialization.StringSerializer;
  * shoppers), a local stand-in for the flag service that receives and verifies kill webhooks, and the
  * daemon. Prints every decision record as one JSON line as it happens, and a summary at the end. It
  * ends once the harmful build has been switched off and the rest have had a few more looks, or
- * after a time limit; with {@code keepRunning} it goes on until interrupted.
+ * after a time limit; with {@link Ending#KEEP_RUNNING} it goes on until interrupted.
  */
 public final class Demo {
     private final PrintWriter out;
     private final PrintWriter err;
     private final Path dataDir;
     private final Duration limit;
-    private final boolean keepRunning;
+    private final Ending ending;
     private final Path saveEvents;
 
-    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning) {
-        this(out, err, dataDir, limit, keepRunning, null);
+    /** When the demo ends. */
+    public enum Ending {
+        /** Shortly after the verdicts, or at the time limit. */
+        AFTER_VERDICT,
+        /** When interrupted (Ctrl-C), so that the dashboard can be explored. */
+        KEEP_RUNNING
+    }
+
+    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, Ending ending) {
+        this(out, err, dataDir, limit, ending, null);
     }
 
     /** With {@code saveEvents}, every event the demo sends is also written there, one JSON line each, for replay. */
-    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning, Path saveEvents) {
+    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, Ending ending, Path saveEvents) {
         this.out = out;
         this.err = err;
         this.dataDir = dataDir;
         this.limit = limit;
-        this.keepRunning = keepRunning;
+        this.ending = ending;
         this.saveEvents = saveEvents;
     }
 
@@ -73,7 +81,7 @@ public final class Demo {
                 DemoTraffic traffic = new DemoTraffic(20261202);
                 long start = System.nanoTime();
                 long decidedAt = -1;
-                while (keepRunning || System.nanoTime() - start < limit.toNanos()) {
+                while (ending == Ending.KEEP_RUNNING || System.nanoTime() - start < limit.toNanos()) {
                     traffic.shoppers(400, System.currentTimeMillis(), (shopper, json) -> {
                         producer.send(new ProducerRecord<>(config.kafka().inputTopics().get(0), shopper, json));
                         if (saved != null) {
@@ -90,7 +98,7 @@ public final class Demo {
                     if (decidedAt < 0 && !flags.kills().isEmpty()) {
                         decidedAt = System.nanoTime();
                     }
-                    if (!keepRunning && decidedAt > 0 && System.nanoTime() - decidedAt > Duration.ofSeconds(8).toNanos()) {
+                    if (ending == Ending.AFTER_VERDICT && decidedAt > 0 && System.nanoTime() - decidedAt > Duration.ofSeconds(8).toNanos()) {
                         break;
                     }
                 }

@@ -23,9 +23,9 @@ public record Acknowledgement(String experiment, Instant at, List<Stop> stops, S
         stops = List.copyOf(stops);
     }
 
-    static Acknowledgement of(String run, String experiment, Instant at, List<Stop> stops, boolean dryRun) {
+    static Acknowledgement of(String run, String experiment, Instant at, List<Stop> stops, RunMode mode) {
         String key = run + '\u0000' + experiment + '\u0000' + "acknowledged" + '\u0000' + at;
         return new Acknowledgement(experiment, at, stops,
-                UUID.nameUUIDFromBytes(key.getBytes(StandardCharsets.UTF_8)).toString(), dryRun);
+                UUID.nameUUIDFromBytes(key.getBytes(StandardCharsets.UTF_8)).toString(), mode == RunMode.DRY_RUN);
     }
 }

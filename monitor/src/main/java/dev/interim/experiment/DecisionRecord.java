@@ -32,19 +32,19 @@ public record DecisionRecord(String experiment, String arm, String metric, Strin
     }
 
     /** The record of a look that changed the state. */
-    static DecisionRecord of(String run, LookResult r, MetricDefinition metric, boolean dryRun) {
+    static DecisionRecord of(String run, LookResult r, MetricDefinition metric, RunMode mode) {
         String id = id(run, r.experiment(), r.arm(), r.metric(), r.decision(), r.look().number());
         return new DecisionRecord(r.experiment(), r.arm(), r.metric(), metric.role().name().toLowerCase(),
                 r.decision().label(), r.previous().label(), r.look().number(), r.look().fraction(),
                 r.estimate().z(), r.boundary(), r.look().alphaSpent(), r.estimate().effect(),
-                r.interval().lower(), r.interval().upper(), r.interval().level(), r.at(), id, dryRun,
+                r.interval().lower(), r.interval().upper(), r.interval().level(), r.at(), id, mode == RunMode.DRY_RUN,
                 metric.action().name().toLowerCase(), relative(r), r.relativeInterval() == null ? Double.NaN
                         : r.relativeInterval().lower(), r.relativeInterval() == null ? Double.NaN : r.relativeInterval().upper());
     }
 
     /** A hold or resume, which has no look of its own: the last look's numbers, or NaN before any. */
     static DecisionRecord ofStateChange(String run, String experiment, Comparison c, Decision previous, Instant at,
-                                        boolean dryRun, String reason) {
+                                        RunMode mode, String reason) {
         LookResult last = c.last();
         int look = last == null ? 0 : last.look().number();
         String id = id(run, experiment, c.arm(), c.metric().name(), c.decision(), look) + "-" + UUID.nameUUIDFromBytes(
@@ -56,7 +56,7 @@ public record DecisionRecord(String experiment, String arm, String metric, Strin
                 last == null ? nan : last.boundary(), last == null ? 0 : last.look().alphaSpent(),
                 last == null ? nan : last.estimate().effect(), last == null ? nan : last.interval().lower(),
                 last == null ? nan : last.interval().upper(), last == null ? nan : last.interval().level(),
-                at, id, dryRun, c.metric().action().name().toLowerCase(), last == null ? nan : relative(last),
+                at, id, mode == RunMode.DRY_RUN, c.metric().action().name().toLowerCase(), last == null ? nan : relative(last),
                 last == null || last.relativeInterval() == null ? nan : last.relativeInterval().lower(),
                 last == null || last.relativeInterval() == null ? nan : last.relativeInterval().upper());
     }

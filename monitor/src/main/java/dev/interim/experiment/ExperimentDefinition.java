@@ -20,26 +20,32 @@ import java.util.regex.Pattern;
  * @param split expected share of exposures per arm (any positive weights; normalised)
  * @param lookEvery time between looks
  * @param minPerArm observations every arm needs before the first look
- * @param dryRun decide and record, but never call the kill webhook
+ * @param mode live, or dry-run: decide and record, but never call the kill webhook
  * @param sampleRatioThreshold p-value below which the split is judged broken and decisions held
  * @param metrics the metrics watched (at least one)
  * @param assignment how arms were assigned: per unit (event metrics are then analysed as ratios of
  *                   per-unit sums, with delta-method variances) or per event
  */
 public record ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
-                                   Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
+                                   Duration lookEvery, long minPerArm, RunMode mode, double sampleRatioThreshold,
                                    List<MetricDefinition> metrics, Assignment assignment) {
 
     /** An experiment whose arms were assigned per event (each event an independent observation). */
     public ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
-                                Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
+                                Duration lookEvery, long minPerArm, RunMode mode, double sampleRatioThreshold,
                                 List<MetricDefinition> metrics) {
-        this(id, control, treatments, split, lookEvery, minPerArm, dryRun, sampleRatioThreshold, metrics, Assignment.EVENT);
+        this(id, control, treatments, split, lookEvery, minPerArm, mode, sampleRatioThreshold, metrics, Assignment.EVENT);
+    }
+
+    /** True in dry-run mode: decisions are recorded, nothing acts on them. */
+    public boolean dryRun() {
+        return mode == RunMode.DRY_RUN;
     }
 
     private static final Pattern ID = Pattern.compile("[A-Za-z0-9_.-]{1,128}");
 
     public ExperimentDefinition {
+        require(mode != null, "mode is required: live or dry-run");
         require(id != null && ID.matcher(id).matches(), "id must be 1 to 128 letters, digits, '_', '-' or '.', got '" + id + "'");
         require(control != null && ID.matcher(control).matches(), "control must name an arm, got '" + control + "'");
         require(treatments != null && !treatments.isEmpty(), "treatments must list at least one arm");

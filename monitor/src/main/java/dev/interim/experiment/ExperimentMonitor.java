@@ -152,7 +152,7 @@ public final class ExperimentMonitor {
             Optional<LookResult> r = outcomes.get(i);
             MetricDefinition metric = tasks.get(i).metric();
             r.ifPresent(results::add);
-            r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(run, x, metric, definition.dryRun())));
+            r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(run, x, metric, definition.mode())));
             if (r.isPresent() && r.get().changed() && r.get().decision() == Decision.STOP_HARM) {
                 acknowledged = false;
             }
@@ -188,7 +188,7 @@ public final class ExperimentMonitor {
         for (Comparison c : comparisons()) {
             Decision before = c.decision();
             if (c.arm().equals(arm) && c.forceStop()) {
-                records.add(DecisionRecord.ofStateChange(run, definition.id(), c, before, at, definition.dryRun(),
+                records.add(DecisionRecord.ofStateChange(run, definition.id(), c, before, at, definition.mode(),
                         reason == null || reason.isBlank() ? "operator stop" : reason));
             }
         }
@@ -210,7 +210,7 @@ public final class ExperimentMonitor {
                 stops.add(new Acknowledgement.Stop(c.arm(), c.metric().name()));
             }
         }
-        return Optional.of(Acknowledgement.of(run, definition.id(), at, stops, definition.dryRun()));
+        return Optional.of(Acknowledgement.of(run, definition.id(), at, stops, definition.mode()));
     }
 
     public boolean acknowledged() {
@@ -246,7 +246,7 @@ public final class ExperimentMonitor {
             Decision before = c.decision();
             boolean changed = hold ? c.hold() : c.resume();
             if (changed) {
-                records.add(DecisionRecord.ofStateChange(run, definition.id(), c, before, at, definition.dryRun(),
+                records.add(DecisionRecord.ofStateChange(run, definition.id(), c, before, at, definition.mode(),
                         hold ? reason : "resume"));
             }
         }

@@ -157,7 +157,7 @@ public final class SequentialMonitor {
         double increment = Math.max(0, allowedBy(fraction) - alphaSpent);
         double upper;
         if (design.spending() != null) {
-            upper = BoundarySolver.upper(underNull, fraction, increment, twoSided);
+            upper = BoundarySolver.upper(underNull, fraction, increment, design.alternative());
         } else {
             upper = design.classic().at(fraction);
             increment = underNull.upperTail(fraction, upper) + (twoSided ? underNull.lowerTail(fraction, -upper) : 0);

@@ -1,5 +1,7 @@
 package dev.interim.dashboard;
 
+import dev.interim.experiment.RunMode;
+
 import dev.interim.experiment.Sides;
 
 import dev.interim.experiment.Assignment;
@@ -52,7 +54,7 @@ final class Scenarios {
      */
     static ExperimentView onboarding() {
         ExperimentDefinition d = new ExperimentDefinition("mossglint-onboarding", "classic", List.of("guided", "express"), null,
-                Duration.ofMinutes(1), 200, true, 0.001, List.of(
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(
                         metric("signup-errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 60_000, StopAction.KILL),
                         metric("first-task-seconds", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER, 1, "pocock", 60_000, StopAction.PAGE),
                         metric("activated", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 2, "obf", 60_000, StopAction.NONE)));
@@ -67,7 +69,7 @@ final class Scenarios {
     /** "harbor-search-ranking": the treatment gets a third of the traffic it should; decisions are held. */
     static ExperimentView searchRanking() {
         ExperimentDefinition d = new ExperimentDefinition("harbor-search-ranking", "bm25", List.of("learned"), null,
-                Duration.ofMinutes(1), 200, false, 0.001, List.of(
+                Duration.ofMinutes(1), 200, RunMode.LIVE, 0.001, List.of(
                         metric("zero-result-rate", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 50_000, StopAction.KILL)));
         Map<String, double[]> arms = new LinkedHashMap<>();
         arms.put("bm25", new double[] {0.05, 0, 0});
@@ -81,7 +83,7 @@ final class Scenarios {
                 SpendingFunction.parse("hsd:-4"), SpendingFunction.parse("hsd:-2"), new Horizon.Powered(0.9, 0.02, 4), null,
                 StopAction.NONE);
         ExperimentDefinition d = new ExperimentDefinition("tamsel-pricing", "list-price", List.of("bundle"), null,
-                Duration.ofMinutes(1), 200, true, 0.001, List.of(conversion));
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(conversion));
         Map<String, double[]> arms = new LinkedHashMap<>();
         arms.put("list-price", new double[] {0.10, 0, 0.10});
         arms.put("bundle", new double[] {0.10, 0, 0.11});
@@ -97,7 +99,7 @@ final class Scenarios {
         MetricDefinition value = new MetricDefinition("value-per-session", MetricKind.RATIO, Role.PRIMARY, Worse.LOWER, 0.05, Sides.TWO,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.NONE);
         ExperimentDefinition d = new ExperimentDefinition("ember-basket", "plain", List.of("bundle-hint"), null,
-                Duration.ofMinutes(1), 200, true, 0.001, List.of(value), Assignment.UNIT);
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(value), Assignment.UNIT);
         ExperimentMonitor monitor = new ExperimentMonitor(d);
         SplittableRandom random = new SplittableRandom(74);
         Map<String, Double> perSession = Map.of("plain", 20.0, "bundle-hint", 21.0);

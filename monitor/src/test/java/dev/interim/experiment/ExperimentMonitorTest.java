@@ -32,7 +32,7 @@ class ExperimentMonitorTest {
 
     static ExperimentDefinition rollout(List<String> treatments, MetricDefinition... metrics) {
         return new ExperimentDefinition("checkout-canary", "stable", treatments, null, Duration.ofMinutes(1), 50,
-                false, 0.001, List.of(metrics));
+                RunMode.LIVE, 0.001, List.of(metrics));
     }
 
     /** Cumulative error counts per arm, drawn look by look. */

@@ -29,7 +29,7 @@ class SmallSampleRegressionTest {
 
     private static Comparison comparison(MetricDefinition m, long minPerArm) {
         ExperimentDefinition e = new ExperimentDefinition("tiny-canary", "stable", List.of("candidate"),
-                Map.of("stable", 99.0, "candidate", 1.0), Duration.ofMinutes(1), minPerArm, true, 0.001, List.of(m));
+                Map.of("stable", 99.0, "candidate", 1.0), Duration.ofMinutes(1), minPerArm, RunMode.DRY_RUN, 0.001, List.of(m));
         return new Comparison(e, m, "candidate");
     }
 

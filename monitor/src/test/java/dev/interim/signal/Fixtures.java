@@ -1,5 +1,7 @@
 package dev.interim.signal;
 
+import dev.interim.experiment.RunMode;
+
 import dev.interim.experiment.Sides;
 
 import dev.interim.experiment.DecisionRecord;
@@ -33,7 +35,7 @@ final class Fixtures {
 
     static ExperimentDefinition basketRollout(List<String> treatments, boolean dryRun, MetricDefinition... metrics) {
         return new ExperimentDefinition("basket-v7", "current", treatments, null, Duration.ofMinutes(1), 50,
-                dryRun, 0.001, List.of(metrics));
+                RunMode.dryRun(dryRun), 0.001, List.of(metrics));
     }
 
     /** Cumulative counts per arm as a metric → arm → tally map, fixed numbers (no randomness). */

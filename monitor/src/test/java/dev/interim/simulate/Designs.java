@@ -1,5 +1,7 @@
 package dev.interim.simulate;
 
+import dev.interim.experiment.RunMode;
+
 import dev.interim.experiment.Sides;
 
 import dev.interim.experiment.ExperimentDefinition;
@@ -40,7 +42,7 @@ final class Designs {
     /** An invented experiment with the given number of treatments and metrics. */
     static ExperimentDefinition experiment(int treatments, MetricDefinition... metrics) {
         List<String> arms = java.util.stream.IntStream.rangeClosed(1, treatments).mapToObj(i -> "variant-" + i).toList();
-        return new ExperimentDefinition("mossglint-checkout", "baseline", arms, null, Duration.ofMinutes(1), 100, true,
+        return new ExperimentDefinition("mossglint-checkout", "baseline", arms, null, Duration.ofMinutes(1), 100, RunMode.DRY_RUN,
                 0.001, List.of(metrics));
     }
 

@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.experiment.RunMode;
+
 import dev.interim.experiment.Sides;
 
 import static org.assertj.core.api.Assertions.assertThat;
@@ -64,7 +66,7 @@ class StateCodecTest {
         MetricDefinition errors = new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER,
                 0.05, Sides.ONE, SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.KILL);
         ExperimentMonitor m = new ExperimentMonitor(new ExperimentDefinition("checkout-canary", "stable",
-                List.of("candidate"), null, java.time.Duration.ofMinutes(1), 50, false, 0.001, List.of(errors)), "run-7");
+                List.of("candidate"), null, java.time.Duration.ofMinutes(1), 50, RunMode.LIVE, 0.001, List.of(errors)), "run-7");
         java.util.SplittableRandom random = new java.util.SplittableRandom(9);
         long[] stable = new long[2];
         long[] candidate = new long[2];
