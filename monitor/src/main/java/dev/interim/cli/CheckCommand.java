@@ -25,8 +25,9 @@ import picocli.CommandLine.Spec;
 /**
  * {@code interim check}: reads and validates a configuration without starting anything, and prints
  * what it understood: per experiment how arms were assigned, per metric its design and where it is
- * read (with caps, and both fields of a ratio). An invalid file is bad input: one line naming the
- * file, the key, the value and the rule, and exit code 2 (see {@link UserErrorHandler}). A valid file
+ * read (with caps, and both fields of a ratio). An invalid file is bad input: a line per problem
+ * naming the file, the key, the value and the rule (every problem of the file, those of the values
+ * before those of the secrets), and exit code 2 (see {@link UserErrorHandler}). A valid file
  * that is likely a slip gets a {@code WARN:} line under its experiment and still exits 0: events
  * that carry a unit while an experiment's arms are assigned per event.
  */

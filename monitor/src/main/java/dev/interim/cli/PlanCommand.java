@@ -4,6 +4,7 @@ import dev.interim.sequential.Effect;
 import dev.interim.sequential.Fractions;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.Alternative;
+import dev.interim.text.UserText;
 import java.util.Arrays;
 import java.util.Locale;
 import java.util.concurrent.Callable;
@@ -135,7 +136,7 @@ public final class PlanCommand implements Callable<Integer> {
         return switch (d) {
             case "greater" -> Alternative.GREATER;
             case "less" -> Alternative.LESS;
-            default -> throw new IllegalArgumentException("--direction must be greater or less, got '" + direction + "'");
+            default -> throw new IllegalArgumentException("--direction must be greater or less, got " + UserText.quoted(direction));
         };
     }
 

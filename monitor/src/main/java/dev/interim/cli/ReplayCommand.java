@@ -9,6 +9,7 @@ import dev.interim.replay.ReplayListener;
 import dev.interim.replay.ReplayResult;
 import dev.interim.replay.ReplayText;
 import dev.interim.signal.DecisionJson;
+import dev.interim.text.UserText;
 import java.io.PrintWriter;
 import java.nio.file.Path;
 import java.util.Locale;
@@ -124,7 +125,7 @@ public final class ReplayCommand implements Callable<Integer> {
     private static boolean jsonl(String format) {
         String f = format.strip().toLowerCase(Locale.ROOT);
         if (!f.equals("text") && !f.equals("jsonl")) {
-            throw new IllegalArgumentException("unknown --format '" + format + "': use text or jsonl");
+            throw new IllegalArgumentException("unknown --format " + UserText.quoted(format) + ": use text or jsonl");
         }
         return f.equals("jsonl");
     }

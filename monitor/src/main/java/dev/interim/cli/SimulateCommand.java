@@ -12,6 +12,7 @@ import dev.interim.simulate.ReportFormat;
 import dev.interim.simulate.SimulatedComparison;
 import dev.interim.simulate.Simulation;
 import dev.interim.simulate.SimulationReport;
+import dev.interim.text.UserText;
 import java.io.IOException;
 import java.io.InputStream;
 import java.io.PrintWriter;
@@ -189,7 +190,8 @@ public final class SimulateCommand implements Callable<Integer> {
             return null;
         }
         if (!chart.getFileName().toString().toLowerCase(Locale.ROOT).endsWith(".svg")) {
-            throw new IllegalArgumentException("--chart writes an SVG image: give a file name ending in .svg, got '" + chart + "'");
+            throw new IllegalArgumentException("--chart writes an SVG image: give a file name ending in .svg, got "
+                    + UserText.quoted(String.valueOf(chart)));
         }
         Path parent = chart.toAbsolutePath().getParent();
         if (parent != null && !Files.isDirectory(parent)) {
@@ -243,7 +245,7 @@ public final class SimulateCommand implements Callable<Integer> {
         for (String name : text.split(",", -1)) {
             String n = name.strip();
             if (!known.contains(n)) {
-                throw new IllegalArgumentException(option + ": '" + n + "' is not in the configuration; it has "
+                throw new IllegalArgumentException(option + ": " + UserText.quoted(n) + " is not in the configuration; it has "
                         + String.join(", ", known));
             }
             wanted.add(n);
@@ -262,7 +264,7 @@ public final class SimulateCommand implements Callable<Integer> {
             return values;
         } catch (NumberFormatException e) {
             throw new IllegalArgumentException(option + " must be numbers separated by commas, such as " + example
-                    + "; got '" + text + "'");
+                    + "; got " + UserText.quoted(text));
         }
     }
 }

@@ -1,5 +1,6 @@
 package dev.interim.experiment;
 
+import dev.interim.text.UserText;
 import java.time.Duration;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
@@ -46,14 +47,14 @@ public record ExperimentDefinition(String id, String control, List<String> treat
 
     public ExperimentDefinition {
         require(mode != null, "mode is required: live or dry-run");
-        require(id != null && ID.matcher(id).matches(), "id must be 1 to 128 letters, digits, '_', '-' or '.', got '" + id + "'");
-        require(control != null && ID.matcher(control).matches(), "control must name an arm, got '" + control + "'");
+        require(id != null && ID.matcher(id).matches(), "id must be 1 to 128 letters, digits, '_', '-' or '.', got " + UserText.quoted(id));
+        require(control != null && ID.matcher(control).matches(), "control must name an arm, got " + UserText.quoted(control));
         require(treatments != null && !treatments.isEmpty(), "treatments must list at least one arm");
         Set<String> arms = new HashSet<>();
         arms.add(control);
         for (String t : treatments) {
-            require(t != null && ID.matcher(t).matches(), "treatments: an arm name must be 1 to 128 letters, digits, '_', '-' or '.', got '" + t + "'");
-            require(arms.add(t), "arm '" + t + "' is listed twice (control and treatments must differ)");
+            require(t != null && ID.matcher(t).matches(), "treatments: an arm name must be 1 to 128 letters, digits, '_', '-' or '.', got " + UserText.quoted(t));
+            require(arms.add(t), "arm " + UserText.quoted(t) + " is listed twice (control and treatments must differ)");
         }
         treatments = List.copyOf(treatments);
         if (split == null || split.isEmpty()) {
@@ -76,7 +77,7 @@ public record ExperimentDefinition(String id, String control, List<String> treat
         require(metrics != null && !metrics.isEmpty(), "metrics must list at least one metric");
         Set<String> names = new HashSet<>();
         for (MetricDefinition m : metrics) {
-            require(names.add(m.name()), "metric '" + m.name() + "' is defined twice");
+            require(names.add(m.name()), "metric " + UserText.quoted(m.name()) + " is defined twice");
         }
         metrics = List.copyOf(metrics);
         require(assignment != null, "assignment is required: unit or event");

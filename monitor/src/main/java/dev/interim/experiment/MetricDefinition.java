@@ -1,6 +1,7 @@
 package dev.interim.experiment;
 
 import dev.interim.sequential.SpendingFunction;
+import dev.interim.text.UserText;
 import java.util.regex.Pattern;
 
 /**
@@ -40,7 +41,7 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
 
     public MetricDefinition {
         if (name == null || !NAME.matcher(name).matches()) {
-            throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got '" + name + "'");
+            throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got " + UserText.quoted(name));
         }
         require(kind != null, "kind is required: event-rate, unit-rate, event-mean, unit-total or ratio");
         require(role != null, "role is required: primary or guardrail");

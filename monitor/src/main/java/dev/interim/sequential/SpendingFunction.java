@@ -1,5 +1,6 @@
 package dev.interim.sequential;
 
+import dev.interim.text.UserText;
 import java.util.Locale;
 
 /**
@@ -62,28 +63,29 @@ public sealed interface SpendingFunction
             case "hsd":
                 return new HwangShihDeCani(number(text, arg, "GAMMA"));
             default:
-                throw new IllegalArgumentException("unknown spending function '" + text
-                        + "': use obf, pocock, power:RHO (RHO > 0) or hsd:GAMMA");
+                throw new IllegalArgumentException("unknown spending function " + UserText.quoted(text)
+                        + ": use obf, pocock, power:RHO (RHO > 0) or hsd:GAMMA");
         }
     }
 
     private static void noArgument(String text, String arg) {
         if (arg != null) {
             throw new IllegalArgumentException(
-                    "spending function '" + text + "' takes no parameter: write it without ':'");
+                    "spending function " + UserText.quoted(text) + " takes no parameter: write it without ':'");
         }
     }
 
     private static double number(String text, String arg, String name) {
         if (arg == null || arg.isEmpty()) {
             throw new IllegalArgumentException(
-                    "spending function '" + text + "' needs a parameter: write it as " + text + ":" + name);
+                    "spending function " + UserText.quoted(text) + " needs a parameter: write it as "
+                            + UserText.shown(text) + ":" + name);
         }
         try {
             return Double.parseDouble(arg);
         } catch (NumberFormatException e) {
             throw new IllegalArgumentException(
-                    "spending function '" + text + "': " + name + " must be a number, got '" + arg + "'");
+                    "spending function " + UserText.quoted(text) + ": " + name + " must be a number, got " + UserText.quoted(arg));
         }
     }
 
