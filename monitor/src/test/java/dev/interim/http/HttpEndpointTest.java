@@ -259,6 +259,24 @@ class HttpEndpointTest {
         }
     }
 
+    /**
+     * The idle timeout is for connections, not for answers: a handler that takes longer (an operator
+     * action waits up to 30 s for its commit) still gets its answer out.
+     */
+    @Test
+    void aHandlerSlowerThanTheIdleTimeoutStillAnswers() throws Exception {
+        try (HttpEndpoint http = HttpEndpoint.builder().idleTimeout(Duration.ofMillis(300)).start()) {
+            http.route("POST", "/api/experiments/{id}/hold", r -> {
+                Thread.sleep(1500);
+                return Response.text(200, "held " + r.param("id"));
+            });
+            HttpResponse<String> hold = send(http, HttpRequest.newBuilder(http.uri().resolve("/api/experiments/basket-v7/hold"))
+                    .POST(HttpRequest.BodyPublishers.ofString("{\"reason\": \"incident 42\"}")));
+            assertThat(hold.statusCode()).isEqualTo(200);
+            assertThat(hold.body()).isEqualTo("held basket-v7");
+        }
+    }
+
     // ---- limits ----
 
     /** 10 MB is refused with 413 (RFC 9110 §15.5.14), from Content-Length before reading, and chunked once the limit is read. */
