@@ -8,6 +8,7 @@ import java.io.ByteArrayOutputStream;
 import java.io.IOException;
 import java.io.InputStream;
 import java.io.OutputStream;
+import java.io.UncheckedIOException;
 import java.net.Socket;
 import java.net.SocketTimeoutException;
 import java.net.URI;
@@ -55,6 +56,18 @@ class HttpEndpointTest {
             assertThat(a.port()).isPositive();
             assertThat(b.port()).isPositive().isNotEqualTo(a.port());
             assertThat(a.uri()).isEqualTo(URI.create("http://127.0.0.1:" + a.port()));
+        }
+    }
+
+    /** A port already taken is one message naming the address, with the system's reason and the BindException as cause. */
+    @Test
+    void aPortInUseIsNamed() {
+        try (HttpEndpoint first = HttpEndpoint.builder().start()) {
+            UncheckedIOException e = org.assertj.core.api.Assertions.catchThrowableOfType(UncheckedIOException.class,
+                    () -> HttpEndpoint.builder().port(first.port()).start().close());
+            assertThat(e).isNotNull();
+            assertThat(e.getMessage()).startsWith("cannot listen on 127.0.0.1:" + first.port() + ": ").doesNotContain("\n");
+            assertThat(e.getCause()).isInstanceOf(java.net.BindException.class);
         }
     }
 
