@@ -26,7 +26,7 @@ final class ConnectionReaders {
             "dead_letter_topic", "state_topic_prefix", "consumer_group_prefix", "commit_interval", "input_keyed_by_unit",
             "tally_threads");
     static final Set<String> EVENTS_KEYS = keys("experiment", "arm", "unit", "time");
-    static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env");
+    static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env", "allowed_hosts");
     static final Set<String> WEBHOOK_KEYS = keys("url", "signing_key_env", "timeout", "max_attempts", "initial_backoff");
 
     static final String DEFAULT_DECISIONS_TOPIC = "interim.decisions";
@@ -254,7 +254,7 @@ final class ConnectionReaders {
 
     static HttpSettings http(Optional<ConfigNode> section, Environment env) {
         if (section.isEmpty()) {
-            return new HttpSettings(DEFAULT_BIND_ADDRESS, DEFAULT_PORT, Optional.empty());
+            return new HttpSettings(DEFAULT_BIND_ADDRESS, DEFAULT_PORT, Optional.empty(), List.of());
         }
         ConfigNode h = section.get().mapping(HTTP_KEYS);
         Problems.Checkpoint start = h.checkpoint();
@@ -267,8 +267,23 @@ final class ConnectionReaders {
         }, DEFAULT_BIND_ADDRESS);
         Integer port = h.read("port", p -> p.smallInteger(0, 65535), DEFAULT_PORT);
         Secret token = h.read("admin_token_env", t -> adminToken(t, env), null);
+        List<String> allowedHosts = h.read("allowed_hosts", ConnectionReaders::allowedHosts, List.of());
         start.requireNone();
-        return new HttpSettings(bind, port, Optional.ofNullable(token));
+        return new HttpSettings(bind, port, Optional.ofNullable(token), allowedHosts);
+    }
+
+    /** Host names as a client writes them in the URL, without scheme, port or path; {@code *} for any. */
+    private static List<String> allowedHosts(ConfigNode at) {
+        List<String> names = new ArrayList<>();
+        for (ConfigNode item : at.elements("host names, such as [monitor.internal], or [\"*\"] to answer any")) {
+            String name = item.text();
+            if (!name.equals("*") && !HOST.matcher(name).matches()) {
+                throw item.error(UserText.quoted(name) + " is not a host name: write the name alone, without scheme, port or "
+                        + "path, such as monitor.internal (or \"*\" to answer any Host)");
+            }
+            names.add(name);
+        }
+        return names;
     }
 
     /** A token too short or with spaces is a problem of the environment: recorded, and the token kept. */

@@ -112,7 +112,7 @@ public final class Daemon implements AutoCloseable {
             }
         });
         http = HttpEndpoint.builder().bindAddress(config.http().bindAddress()).port(config.http().port())
-                .metrics(meters::scrape).start();
+                .allowedHosts(config.http().allowedHosts()).metrics(meters::scrape).start();
         ExperimentApi.install(http, new ExperimentApi.Operations() {
             @Override
             public Map<String, ExperimentView> views() {

@@ -52,6 +52,7 @@ class DefaultsTest {
         assertThat(config.http().bindAddress()).isEqualTo("127.0.0.1");
         assertThat(config.http().port()).isEqualTo(8080);
         assertThat(config.http().adminToken()).isEmpty();
+        assertThat(config.http().allowedHosts()).as("only IP addresses, localhost and the bind address").isEmpty();
         WebhookSettings w = config.webhook().orElseThrow();
         assertThat(w.timeout()).isEqualTo(Duration.ofSeconds(5));
         assertThat(w.maxAttempts()).isEqualTo(5);

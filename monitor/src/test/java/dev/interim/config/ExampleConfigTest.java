@@ -47,6 +47,7 @@ class ExampleConfigTest {
     void httpAndWebhookReadTheirSecretsFromTheEnvironment() {
         assertThat(config.http().bindAddress()).isEqualTo("127.0.0.1");
         assertThat(config.http().port()).isEqualTo(8080);
+        assertThat(config.http().allowedHosts()).containsExactly("interim.courier.example");
         assertThat(config.http().adminToken()).hasValueSatisfying(t -> assertThat(t.reveal())
                 .isEqualTo(Configs.exampleEnvironment().get("INTERIM_ADMIN_TOKEN")));
         WebhookSettings w = config.webhook().orElseThrow();

@@ -134,6 +134,10 @@ class InvalidConfigTest {
                         Configs.valid("kafka:\n", "kafka:\n  properties:\n    ssl.truststore: {type: PKCS12}\n")),
                 // http and webhook
                 bad("http.port", "between 0 and 65535; got 70000", Configs.VALID + "http: {port: 70000}\n"),
+                bad("http.allowed_hosts[0]", "without scheme, port or path",
+                        Configs.VALID + "http: {allowed_hosts: ['monitor.courier.example:8080']}\n"),
+                bad("http.allowed_hosts", "must be a list of host names",
+                        Configs.VALID + "http: {allowed_hosts: monitor.courier.example}\n"),
                 bad("webhook.url", "absolute http or https URL",
                         Configs.valid("https://hooks.example/kill", "ftp://hooks.example/kill")),
                 bad("webhook.timeout", "between 100ms and 5m",
