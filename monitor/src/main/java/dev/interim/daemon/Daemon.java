@@ -93,7 +93,7 @@ public final class Daemon implements AutoCloseable {
         webhooks = Executors.newSingleThreadExecutor(r -> daemonThread(r, "interim-webhook"));
         deliveries = config.webhook().isPresent() ? new KafkaDeliveryLog(settings, settings.deliveriesTopic()) : null;
         WebhookSender sender = config.webhook().map(w -> WebhookSender.to(w.url(),
-                        dev.interim.signal.Secret.parse(w.signingKey().reveal()))
+                        dev.interim.signal.SigningKey.parse(w.signingKey().reveal()))
                 .maxAttempts(w.maxAttempts()).backoff(w.initialBackoff(), w.initialBackoff().multipliedBy(32))
                 .requestTimeout(w.timeout()).deliveryLog(deliveries).build()).orElse(null);
         StageEvents events = new Events(meters, sender, webhooks, options.onDecision());

@@ -9,7 +9,7 @@ import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookResult;
 import dev.interim.signal.DecisionJson;
-import dev.interim.signal.Secret;
+import dev.interim.signal.SigningKey;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.charset.StandardCharsets;
@@ -67,8 +67,8 @@ public final class Demo {
     public boolean run() throws IOException, InterruptedException {
         byte[] key = new byte[32];
         new SecureRandom().nextBytes(key);
-        String secret = Secret.PREFIX + Base64.getEncoder().encodeToString(key);
-        try (FlagServiceStandIn flags = new FlagServiceStandIn(Secret.parse(secret), this::say)) {
+        String secret = SigningKey.PREFIX + Base64.getEncoder().encodeToString(key);
+        try (FlagServiceStandIn flags = new FlagServiceStandIn(SigningKey.parse(secret), this::say)) {
             String yaml = DemoScenario.yaml(0, flags.url().toString());
             InterimConfig config = ConfigLoader.parse(yaml, Map.of("DEMO_WEBHOOK_KEY", secret));
             say("starting the embedded Kafka broker and the daemon (data in " + dataDir + ")");

@@ -45,7 +45,7 @@ public final class WebhookSender {
 
     private final URI url;
     private final String shownUrl;
-    private final Secret secret;
+    private final SigningKey secret;
     private final int maxAttempts;
     private final Duration initialBackoff;
     private final Duration maxBackoff;
@@ -79,7 +79,7 @@ public final class WebhookSender {
     }
 
     /** A sender to {@code url} (http or https) signing with {@code secret}; the rest has defaults. */
-    public static Builder to(URI url, Secret secret) {
+    public static Builder to(URI url, SigningKey secret) {
         return new Builder(url, secret);
     }
 
@@ -241,7 +241,7 @@ public final class WebhookSender {
     /** Settings of a {@link WebhookSender}; every one but the URL and the key has a default. */
     public static final class Builder {
         private final URI url;
-        private final Secret secret;
+        private final SigningKey secret;
         private int maxAttempts = 6;
         private Duration initialBackoff = Duration.ofSeconds(1);
         private Duration maxBackoff = Duration.ofSeconds(60);
@@ -253,7 +253,7 @@ public final class WebhookSender {
         private DeliveryLog deliveryLog = DeliveryLog.none();
         private HttpClient client;
 
-        private Builder(URI url, Secret secret) {
+        private Builder(URI url, SigningKey secret) {
             if (url == null || url.getHost() == null
                     || !("http".equalsIgnoreCase(url.getScheme()) || "https".equalsIgnoreCase(url.getScheme()))) {
                 throw new IllegalArgumentException("webhook url must be an absolute http or https URL with a host, got "

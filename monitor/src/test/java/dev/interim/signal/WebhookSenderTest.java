@@ -28,7 +28,7 @@ import org.junit.jupiter.api.Test;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class WebhookSenderTest {
-    static final Secret KEY = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
+    static final SigningKey KEY = SigningKey.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
     static final Instant NOW = Instant.parse("2026-03-01T00:04:10Z");
     static final Clock CLOCK = Clock.fixed(NOW, ZoneOffset.UTC);
 
