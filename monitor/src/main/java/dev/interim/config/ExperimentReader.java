@@ -54,7 +54,7 @@ final class ExperimentReader {
         e.readRequired("metrics", "the list of metrics watched (at least one)", list -> metrics(list, metrics, sources));
         start.requireNone();
         Map<String, Double> shares = split;
-        ExperimentDefinition definition = Domain.build(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
+        ExperimentDefinition definition = Validated.at(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
                 shares, lookEvery, minPerArm, RunMode.dryRun(dryRun), sampleRatio, metrics, assignment));
         return new ExperimentConfig(definition, sources);
     }

@@ -63,7 +63,7 @@ final class MetricReader {
             m.report(m.required("denominator_cap", "").error("applies to ratio metrics only; leave it out, or use cap"));
         }
         start.requireNone();
-        MetricDefinition definition = Domain.build(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
+        MetricDefinition definition = Validated.at(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
                 Sides.of(sides), spending, futility, horizon, baseline, action, cap, denominatorCap));
         return new Read(definition, source);
     }
@@ -80,7 +80,7 @@ final class MetricReader {
                         + "with max_per_arm, leave it out");
             }
             long perArm = m.required("max_per_arm", "").integer();
-            return Domain.build(m, KEYS, () -> new Horizon.MaxPerArm(perArm));
+            return Validated.at(m, KEYS, () -> new Horizon.MaxPerArm(perArm));
         }
         if (!powered) {
             throw m.error("needs a horizon: max_per_arm (the planned maximum per arm), or power with effect "
@@ -98,7 +98,7 @@ final class MetricReader {
                         + "relative_effect: a share of control's level), with power").number();
         int plannedLooks = m.optional("planned_looks").map(ConfigNode::intValue).orElse(DEFAULT_PLANNED_LOOKS);
         Horizon.Scale scale = relative ? Horizon.Scale.RELATIVE : Horizon.Scale.ABSOLUTE;
-        return Domain.build(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks, scale));
+        return Validated.at(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks, scale));
     }
 
     private static MetricSource source(ConfigNode m, MetricKind kind) {
