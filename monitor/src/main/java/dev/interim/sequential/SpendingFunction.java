@@ -1,5 +1,6 @@
 package dev.interim.sequential;
 
+import dev.interim.text.Numbers;
 import java.util.Locale;
 
 /**
@@ -131,7 +132,7 @@ public sealed interface SpendingFunction
 
         @Override
         public String label() {
-            return "power:" + Labels.number(rho);
+            return "power:" + Numbers.plain(rho);
         }
     }
 
@@ -156,7 +157,7 @@ public sealed interface SpendingFunction
 
         @Override
         public String label() {
-            return "hsd:" + Labels.number(gamma);
+            return "hsd:" + Numbers.plain(gamma);
         }
     }
 }
