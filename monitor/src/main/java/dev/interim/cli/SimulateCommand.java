@@ -6,7 +6,6 @@ import dev.interim.config.InterimConfig;
 import dev.interim.sequential.Fractions;
 import dev.interim.simulate.EffectUnit;
 import dev.interim.simulate.Progress;
-import dev.interim.simulate.ProgressBar;
 import dev.interim.simulate.ReportChart;
 import dev.interim.simulate.ReportFormat;
 import dev.interim.simulate.SimulatedComparison;
@@ -126,12 +125,12 @@ public final class SimulateCommand implements Callable<Integer> {
         comparisons.forEach(simulation::effectsOf); // bad effects fail now, before any run
 
         PrintWriter err = spec.commandLine().getErr();
-        ProgressBar bar = System.console() != null ? new ProgressBar(err, System::nanoTime) : null;
+        ProgressBar bar = System.console() != null ? new ProgressBar(err, "simulate", "runs", System::nanoTime) : null;
         long start = System.nanoTime();
-        SimulationReport report = simulation.run(comparisons, bar == null ? Progress.none() : bar);
+        SimulationReport report = simulation.run(comparisons, bar == null ? Progress.none() : bar::show);
         double seconds = (System.nanoTime() - start) / 1e9;
         if (bar != null) {
-            bar.finish();
+            bar.clear();
         }
         output.write(report, spec.commandLine().getOut());
         if (chartFile != null) {
