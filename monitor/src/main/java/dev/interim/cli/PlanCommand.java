@@ -4,6 +4,7 @@ import dev.interim.sequential.Effect;
 import dev.interim.sequential.Fractions;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.Alternative;
+import dev.interim.stats.Probabilities;
 import dev.interim.text.Numbers;
 import java.util.Arrays;
 import java.util.Locale;
@@ -105,14 +106,12 @@ public final class PlanCommand implements Callable<Integer> {
 
     /** The options, checked and assembled. */
     PlanRequest request() {
-        if (!(alpha > 0 && alpha < 1)) {
-            throw new IllegalArgumentException("--alpha must lie strictly between 0 and 1, got " + Numbers.plain(alpha));
-        }
+        Probabilities.requireOpen(alpha, "--alpha");
         Alternative alternative = alternative();
         EfficacyRule efficacy = EfficacyRule.parse(spending);
         double[] t = fractions();
-        if (power != null && !(power > 0 && power < 1)) {
-            throw new IllegalArgumentException("--power must lie strictly between 0 and 1, got " + Numbers.plain(power));
+        if (power != null) {
+            Probabilities.requireOpen(power, "--power");
         }
         double alphaPerSide = alternative == Alternative.TWO_SIDED ? alpha / 2 : alpha;
         if (power != null && power <= alphaPerSide) {
@@ -189,9 +188,8 @@ public final class PlanCommand implements Callable<Integer> {
         if (sd != null && (!(sd > 0) || !Double.isFinite(sd))) {
             throw new IllegalArgumentException("--sd must be positive, got " + Numbers.plain(sd));
         }
-        if (baselineRate != null && !(baselineRate > 0 && baselineRate < 1)) {
-            throw new IllegalArgumentException("--baseline-rate must lie strictly between 0 and 1, got "
-                    + Numbers.plain(baselineRate));
+        if (baselineRate != null) {
+            Probabilities.requireOpen(baselineRate, "--baseline-rate");
         }
         if (alternative == Alternative.GREATER && !(effect > 0) || alternative == Alternative.LESS && !(effect < 0)) {
             throw new IllegalArgumentException("--effect must be " + (alternative == Alternative.GREATER ? "positive" : "negative")

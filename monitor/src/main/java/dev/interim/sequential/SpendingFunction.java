@@ -1,5 +1,6 @@
 package dev.interim.sequential;
 
+import dev.interim.stats.Probabilities;
 import dev.interim.text.Numbers;
 import java.util.Locale;
 
@@ -19,10 +20,7 @@ public sealed interface SpendingFunction
 
     /** Cumulative error spent by information fraction {@code t}, for a total error {@code total}. */
     default double spent(double t, double total) {
-        if (!(total > 0 && total < 1)) {
-            throw new IllegalArgumentException(
-                    "error to spend must lie strictly between 0 and 1, got " + total);
-        }
+        Probabilities.requireOpen(total, "error to spend");
         if (Double.isNaN(t)) {
             throw new IllegalArgumentException("information fraction must be a number, got NaN");
         }

@@ -1,6 +1,7 @@
 package dev.interim.signal;
 
 import dev.interim.experiment.DecisionRecord;
+import dev.interim.stats.Probabilities;
 import java.io.IOException;
 import java.net.URI;
 import java.net.http.HttpClient;
@@ -282,7 +283,7 @@ public final class WebhookSender {
 
         /** The largest share by which a wait may be shortened at random, in [0, 1] (default 0.5). */
         public Builder jitter(double share) {
-            require(share >= 0 && share <= 1, "jitter must lie between 0 and 1, got " + share);
+            Probabilities.requireClosed(share, "jitter");
             this.jitter = share;
             return this;
         }
