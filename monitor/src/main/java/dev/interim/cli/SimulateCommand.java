@@ -6,12 +6,12 @@ import dev.interim.config.InterimConfig;
 import dev.interim.sequential.Fractions;
 import dev.interim.simulate.EffectUnit;
 import dev.interim.simulate.Progress;
-import dev.interim.simulate.ProgressBar;
 import dev.interim.simulate.ReportChart;
 import dev.interim.simulate.ReportFormat;
 import dev.interim.simulate.SimulatedComparison;
 import dev.interim.simulate.Simulation;
 import dev.interim.simulate.SimulationReport;
+import dev.interim.text.Numbers;
 import dev.interim.text.UserText;
 import java.io.IOException;
 import java.io.InputStream;
@@ -126,22 +126,23 @@ public final class SimulateCommand implements Callable<Integer> {
         comparisons.forEach(simulation::effectsOf); // bad effects fail now, before any run
 
         PrintWriter err = spec.commandLine().getErr();
-        ProgressBar bar = System.console() != null ? new ProgressBar(err, System::nanoTime) : null;
+        ProgressBar bar = System.console() != null ? new ProgressBar(err, "simulate", "runs", System::nanoTime) : null;
         long start = System.nanoTime();
-        SimulationReport report = simulation.run(comparisons, bar == null ? Progress.none() : bar);
+        SimulationReport report = simulation.run(comparisons, bar == null ? Progress.none() : bar::show);
         double seconds = (System.nanoTime() - start) / 1e9;
         if (bar != null) {
-            bar.finish();
+            bar.clear();
         }
         output.write(report, spec.commandLine().getOut());
         if (chartFile != null) {
             Files.writeString(chartFile, ReportChart.svg(report), StandardCharsets.UTF_8);
         }
         long pairs = report.comparisons().stream().mapToLong(c -> c.effects().size()).sum();
-        err.println(String.format(Locale.ROOT, "simulate: %d metric-effect pair%s x %,d runs = %,d paths in %.2f s on %d"
-                        + " thread%s (%,.0f paths/s)%s", pairs, pairs == 1 ? "" : "s", runs, pairs * runs, seconds,
-                simulation.threads(), simulation.threads() == 1 ? "" : "s", pairs * runs / Math.max(seconds, 1e-9),
-                chartFile == null ? "" : "; chart written to " + chartFile));
+        err.println("simulate: " + pairs + " metric-effect pair" + (pairs == 1 ? "" : "s") + " x " + Numbers.count(runs)
+                + " runs = " + Numbers.count(pairs * runs) + " paths in " + Numbers.fixed(seconds, 2) + " s on "
+                + simulation.threads() + " thread" + (simulation.threads() == 1 ? "" : "s") + " ("
+                + Numbers.count(Math.round(pairs * runs / Math.max(seconds, 1e-9))) + " paths/s)"
+                + (chartFile == null ? "" : "; chart written to " + chartFile));
         err.flush();
         return Interim.OK;
     }

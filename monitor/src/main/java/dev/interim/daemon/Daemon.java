@@ -332,7 +332,7 @@ public final class Daemon implements AutoCloseable {
         }
 
         private static String fmt(double x) {
-            return Double.isFinite(x) ? String.format(java.util.Locale.ROOT, "%.4g", x) : String.valueOf(x);
+            return dev.interim.text.Numbers.significant(x, 4);
         }
     }
 

@@ -10,6 +10,7 @@ import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookResult;
 import dev.interim.signal.DecisionJson;
 import dev.interim.signal.SigningKey;
+import dev.interim.text.Numbers;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.charset.StandardCharsets;
@@ -117,8 +118,9 @@ public final class Demo {
             for (Comparison c : m.comparisons()) {
                 LookResult last = c.last();
                 out.printf(Locale.ROOT, "  %-12s %-20s %-14s %5s %8s %8s %8s%n", c.arm(), c.metric().name(), c.decision().label(),
-                        last == null ? "-" : last.look().number(), last == null ? "-" : fmt(last.look().fraction()),
-                        last == null ? "-" : fmt(last.estimate().z()), last == null ? "-" : fmt(last.boundary()));
+                        last == null ? Numbers.NONE : last.look().number(), last == null ? Numbers.NONE : Numbers.fixed(last.look().fraction(), 3),
+                        last == null ? Numbers.NONE : Numbers.fixed(last.estimate().z(), 3),
+                        last == null ? Numbers.NONE : Numbers.fixed(last.boundary(), 3));
                 if (c.arm().equals("candidate-b") && c.decision() == Decision.STOP_HARM) {
                     harmStopped = true;
                 }
@@ -133,10 +135,6 @@ public final class Demo {
                 : "the scenario did not end as expected: candidate-b stopped " + harmStopped + ", candidate-a stopped " + healthyStopped);
         out.flush();
         return harmStopped && !healthyStopped;
-    }
-
-    private static String fmt(double x) {
-        return Double.isFinite(x) ? String.format(Locale.ROOT, "%.3f", x) : (x > 0 ? "inf" : x < 0 ? "-inf" : "nan");
     }
 
     private void print(DecisionRecord d) {

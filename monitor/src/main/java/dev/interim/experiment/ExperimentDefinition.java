@@ -1,5 +1,6 @@
 package dev.interim.experiment;
 
+import dev.interim.stats.Probabilities;
 import dev.interim.text.UserText;
 import java.time.Duration;
 import java.util.HashSet;
@@ -72,8 +73,7 @@ public record ExperimentDefinition(String id, String control, List<String> treat
         require(lookEvery != null && !lookEvery.isNegative() && lookEvery.compareTo(Duration.ofSeconds(1)) >= 0,
                 "look_every must be at least 1s, got " + lookEvery);
         require(minPerArm >= 2, "min_per_arm must be at least 2, got " + minPerArm);
-        require(sampleRatioThreshold > 0 && sampleRatioThreshold < 1,
-                "sample_ratio_threshold must lie strictly between 0 and 1, got " + sampleRatioThreshold);
+        Probabilities.requireOpen(sampleRatioThreshold, "sample_ratio_threshold");
         require(metrics != null && !metrics.isEmpty(), "metrics must list at least one metric");
         Set<String> names = new HashSet<>();
         for (MetricDefinition m : metrics) {

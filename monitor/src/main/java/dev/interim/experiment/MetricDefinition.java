@@ -1,6 +1,7 @@
 package dev.interim.experiment;
 
 import dev.interim.sequential.SpendingFunction;
+import dev.interim.stats.Probabilities;
 import dev.interim.text.UserText;
 import java.util.regex.Pattern;
 
@@ -46,7 +47,7 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
         require(kind != null, "kind is required: event-rate, unit-rate, event-mean, unit-total or ratio");
         require(role != null, "role is required: primary or guardrail");
         require(worse != null, "worse is required: higher or lower");
-        require(alpha > 0 && alpha < 1, "alpha must lie strictly between 0 and 1, got " + alpha);
+        Probabilities.requireOpen(alpha, "alpha");
         require(sides != null, "sides is required: 1 or 2");
         require(role != Role.GUARDRAIL || sides == Sides.ONE,
                 "sides must be 1 for a guardrail (it watches for harm only), got " + sides.count());
@@ -56,8 +57,9 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
                 "futility needs a one-sided primary metric with power and effect");
         if (baseline != null) {
             require(Double.isFinite(baseline), "baseline must be a finite number, got " + baseline);
-            require(!kind.isProportion() || (baseline > 0 && baseline < 1),
-                    "baseline of a rate must lie strictly between 0 and 1, got " + baseline);
+            if (kind.isProportion()) {
+                Probabilities.requireOpen(baseline, "baseline of a rate");
+            }
         }
         if (horizon instanceof Horizon.Powered p) {
             require(baseline == null || p.scale() == Horizon.Scale.ABSOLUTE || baseline != 0,

@@ -1,5 +1,7 @@
 package dev.interim.sequential;
 
+import dev.interim.stats.Probabilities;
+import dev.interim.text.Numbers;
 import dev.interim.text.UserText;
 import java.util.Locale;
 
@@ -19,10 +21,7 @@ public sealed interface SpendingFunction
 
     /** Cumulative error spent by information fraction {@code t}, for a total error {@code total}. */
     default double spent(double t, double total) {
-        if (!(total > 0 && total < 1)) {
-            throw new IllegalArgumentException(
-                    "error to spend must lie strictly between 0 and 1, got " + total);
-        }
+        Probabilities.requireOpen(total, "error to spend");
         if (Double.isNaN(t)) {
             throw new IllegalArgumentException("information fraction must be a number, got NaN");
         }
@@ -133,7 +132,7 @@ public sealed interface SpendingFunction
 
         @Override
         public String label() {
-            return "power:" + Labels.number(rho);
+            return "power:" + Numbers.plain(rho);
         }
     }
 
@@ -158,7 +157,7 @@ public sealed interface SpendingFunction
 
         @Override
         public String label() {
-            return "hsd:" + Labels.number(gamma);
+            return "hsd:" + Numbers.plain(gamma);
         }
     }
 }

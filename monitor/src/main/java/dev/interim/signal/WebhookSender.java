@@ -1,6 +1,7 @@
 package dev.interim.signal;
 
 import dev.interim.experiment.DecisionRecord;
+import dev.interim.stats.Probabilities;
 import java.io.IOException;
 import java.net.URI;
 import java.net.http.HttpClient;
@@ -287,7 +288,7 @@ public final class WebhookSender {
          * wait lies between its nominal length and that length times (1 + share), never below it.
          */
         public Builder jitter(double share) {
-            require(share >= 0 && share <= 1, "jitter must lie between 0 and 1, got " + share);
+            Probabilities.requireClosed(share, "jitter");
             this.jitter = share;
             return this;
         }

@@ -69,6 +69,21 @@ class LayeringTest {
                 .check(classes);
     }
 
+    /**
+     * {@code text} is the lowest layer, usable from {@code stats} to the edges: number and markup
+     * text from the JDK's language, math and collection classes alone.
+     */
+    @Test
+    void theTextLayerIsPureAndBelowEverything() {
+        noClasses().that().resideInAPackage("dev.interim.text..")
+                .should().dependOnClassesThat().resideOutsideOfPackages("dev.interim.text..", "java.lang..", "java.math..",
+                        "java.util..")
+                .orShould().callMethod(System.class, "currentTimeMillis")
+                .orShould().callMethod(System.class, "nanoTime")
+                .because("every layer writes its numbers with it, so it may depend on none of them, nor on I/O or the clock")
+                .check(classes);
+    }
+
     @Test
     void layersDependOnlyOnTheOnesBeforeThem() {
         noClasses().that().resideInAPackage("dev.interim.stats..")

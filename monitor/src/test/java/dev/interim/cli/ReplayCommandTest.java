@@ -80,7 +80,7 @@ class ReplayCommandTest {
                 .contains("mossglint-uploads-2031-03: 2,660 events from 2031-03-04T09:00:07.315Z; ")
                 .contains("exposures: current ", "sample ratio p = ");
         String stopRow = lines.stream().filter(l -> l.startsWith("  encoder-b  upload-failures")).findFirst().orElseThrow();
-        assertThat(stopRow).contains("guardrail", "stop-harm", ", inf) 97.5%");
+        assertThat(stopRow).contains("guardrail", "stop-harm", ", ∞) 97.5%");
         String look = lines.get(0).replaceAll(".*  look (\\d+)  .*", "$1");
         assertThat(stopRow.split("\\s+")[5]).isEqualTo(look);
         assertThat(lines.stream().filter(l -> l.startsWith("  encoder-")).count()).as("2 arms x 3 metrics").isEqualTo(6);

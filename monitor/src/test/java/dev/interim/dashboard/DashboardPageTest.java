@@ -131,6 +131,19 @@ class DashboardPageTest {
         assertThat(card).contains("none yet: no variance yet: every event so far is a failure in both arms");
     }
 
+    /**
+     * A tiny sample-ratio p-value reads like a number ({@code 2.6e-24}), never as a row of zeros; the
+     * replay and the report use the same words ({@code dev.interim.text.Numbers.pValue}). Common practice.
+     */
+    @Test
+    void aTinySampleRatioPValueIsWrittenWithAnExponent() {
+        ExperimentView v = Scenarios.perUnitRatio();
+        ExperimentView w = new ExperimentView(v.id(), v.control(), v.treatments(), v.dryRun(), true, "sample-ratio mismatch",
+                new SampleRatio(2.62e-24, true), v.lastLook(), v.exposures(), v.tallies(), v.comparisons(), v.assignment());
+        String text = Xhtml.text(Xhtml.parse(ExperimentSection.html(w, 0, NOW)).doc.getDocumentElement());
+        assertThat(text).contains("p = 2.6e-24 — MISMATCH").doesNotContain("0.0000000");
+    }
+
     /** The relative change in words; the numbers are chosen by hand, so the expected texts are too. */
     @Test
     void theRelativeChangeReadsAsAPercentWithItsInterval() {

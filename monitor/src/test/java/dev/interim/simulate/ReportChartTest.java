@@ -87,8 +87,7 @@ class ReportChartTest {
     }
 
     @Test
-    void textIsEscapedForXml() {
-        assertThat(ReportChart.escape("a<b & \"c\" 'd'>")).isEqualTo("a&lt;b &amp; &quot;c&quot; &apos;d&apos;&gt;");
+    void theProbabilityAxisEndsAtANiceNumber() {
         assertThat(ReportChart.niceCeiling(0.13)).isEqualTo(0.2);
         assertThat(ReportChart.niceCeiling(0.02)).isEqualTo(0.02);
         assertThat(ReportChart.niceCeiling(0.0)).isEqualTo(1);

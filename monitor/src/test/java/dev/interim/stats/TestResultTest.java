@@ -25,7 +25,7 @@ class TestResultTest {
         TestResult r = t(2, 10, Alternative.TWO_SIDED);
         // common practice: a significance level lies strictly between 0 and 1
         assertThatThrownBy(() -> r.reject(alpha)).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("alpha must be in the open interval (0, 1)");
+                .hasMessageContaining("alpha must lie strictly between 0 and 1");
     }
 
     @Test
@@ -70,7 +70,7 @@ class TestResultTest {
         assertThat(ci.upper()).isCloseTo(10 + 2 * q, within(1e-9));
         assertThat(ci.contains(10)).isTrue(); // common practice: the interval holds its estimate
         assertThatThrownBy(() -> z.confidenceInterval(1.0)).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("level must be in the open interval (0, 1)");
+                .hasMessageContaining("level must lie strictly between 0 and 1");
     }
 
     @ParameterizedTest
