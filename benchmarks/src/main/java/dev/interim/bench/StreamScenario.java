@@ -5,7 +5,7 @@ import java.util.Set;
 import java.util.SplittableRandom;
 
 /**
- * The invented traffic of the stream benchmark: "Skylark Trips", a fictional travel-booking site,
+ * The invented traffic of the stream benchmark: "Wendrift Trips", a fictional travel-booking site,
  * runs four experiments at once on one topic of JSON events, each keyed by the traveller (the unit).
  *
  * <ul>
@@ -27,7 +27,7 @@ import java.util.SplittableRandom;
  * sums are exact in binary floating point.
  */
 final class StreamScenario {
-    static final String TOPIC = "skylark.booking-events";
+    static final String TOPIC = "wendrift.booking-events";
 
     /** Where a metric reads the event. */
     enum Field {
@@ -280,7 +280,7 @@ final class StreamScenario {
     /** The daemon's configuration for this scenario. */
     static String yaml(String bootstrapServers, String prefix, long maxPerArm, int tallyThreads) {
         StringBuilder b = new StringBuilder();
-        b.append("# Written by dev.interim.bench.StreamBench: the invented Skylark Trips traffic on the bench's broker.\n");
+        b.append("# Written by dev.interim.bench.StreamBench: the invented Wendrift Trips traffic on the bench's broker.\n");
         b.append("kafka:\n");
         b.append("  bootstrap_servers: [").append(bootstrapServers).append("]\n");
         b.append("  input_topics: [").append(TOPIC).append("]\n");

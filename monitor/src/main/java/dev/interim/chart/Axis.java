@@ -1,5 +1,6 @@
 package dev.interim.chart;
 
+import dev.interim.text.Numbers;
 import java.util.ArrayList;
 import java.util.List;
 

@@ -2,9 +2,10 @@ package dev.interim.chart;
 
 import dev.interim.experiment.ExperimentView.ComparisonView;
 import dev.interim.experiment.LookPoint;
+import dev.interim.text.Markup;
+import dev.interim.text.Numbers;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.Locale;
 import java.util.function.ToDoubleFunction;
 import java.util.regex.Pattern;
 
@@ -537,8 +538,6 @@ public final class BoundaryChart {
 
     /** A coordinate with one decimal: enough for a screen, small in the page. */
     static String n(double v) {
-        String s = String.format(Locale.ROOT, "%.1f", v);
-        s = s.endsWith(".0") ? s.substring(0, s.length() - 2) : s;
-        return s.equals("-0") ? "0" : s;
+        return Numbers.rounded(v, 1).toPlainString();
     }
 }

@@ -10,6 +10,7 @@ import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Horizon;
 import dev.interim.experiment.MetricDefinition;
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -25,8 +26,9 @@ import picocli.CommandLine.Spec;
 /**
  * {@code interim check}: reads and validates a configuration without starting anything, and prints
  * what it understood: per experiment how arms were assigned, per metric its design and where it is
- * read (with caps, and both fields of a ratio). An invalid file is bad input: one line naming the
- * file, the key, the value and the rule, and exit code 2 (see {@link UserErrorHandler}). A valid file
+ * read (with caps, and both fields of a ratio). An invalid file is bad input: a line per problem
+ * naming the file, the key, the value and the rule (every problem of the file, those of the values
+ * before those of the secrets), and exit code 2 (see {@link UserErrorHandler}). A valid file
  * that is likely a slip gets a {@code WARN:} line under its experiment and still exits 0: events
  * that carry a unit while an experiment's arms are assigned per event.
  */
@@ -104,7 +106,7 @@ public final class CheckCommand implements Callable<Integer> {
         double total = e.split().values().stream().mapToDouble(Double::doubleValue).sum();
         List<String> arms = new ArrayList<>();
         for (String arm : e.arms()) {
-            String share = Decimals.rounded(100 * e.split().get(arm) / total, 1).toPlainString() + "%";
+            String share = Numbers.rounded(100 * e.split().get(arm) / total, 1).toPlainString() + "%";
             arms.add(arm + (arm.equals(e.control()) ? " (control, " + share + ")" : " (" + share + ")"));
         }
         out.println();
@@ -122,19 +124,19 @@ public final class CheckCommand implements Callable<Integer> {
                     + " skewed values; the measured error rates in the README use 100");
         }
         out.println("  looks every " + Durations.format(e.lookEvery()) + " once every arm has " + e.minPerArm()
-                + "; sample ratio mismatch holds decisions below p = " + Decimals.plain(e.sampleRatioThreshold()));
+                + "; sample ratio mismatch holds decisions below p = " + Numbers.plain(e.sampleRatioThreshold()));
         List<String[]> rows = new ArrayList<>();
         rows.add(new String[] {"metric", "kind", "role", "worse", "alpha/comparison", "sides", "spending", "horizon",
             "on harm", "source"});
         for (MetricDefinition m : e.metrics()) {
             rows.add(new String[] {
                 m.name(), m.kind().label(), lower(m.role()), lower(m.worse()),
-                Decimals.plain(e.comparisonAlpha(m)) + (e.treatments().size() > 1 ? " (" + Decimals.plain(m.alpha())
+                Numbers.plain(e.comparisonAlpha(m)) + (e.treatments().size() > 1 ? " (" + Numbers.plain(m.alpha())
                         + "/" + e.treatments().size() + ")" : ""),
-                String.valueOf(m.sides()),
+                String.valueOf(m.sides().count()),
                 SpendingNames.describe(m.spending()) + (m.futility() == null ? "" : ", futility "
                         + SpendingNames.describe(m.futility())),
-                horizon(m.horizon()) + (m.baseline() == null ? "" : ", vs baseline " + Decimals.plain(m.baseline())),
+                horizon(m.horizon()) + (m.baseline() == null ? "" : ", vs baseline " + Numbers.plain(m.baseline())),
                 lower(m.action()),
                 source(config.source(m), m),
             });
@@ -148,9 +150,9 @@ public final class CheckCommand implements Callable<Integer> {
         }
         Horizon.Powered p = (Horizon.Powered) h;
         String effect = p.scale() == Horizon.Scale.RELATIVE
-                ? "relative effect " + (p.effect() > 0 ? "+" : "") + Decimals.plain(100 * p.effect()) + "%"
-                : "effect " + Decimals.plain(p.effect());
-        return "power " + Decimals.plain(p.power()) + " for " + effect + ", " + p.plannedLooks() + " planned looks";
+                ? "relative effect " + (p.effect() > 0 ? "+" : "") + Numbers.plain(100 * p.effect()) + "%"
+                : "effect " + Numbers.plain(p.effect());
+        return "power " + Numbers.plain(p.power()) + " for " + effect + ", " + p.plannedLooks() + " planned looks";
     }
 
     /**
@@ -169,7 +171,7 @@ public final class CheckCommand implements Callable<Integer> {
     }
 
     private static String capped(Double cap) {
-        return cap == null ? "" : " capped at " + Decimals.plain(cap);
+        return cap == null ? "" : " capped at " + Numbers.plain(cap);
     }
 
     private static String lower(Enum<?> e) {

@@ -51,7 +51,8 @@ public final class DemoCommand implements Callable<Integer> {
         Path dir = dataDir != null ? dataDir : Files.createTempDirectory("interim-demo-");
         PrintWriter out = spec.commandLine().getOut();
         PrintWriter err = spec.commandLine().getErr();
-        Demo demo = new Demo(out, err, dir, Duration.ofMillis((long) (minutes * 60_000)), keepRunning, saveEvents);
+        Demo demo = new Demo(out, err, dir, Duration.ofMillis((long) (minutes * 60_000)),
+                keepRunning ? Demo.Ending.KEEP_RUNNING : Demo.Ending.AFTER_VERDICT, saveEvents);
         return demo.run() ? Interim.OK : Interim.FAILURE;
     }
 }

@@ -4,6 +4,7 @@ import dev.interim.sequential.ClassicBoundary;
 import dev.interim.sequential.GroupSequentialDesign;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.Alternative;
+import dev.interim.text.UserText;
 import java.util.Locale;
 
 /**
@@ -24,7 +25,7 @@ record EfficacyRule(SpendingFunction spending, ClassicBoundary.Shape classic) {
         }
         String head = s.contains(":") ? s.substring(0, s.indexOf(':')) : s;
         if (!head.equals("obf") && !head.equals("pocock") && !head.equals("power") && !head.equals("hsd")) {
-            throw new IllegalArgumentException("unknown --spending '" + text + "': use " + FORMS);
+            throw new IllegalArgumentException("unknown --spending " + UserText.quoted(text) + ": use " + FORMS);
         }
         try {
             return new EfficacyRule(SpendingFunction.parse(s), null);

@@ -45,8 +45,18 @@ public final class Interim implements Callable<Integer> {
         System.exit(commandLine().execute(args));
     }
 
-    /** The configured command line writing to the process's standard output and error. */
+    /**
+     * The configured command line writing to the process's standard output and error, in UTF-8
+     * whatever the locale (the output has ∞, – and ≥; a C locale would print them as '?').
+     */
     public static CommandLine commandLine() {
+        CommandLine cli = configured();
+        cli.setOut(new PrintWriter(new java.io.OutputStreamWriter(System.out, java.nio.charset.StandardCharsets.UTF_8), true));
+        cli.setErr(new PrintWriter(new java.io.OutputStreamWriter(System.err, java.nio.charset.StandardCharsets.UTF_8), true));
+        return cli;
+    }
+
+    private static CommandLine configured() {
         CommandLine cli = new CommandLine(new Interim());
         UserErrorHandler errors = new UserErrorHandler();
         cli.setParameterExceptionHandler(errors);
@@ -56,7 +66,7 @@ public final class Interim implements Callable<Integer> {
 
     /** The same command line writing to the given streams (tests, embedding). */
     public static CommandLine commandLine(PrintWriter out, PrintWriter err) {
-        CommandLine cli = commandLine();
+        CommandLine cli = configured();
         cli.setOut(out);
         cli.setErr(err);
         return cli;

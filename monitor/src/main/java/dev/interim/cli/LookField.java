@@ -1,6 +1,7 @@
 package dev.interim.cli;
 
 import dev.interim.sequential.Look;
+import dev.interim.text.Numbers;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.function.Function;
@@ -17,13 +18,13 @@ record LookField(String name, Function<Look, Number> value) {
     static List<LookField> of(PlanReport report) {
         List<LookField> fields = new ArrayList<>(List.of(
                 new LookField("look", Look::number),
-                new LookField("fraction", look -> Decimals.rounded(look.fraction(), BOUNDARY_DECIMALS)),
+                new LookField("fraction", look -> Numbers.rounded(look.fraction(), BOUNDARY_DECIMALS)),
                 new LookField("upper", look -> boundary(look.upper())),
                 new LookField("lower", look -> boundary(look.lower())),
-                new LookField("alpha_spent", look -> Decimals.significant(look.alphaSpent(), PROBABILITY_DIGITS)),
-                new LookField("alpha_increment", look -> Decimals.significant(look.alphaIncrement(), PROBABILITY_DIGITS))));
+                new LookField("alpha_spent", look -> Numbers.significantDecimal(look.alphaSpent(), PROBABILITY_DIGITS)),
+                new LookField("alpha_increment", look -> Numbers.significantDecimal(look.alphaIncrement(), PROBABILITY_DIGITS))));
         if (report.hasFutility()) {
-            fields.add(new LookField("beta_spent", look -> Decimals.significant(look.betaSpent(), PROBABILITY_DIGITS)));
+            fields.add(new LookField("beta_spent", look -> Numbers.significantDecimal(look.betaSpent(), PROBABILITY_DIGITS)));
         }
         if (report.sized()) {
             fields.add(new LookField("n_per_arm", report::perArmAt));
@@ -32,6 +33,6 @@ record LookField(String name, Function<Look, Number> value) {
     }
 
     private static Number boundary(double z) {
-        return Double.isInfinite(z) ? null : Decimals.rounded(z, BOUNDARY_DECIMALS);
+        return Double.isInfinite(z) ? null : Numbers.rounded(z, BOUNDARY_DECIMALS);
     }
 }

@@ -4,6 +4,9 @@ import dev.interim.sequential.Effect;
 import dev.interim.sequential.Fractions;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.Alternative;
+import dev.interim.stats.Probabilities;
+import dev.interim.text.Numbers;
+import dev.interim.text.UserText;
 import java.util.Arrays;
 import java.util.Locale;
 import java.util.concurrent.Callable;
@@ -104,19 +107,17 @@ public final class PlanCommand implements Callable<Integer> {
 
     /** The options, checked and assembled. */
     PlanRequest request() {
-        if (!(alpha > 0 && alpha < 1)) {
-            throw new IllegalArgumentException("--alpha must lie strictly between 0 and 1, got " + Decimals.plain(alpha));
-        }
+        Probabilities.requireOpen(alpha, "--alpha");
         Alternative alternative = alternative();
         EfficacyRule efficacy = EfficacyRule.parse(spending);
         double[] t = fractions();
-        if (power != null && !(power > 0 && power < 1)) {
-            throw new IllegalArgumentException("--power must lie strictly between 0 and 1, got " + Decimals.plain(power));
+        if (power != null) {
+            Probabilities.requireOpen(power, "--power");
         }
         double alphaPerSide = alternative == Alternative.TWO_SIDED ? alpha / 2 : alpha;
         if (power != null && power <= alphaPerSide) {
-            throw new IllegalArgumentException("--power must be above the alpha of one side (" + Decimals.plain(alphaPerSide)
-                    + "), got " + Decimals.plain(power) + "; plan for a power such as 0.8 or 0.9");
+            throw new IllegalArgumentException("--power must be above the alpha of one side (" + Numbers.plain(alphaPerSide)
+                    + "), got " + Numbers.plain(power) + "; plan for a power such as 0.8 or 0.9");
         }
         return new PlanRequest(alpha, alternative, efficacy, t, power, effect(alternative), futilityRule(alternative));
     }
@@ -135,7 +136,7 @@ public final class PlanCommand implements Callable<Integer> {
         return switch (d) {
             case "greater" -> Alternative.GREATER;
             case "less" -> Alternative.LESS;
-            default -> throw new IllegalArgumentException("--direction must be greater or less, got '" + direction + "'");
+            default -> throw new IllegalArgumentException("--direction must be greater or less, got " + UserText.quoted(direction));
         };
     }
 
@@ -183,19 +184,18 @@ public final class PlanCommand implements Callable<Integer> {
             throw new IllegalArgumentException("--effect needs --sd (difference of means) or --baseline-rate (difference of rates)");
         }
         if (!(effect != 0) || !Double.isFinite(effect)) {
-            throw new IllegalArgumentException("--effect must be a non-zero number, got " + Decimals.plain(effect));
+            throw new IllegalArgumentException("--effect must be a non-zero number, got " + Numbers.plain(effect));
         }
         if (sd != null && (!(sd > 0) || !Double.isFinite(sd))) {
-            throw new IllegalArgumentException("--sd must be positive, got " + Decimals.plain(sd));
+            throw new IllegalArgumentException("--sd must be positive, got " + Numbers.plain(sd));
         }
-        if (baselineRate != null && !(baselineRate > 0 && baselineRate < 1)) {
-            throw new IllegalArgumentException("--baseline-rate must lie strictly between 0 and 1, got "
-                    + Decimals.plain(baselineRate));
+        if (baselineRate != null) {
+            Probabilities.requireOpen(baselineRate, "--baseline-rate");
         }
         if (alternative == Alternative.GREATER && !(effect > 0) || alternative == Alternative.LESS && !(effect < 0)) {
             throw new IllegalArgumentException("--effect must be " + (alternative == Alternative.GREATER ? "positive" : "negative")
                     + " for --direction " + (alternative == Alternative.GREATER ? "greater" : "less")
-                    + ", got " + Decimals.plain(effect));
+                    + ", got " + Numbers.plain(effect));
         }
         return sd != null ? new Effect.MeanDifference(effect, sd) : new Effect.ProportionDifference(baselineRate, effect);
     }

@@ -1,5 +1,6 @@
 package dev.interim.cli;
 
+import dev.interim.text.UserText;
 import java.io.PrintWriter;
 import java.util.Arrays;
 import java.util.Locale;
@@ -38,7 +39,7 @@ enum PlanFormat {
                 return f;
             }
         }
-        throw new IllegalArgumentException("unknown --format '" + text + "': use "
+        throw new IllegalArgumentException("unknown --format " + UserText.quoted(text) + ": use "
                 + Arrays.stream(values()).map(PlanFormat::label).collect(Collectors.joining(", ")));
     }
 }

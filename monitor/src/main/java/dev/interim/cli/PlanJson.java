@@ -9,6 +9,7 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.interim.sequential.Effect;
 import dev.interim.sequential.Look;
 import dev.interim.sequential.SampleSizePlan;
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.io.UncheckedIOException;
 import java.math.BigDecimal;
@@ -42,9 +43,9 @@ final class PlanJson {
         root.set("design", design(report));
         if (report.power() != null) {
             ObjectNode power = root.putObject("power");
-            power.put("power", Decimals.given(report.power().power()));
-            power.put("inflation", Decimals.rounded(report.power().inflation(), DECIMALS));
-            power.put("drift", Decimals.rounded(report.power().drift(), DECIMALS));
+            power.put("power", Numbers.given(report.power().power()));
+            power.put("inflation", Numbers.rounded(report.power().inflation(), DECIMALS));
+            power.put("drift", Numbers.rounded(report.power().drift(), DECIMALS));
         }
         if (report.sized()) {
             root.set("sample_size", sampleSize(report));
@@ -63,21 +64,21 @@ final class PlanJson {
     private static ObjectNode design(PlanReport report) {
         PlanRequest request = report.request();
         ObjectNode design = MAPPER.createObjectNode();
-        design.put("alpha", Decimals.given(request.alpha()));
+        design.put("alpha", Numbers.given(request.alpha()));
         design.put("sides", request.sides());
         design.put("direction", request.direction());
         design.put("spending", request.efficacy().label());
         if (report.design().classic() != null) {
-            design.put("classic_constant", Decimals.rounded(report.design().classic().constant(), DECIMALS));
+            design.put("classic_constant", Numbers.rounded(report.design().classic().constant(), DECIMALS));
         }
         ArrayNode fractions = design.putArray("fractions");
         for (double t : request.fractions()) {
-            fractions.add(Decimals.rounded(t, DECIMALS));
+            fractions.add(Numbers.rounded(t, DECIMALS));
         }
         if (report.hasFutility()) {
             ObjectNode futility = design.putObject("futility");
             futility.put("spending", report.design().futility().spending().label());
-            futility.put("beta", Decimals.rounded(report.design().futility().beta(), DECIMALS));
+            futility.put("beta", Numbers.rounded(report.design().futility().beta(), DECIMALS));
             futility.put("binding", false);
         } else {
             design.putNull("futility");
@@ -92,18 +93,18 @@ final class PlanJson {
         Effect e = report.request().effect();
         if (e instanceof Effect.MeanDifference m) {
             effect.put("kind", "mean_difference");
-            effect.put("difference", Decimals.given(m.delta()));
-            effect.put("sd", Decimals.given(m.sd()));
+            effect.put("difference", Numbers.given(m.delta()));
+            effect.put("sd", Numbers.given(m.sd()));
         } else if (e instanceof Effect.ProportionDifference p) {
             effect.put("kind", "proportion_difference");
-            effect.put("baseline_rate", Decimals.given(p.baseline()));
-            effect.put("difference", Decimals.given(p.delta()));
+            effect.put("baseline_rate", Numbers.given(p.baseline()));
+            effect.put("difference", Numbers.given(p.delta()));
         }
         size.put("fixed_per_arm", plan.fixedPerArm());
-        size.put("inflation", Decimals.rounded(plan.inflation(), DECIMALS));
+        size.put("inflation", Numbers.rounded(plan.inflation(), DECIMALS));
         size.put("maximum_per_arm", plan.maximumPerArm());
-        size.put("expected_per_arm_no_effect", Decimals.rounded(plan.expectedUnderNull(), DECIMALS));
-        size.put("expected_per_arm_at_effect", Decimals.rounded(plan.expectedUnderAlternative(), DECIMALS));
+        size.put("expected_per_arm_no_effect", Numbers.rounded(plan.expectedUnderNull(), DECIMALS));
+        size.put("expected_per_arm_at_effect", Numbers.rounded(plan.expectedUnderAlternative(), DECIMALS));
         return size;
     }
 

@@ -5,6 +5,7 @@ import dev.interim.sequential.GroupSequentialDesign;
 import dev.interim.sequential.Look;
 import dev.interim.sequential.SampleSizePlan;
 import dev.interim.stats.Alternative;
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.util.ArrayList;
 import java.util.List;
@@ -36,15 +37,15 @@ final class PlanTable {
         GroupSequentialDesign design = report.design();
         StringBuilder title = new StringBuilder("Design: ");
         title.append(request.sides() == 2 ? "two-sided" : "one-sided (" + request.direction() + ")")
-                .append(", alpha ").append(Decimals.plain(request.alpha()))
+                .append(", alpha ").append(Numbers.plain(request.alpha()))
                 .append(", ").append(request.efficacy().describe());
         if (design.classic() != null) {
-            title.append(" with constant ").append(Decimals.fixed(design.classic().constant(), 4));
+            title.append(" with constant ").append(Numbers.fixed(design.classic().constant(), 4));
         }
         title.append(", ").append(report.looks().size()).append(report.looks().size() == 1 ? " look" : " looks");
         if (report.hasFutility()) {
             title.append("; non-binding futility by ").append(SpendingNames.describe(design.futility().spending()))
-                    .append(" beta spending, beta ").append(Decimals.plain(design.futility().beta()));
+                    .append(" beta spending, beta ").append(Numbers.plain(design.futility().beta()));
         }
         return title.toString();
     }
@@ -61,12 +62,12 @@ final class PlanTable {
         for (Look look : report.looks()) {
             List<String> row = new ArrayList<>(List.of(
                     Integer.toString(look.number()),
-                    Decimals.fixed(look.fraction(), 4),
+                    Numbers.fixed(look.fraction(), 4),
                     boundary(look.upper()),
                     boundary(look.lower()),
-                    Decimals.fixed(look.alphaSpent(), 6)));
+                    Numbers.fixed(look.alphaSpent(), 6)));
             if (report.hasFutility()) {
-                row.add(Decimals.fixed(look.betaSpent(), 4));
+                row.add(Numbers.fixed(look.betaSpent(), 4));
             }
             if (report.sized()) {
                 row.add(Long.toString(report.perArmAt(look)));
@@ -77,7 +78,7 @@ final class PlanTable {
     }
 
     private static String boundary(double z) {
-        return Double.isInfinite(z) ? ABSENT : Decimals.fixed(z, 4);
+        return Double.isInfinite(z) ? ABSENT : Numbers.fixed(z, 4);
     }
 
     /** The footnote: which crossing means what, in the design's direction. */
@@ -104,19 +105,19 @@ final class PlanTable {
         PlanReport.PowerSummary power = report.power();
         SampleSizePlan plan = report.sampleSize();
         if (plan == null) {
-            out.println("For power " + Decimals.plain(power.power()) + ", the maximum information is "
-                    + Decimals.fixed(power.inflation(), 4) + " times that of a single-look test (drift "
-                    + Decimals.fixed(power.drift(), 4) + ").");
+            out.println("For power " + Numbers.plain(power.power()) + ", the maximum information is "
+                    + Numbers.fixed(power.inflation(), 4) + " times that of a single-look test (drift "
+                    + Numbers.fixed(power.drift(), 4) + ").");
             out.println("Add --effect with --sd (means) or --baseline-rate (proportions) for sample sizes.");
             return;
         }
         out.println("Sample size per arm to detect " + effect(report.request().effect())
-                + " with power " + Decimals.plain(power.power()) + ":");
+                + " with power " + Numbers.plain(power.power()) + ":");
         item(out, "single-look test", Long.toString(plan.fixedPerArm()));
-        item(out, "inflation factor", Decimals.fixed(plan.inflation(), 4));
+        item(out, "inflation factor", Numbers.fixed(plan.inflation(), 4));
         item(out, "maximum (last look)", Long.toString(plan.maximumPerArm()));
-        item(out, "expected if no effect", Decimals.fixed(plan.expectedUnderNull(), 1));
-        item(out, "expected at the effect", Decimals.fixed(plan.expectedUnderAlternative(), 1));
+        item(out, "expected if no effect", Numbers.fixed(plan.expectedUnderNull(), 1));
+        item(out, "expected at the effect", Numbers.fixed(plan.expectedUnderAlternative(), 1));
     }
 
     private static void item(PrintWriter out, String label, String value) {
@@ -125,10 +126,10 @@ final class PlanTable {
 
     private static String effect(Effect effect) {
         if (effect instanceof Effect.MeanDifference m) {
-            return "a difference in means of " + Decimals.plain(m.delta()) + " (sd " + Decimals.plain(m.sd()) + ")";
+            return "a difference in means of " + Numbers.plain(m.delta()) + " (sd " + Numbers.plain(m.sd()) + ")";
         }
         Effect.ProportionDifference p = (Effect.ProportionDifference) effect;
-        return "a change of " + (p.delta() > 0 ? "+" : "") + Decimals.plain(p.delta())
-                + " from a baseline rate of " + Decimals.plain(p.baseline());
+        return "a change of " + (p.delta() > 0 ? "+" : "") + Numbers.plain(p.delta())
+                + " from a baseline rate of " + Numbers.plain(p.baseline());
     }
 }

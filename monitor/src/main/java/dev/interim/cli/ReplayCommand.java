@@ -3,12 +3,12 @@ package dev.interim.cli;
 import dev.interim.config.ConfigLoader;
 import dev.interim.config.InterimConfig;
 import dev.interim.experiment.DecisionRecord;
-import dev.interim.replay.ProgressBar;
 import dev.interim.replay.Replay;
 import dev.interim.replay.ReplayListener;
 import dev.interim.replay.ReplayResult;
 import dev.interim.replay.ReplayText;
 import dev.interim.signal.DecisionJson;
+import dev.interim.text.UserText;
 import java.io.PrintWriter;
 import java.nio.file.Path;
 import java.util.Locale;
@@ -90,7 +90,7 @@ public final class ReplayCommand implements Callable<Integer> {
         PrintWriter out = spec.commandLine().getOut();
         PrintWriter err = spec.commandLine().getErr();
         ReplayText text = new ReplayText(c);
-        ProgressBar bar = (terminal != null ? terminal : System.console() != null) ? new ProgressBar(err) : null;
+        ProgressBar bar = (terminal != null ? terminal : System.console() != null) ? new ProgressBar(err, "replay", "events", System::nanoTime) : null;
         ReplayResult result = new Replay(c).run(events, new ReplayListener() {
             @Override
             public void decided(DecisionRecord d) {
@@ -103,8 +103,10 @@ public final class ReplayCommand implements Callable<Integer> {
 
             @Override
             public void progressed(Progress p) {
-                if (bar != null) {
-                    bar.show(p);
+                if (bar != null && p.done()) {
+                    bar.clear();
+                } else if (bar != null) {
+                    bar.show(p.fractionRead(), p.events());
                 }
             }
         });
@@ -124,7 +126,7 @@ public final class ReplayCommand implements Callable<Integer> {
     private static boolean jsonl(String format) {
         String f = format.strip().toLowerCase(Locale.ROOT);
         if (!f.equals("text") && !f.equals("jsonl")) {
-            throw new IllegalArgumentException("unknown --format '" + format + "': use text or jsonl");
+            throw new IllegalArgumentException("unknown --format " + UserText.quoted(format) + ": use text or jsonl");
         }
         return f.equals("jsonl");
     }

@@ -31,7 +31,7 @@ import picocli.CommandLine.Spec;
         },
         footerHeading = "%nExamples:%n",
         footer = {
-            "  interim report --experiment tidepool-payments-2026-12",
+            "  interim report --experiment quorvel-payments-2026-12",
             "  interim report --experiment checkout-canary --from http://10.0.4.7:8080 --out /tmp/canary.html",
         })
 public final class ReportCommand implements Callable<Integer> {

@@ -6,12 +6,13 @@ import dev.interim.config.InterimConfig;
 import dev.interim.sequential.Fractions;
 import dev.interim.simulate.EffectUnit;
 import dev.interim.simulate.Progress;
-import dev.interim.simulate.ProgressBar;
 import dev.interim.simulate.ReportChart;
 import dev.interim.simulate.ReportFormat;
 import dev.interim.simulate.SimulatedComparison;
 import dev.interim.simulate.Simulation;
 import dev.interim.simulate.SimulationReport;
+import dev.interim.text.Numbers;
+import dev.interim.text.UserText;
 import java.io.IOException;
 import java.io.InputStream;
 import java.io.PrintWriter;
@@ -125,22 +126,23 @@ public final class SimulateCommand implements Callable<Integer> {
         comparisons.forEach(simulation::effectsOf); // bad effects fail now, before any run
 
         PrintWriter err = spec.commandLine().getErr();
-        ProgressBar bar = System.console() != null ? new ProgressBar(err, System::nanoTime) : null;
+        ProgressBar bar = System.console() != null ? new ProgressBar(err, "simulate", "runs", System::nanoTime) : null;
         long start = System.nanoTime();
-        SimulationReport report = simulation.run(comparisons, bar == null ? Progress.none() : bar);
+        SimulationReport report = simulation.run(comparisons, bar == null ? Progress.none() : bar::show);
         double seconds = (System.nanoTime() - start) / 1e9;
         if (bar != null) {
-            bar.finish();
+            bar.clear();
         }
         output.write(report, spec.commandLine().getOut());
         if (chartFile != null) {
             Files.writeString(chartFile, ReportChart.svg(report), StandardCharsets.UTF_8);
         }
         long pairs = report.comparisons().stream().mapToLong(c -> c.effects().size()).sum();
-        err.println(String.format(Locale.ROOT, "simulate: %d metric-effect pair%s x %,d runs = %,d paths in %.2f s on %d"
-                        + " thread%s (%,.0f paths/s)%s", pairs, pairs == 1 ? "" : "s", runs, pairs * runs, seconds,
-                simulation.threads(), simulation.threads() == 1 ? "" : "s", pairs * runs / Math.max(seconds, 1e-9),
-                chartFile == null ? "" : "; chart written to " + chartFile));
+        err.println("simulate: " + pairs + " metric-effect pair" + (pairs == 1 ? "" : "s") + " x " + Numbers.count(runs)
+                + " runs = " + Numbers.count(pairs * runs) + " paths in " + Numbers.fixed(seconds, 2) + " s on "
+                + simulation.threads() + " thread" + (simulation.threads() == 1 ? "" : "s") + " ("
+                + Numbers.count(Math.round(pairs * runs / Math.max(seconds, 1e-9))) + " paths/s)"
+                + (chartFile == null ? "" : "; chart written to " + chartFile));
         err.flush();
         return Interim.OK;
     }
@@ -189,7 +191,8 @@ public final class SimulateCommand implements Callable<Integer> {
             return null;
         }
         if (!chart.getFileName().toString().toLowerCase(Locale.ROOT).endsWith(".svg")) {
-            throw new IllegalArgumentException("--chart writes an SVG image: give a file name ending in .svg, got '" + chart + "'");
+            throw new IllegalArgumentException("--chart writes an SVG image: give a file name ending in .svg, got "
+                    + UserText.quoted(String.valueOf(chart)));
         }
         Path parent = chart.toAbsolutePath().getParent();
         if (parent != null && !Files.isDirectory(parent)) {
@@ -243,7 +246,7 @@ public final class SimulateCommand implements Callable<Integer> {
         for (String name : text.split(",", -1)) {
             String n = name.strip();
             if (!known.contains(n)) {
-                throw new IllegalArgumentException(option + ": '" + n + "' is not in the configuration; it has "
+                throw new IllegalArgumentException(option + ": " + UserText.quoted(n) + " is not in the configuration; it has "
                         + String.join(", ", known));
             }
             wanted.add(n);
@@ -262,7 +265,7 @@ public final class SimulateCommand implements Callable<Integer> {
             return values;
         } catch (NumberFormatException e) {
             throw new IllegalArgumentException(option + " must be numbers separated by commas, such as " + example
-                    + "; got '" + text + "'");
+                    + "; got " + UserText.quoted(text));
         }
     }
 }

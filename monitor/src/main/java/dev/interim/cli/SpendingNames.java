@@ -1,6 +1,7 @@
 package dev.interim.cli;
 
 import dev.interim.sequential.SpendingFunction;
+import dev.interim.text.Numbers;
 
 /** Human names of the spending functions, for titles. */
 final class SpendingNames {
@@ -14,10 +15,10 @@ final class SpendingNames {
             return "Pocock-type";
         }
         if (f instanceof SpendingFunction.Power p) {
-            return "power (rho " + Decimals.plain(p.rho()) + ")";
+            return "power (rho " + Numbers.plain(p.rho()) + ")";
         }
         if (f instanceof SpendingFunction.HwangShihDeCani h) {
-            return "Hwang-Shih-DeCani (gamma " + Decimals.plain(h.gamma()) + ")";
+            return "Hwang-Shih-DeCani (gamma " + Numbers.plain(h.gamma()) + ")";
         }
         return f.label();
     }

@@ -1,6 +1,8 @@
 package dev.interim.cli;
 
+import dev.interim.config.ConfigException;
 import dev.interim.daemon.EnvironmentException;
+import dev.interim.text.UserText;
 import java.io.PrintWriter;
 import picocli.CommandLine;
 import picocli.CommandLine.IExecutionExceptionHandler;
@@ -16,6 +18,10 @@ import picocli.CommandLine.UnmatchedArgumentException;
  * environment ({@link EnvironmentException}: a port in use, brokers out of reach, ...) exits with 2
  * and its message, which says what to do; anything else is a bug and exits with 1. Set the
  * environment variable {@code INTERIM_DEBUG} to also get the stack trace of a bug.
+ *
+ * <p>A configuration with several problems gets one line per problem (file, key path, rule), then a
+ * line counting them. Lines are escaped by {@link UserText} (no control, bidirectional or zero-width
+ * character from the input reaches the terminal) and kept to one line each.
  */
 final class UserErrorHandler implements IParameterExceptionHandler, IExecutionExceptionHandler {
     static final String PREFIX = "interim: ";
@@ -25,7 +31,7 @@ final class UserErrorHandler implements IParameterExceptionHandler, IExecutionEx
         CommandLine command = ex.getCommandLine();
         if (ex instanceof UnmatchedArgumentException unmatched && !command.getSubcommands().isEmpty()
                 && !unmatched.isUnknownOption() && !unmatched.getUnmatched().isEmpty()) {
-            return badInput(command, "unknown command '" + unmatched.getUnmatched().get(0) + "': use "
+            return badInput(command, "unknown command " + UserText.quoted(unmatched.getUnmatched().get(0)) + ": use "
                     + String.join(", ", command.getSubcommands().keySet()));
         }
         return badInput(command, ex.getMessage());
@@ -33,6 +39,15 @@ final class UserErrorHandler implements IParameterExceptionHandler, IExecutionEx
 
     @Override
     public int handleExecutionException(Exception ex, CommandLine command, ParseResult parsed) {
+        if (ex instanceof ConfigException config && config.problems().size() > 1) {
+            PrintWriter err = command.getErr();
+            for (ConfigException problem : config.problems()) {
+                err.println(PREFIX + oneLine(problem.getMessage()));
+            }
+            err.flush();
+            return badInput(command, config.problems().size() + " problems"
+                    + (config.file() == null ? "" : " in " + config.file()) + ", each on a line above");
+        }
         if (ex instanceof IllegalArgumentException) {
             return badInput(command, ex.getMessage());
         }
@@ -67,6 +82,6 @@ final class UserErrorHandler implements IParameterExceptionHandler, IExecutionEx
     }
 
     private static String oneLine(String text) {
-        return text.strip().replaceAll("\\s*\\R\\s*", " ");
+        return UserText.escaped(text.strip().replaceAll("\\s*\\R\\s*", " "));
     }
 }

@@ -1,9 +1,11 @@
 package dev.interim.config;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.interim.text.UserText;
 import java.math.BigDecimal;
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.HashSet;
 import java.util.Iterator;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -16,19 +18,28 @@ import java.util.function.Function;
  * A value of the parsed YAML tree together with its key path, so that every complaint names where it
  * is. Readers walk the tree through these; each typed accessor either returns the value or throws a
  * {@link ConfigException} at this path. Explicit nulls ({@code key:} with nothing after it) count as
- * absent.
+ * absent. All nodes of one tree share its {@link Problems}: {@link #read} and {@link #readRequired}
+ * record a key's problem there and let the reader go on with the next key.
  */
 final class ConfigNode {
     private final JsonNode node;
     private final String path;
+    private final Problems problems;
+    /** Keys required here that an unknown key was probably meant to be (reported once, as the unknown key). */
+    private final Set<String> misspelt = new HashSet<>();
 
-    private ConfigNode(JsonNode node, String path) {
+    private ConfigNode(JsonNode node, String path, Problems problems) {
         this.node = node;
         this.path = path;
+        this.problems = problems;
     }
 
-    static ConfigNode root(JsonNode node) {
-        return new ConfigNode(node, "");
+    static ConfigNode root(JsonNode node, Problems problems) {
+        return new ConfigNode(node, "", problems);
+    }
+
+    Problems problems() {
+        return problems;
     }
 
     String path() {
@@ -45,7 +56,10 @@ final class ConfigNode {
 
     // ---- mappings ----
 
-    /** Checks this is a mapping whose keys are all among {@code accepted} (listed in the message otherwise). */
+    /**
+     * Checks this is a mapping (or throws) and records each key not among {@code accepted} as a
+     * problem, listing the accepted ones.
+     */
     ConfigNode mapping(Set<String> accepted) {
         if (!node.isObject()) {
             throw error("must be a mapping of " + String.join(", ", accepted) + "; got " + kind());
@@ -53,11 +67,41 @@ final class ConfigNode {
         for (Iterator<String> names = node.fieldNames(); names.hasNext(); ) {
             String key = names.next();
             if (!accepted.contains(key)) {
-                String hint = KeyHints.closest(key, accepted).map(k -> " (did you mean '" + k + "'?)").orElse("");
-                throw child(key).error("unknown key" + hint + "; accepted here: " + String.join(", ", accepted));
+                Optional<String> meant = KeyHints.closest(key, accepted);
+                meant.filter(k -> !node.has(k)).ifPresent(misspelt::add);
+                String hint = meant.map(k -> " (did you mean '" + k + "'?)").orElse("");
+                problems.add(child(key).error("unknown key" + hint + "; accepted here: " + String.join(", ", accepted)));
             }
         }
         return this;
+    }
+
+    /**
+     * The value under {@code key} as {@code reader} reads it; {@code absent} when the key is left
+     * out; null when the reader found a problem, which is recorded.
+     */
+    <T> T read(String key, Function<ConfigNode, T> reader, T absent) {
+        Optional<ConfigNode> value = optional(key);
+        return value.isEmpty() ? absent : problems.attempt(() -> reader.apply(value.get()));
+    }
+
+    /** The value under {@code key} as {@code reader} reads it; null when it is absent or has a problem (recorded). */
+    <T> T readRequired(String key, String what, Function<ConfigNode, T> reader) {
+        return problems.attempt(() -> reader.apply(required(key, what)));
+    }
+
+    /** Records {@code problem} and goes on. */
+    void report(ConfigException problem) {
+        problems.add(problem);
+    }
+
+    /** Records a problem of the environment (a secret's variable), reported after those of the values. */
+    void reportEnvironment(ConfigException problem) {
+        problems.addEnvironment(problem);
+    }
+
+    Problems.Checkpoint checkpoint() {
+        return problems.checkpoint();
     }
 
     Optional<ConfigNode> optional(String key) {
@@ -65,9 +109,17 @@ final class ConfigNode {
         return value == null || value.isNull() ? Optional.empty() : Optional.of(child(key));
     }
 
-    /** The value under {@code key}; when absent, an error saying it is required and {@code what} it should be. */
+    /**
+     * The value under {@code key}; when absent, an error saying it is required and {@code what} it
+     * should be (or, when an unknown key here was probably meant to be it, an abandoned read: that key
+     * is reported already).
+     */
     ConfigNode required(String key, String what) {
-        return optional(key).orElseThrow(() -> child(key).error("is required: " + what));
+        Optional<ConfigNode> value = optional(key);
+        if (value.isEmpty() && misspelt.contains(key)) {
+            throw new Problems.Abandoned();
+        }
+        return value.orElseThrow(() -> child(key).error("is required: " + what));
     }
 
     boolean has(String key) {
@@ -75,7 +127,8 @@ final class ConfigNode {
     }
 
     private ConfigNode child(String key) {
-        return new ConfigNode(node.path(key), path.isEmpty() ? key : path + "." + key);
+        String shown = UserText.shown(key);
+        return new ConfigNode(node.path(key), path.isEmpty() ? shown : path + "." + shown, problems);
     }
 
     /** The entries of a mapping, in file order. */
@@ -97,7 +150,7 @@ final class ConfigNode {
         }
         List<ConfigNode> elements = new ArrayList<>();
         for (int i = 0; i < node.size(); i++) {
-            elements.add(new ConfigNode(node.get(i), path + "[" + i + "]"));
+            elements.add(new ConfigNode(node.get(i), path + "[" + i + "]", problems));
         }
         return elements;
     }
@@ -119,9 +172,13 @@ final class ConfigNode {
         return text;
     }
 
+    /** A finite number: YAML's {@code .nan}, {@code .inf} and {@code -.inf} are refused. */
     double number() {
         if (!node.isNumber()) {
             throw error("must be a number; got " + kind());
+        }
+        if (!Double.isFinite(node.doubleValue())) {
+            throw error("must be a finite number; got " + shown());
         }
         return node.doubleValue();
     }
@@ -173,7 +230,8 @@ final class ConfigNode {
             throw error(e.getMessage());
         }
         if (d.compareTo(min) < 0 || d.compareTo(max) > 0) {
-            throw error("must lie between " + Durations.format(min) + " and " + Durations.format(max) + "; got " + text);
+            throw error("must lie between " + Durations.format(min) + " and " + Durations.format(max) + "; got "
+                    + UserText.shown(text));
         }
         return d;
     }
@@ -190,19 +248,23 @@ final class ConfigNode {
         }
     }
 
-    /** The value as a message shows it: text quoted, numbers and booleans as written. */
+    /**
+     * The value as a message shows it: text quoted, numbers and booleans as written, the non-finite
+     * numbers as YAML writes them; escaped and shortened by {@link UserText}.
+     */
     String shown() {
         if (node.isTextual()) {
-            return "'" + node.textValue() + "'";
+            return UserText.quoted(node.textValue());
         }
         if (node.isFloatingPointNumber() && !Double.isFinite(node.doubleValue())) {
-            return node.asText();
+            double v = node.doubleValue();
+            return Double.isNaN(v) ? ".nan" : v > 0 ? ".inf" : "-.inf";
         }
         if (node.isNumber()) {
-            return node.isIntegralNumber()
-                    ? node.bigIntegerValue().toString() : node.decimalValue().stripTrailingZeros().toPlainString();
+            return UserText.shown(node.isIntegralNumber()
+                    ? node.bigIntegerValue().toString() : node.decimalValue().stripTrailingZeros().toPlainString());
         }
-        return node.toString();
+        return UserText.shown(node.toString());
     }
 
     /** What kind of value this is, for messages. */

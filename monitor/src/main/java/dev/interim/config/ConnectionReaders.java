@@ -1,6 +1,7 @@
 package dev.interim.config;
 
 import com.fasterxml.jackson.core.JsonPointer;
+import dev.interim.text.UserText;
 import java.net.URI;
 import java.net.URISyntaxException;
 import java.time.Duration;
@@ -15,13 +16,17 @@ import java.util.Optional;
 import java.util.Set;
 import java.util.regex.Pattern;
 
-/** Reads the sections that connect the daemon to the world: kafka, events, http and webhook. */
+/**
+ * Reads the sections that connect the daemon to the world: kafka, events, http and webhook. Each key
+ * is read on its own, so that a section reports every one of its problems; a section with a problem
+ * is not built (see {@link Problems}).
+ */
 final class ConnectionReaders {
     static final Set<String> KAFKA_KEYS = keys("bootstrap_servers", "properties", "input_topics", "decisions_topic",
             "dead_letter_topic", "state_topic_prefix", "consumer_group_prefix", "commit_interval", "input_keyed_by_unit",
             "tally_threads", "instance_id", "startup_timeout");
     static final Set<String> EVENTS_KEYS = keys("experiment", "arm", "unit", "time");
-    static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env");
+    static final Set<String> HTTP_KEYS = keys("bind_address", "port", "admin_token_env", "allowed_hosts");
     static final Set<String> WEBHOOK_KEYS = keys("url", "signing_key_env", "timeout", "max_attempts", "initial_backoff");
 
     static final String DEFAULT_DECISIONS_TOPIC = "interim.decisions";
@@ -55,33 +60,28 @@ final class ConnectionReaders {
 
     static KafkaSettings kafka(ConfigNode k, Environment env) {
         k.mapping(KAFKA_KEYS);
-        List<String> servers = k.optional("bootstrap_servers").map(ConnectionReaders::servers).orElse(List.of());
-        ClientProperties properties = k.optional("properties").map(p -> properties(p, env)).orElse(ClientProperties.none());
-        String decisions = k.optional("decisions_topic").map(ConnectionReaders::topic).orElse(DEFAULT_DECISIONS_TOPIC);
-        String deadLetters = k.optional("dead_letter_topic").map(ConnectionReaders::topic).orElse(DEFAULT_DEAD_LETTER_TOPIC);
-        if (decisions.equals(deadLetters)) {
+        Problems.Checkpoint start = k.checkpoint();
+        List<String> servers = k.read("bootstrap_servers", ConnectionReaders::servers, List.of());
+        ClientProperties properties = k.read("properties", p -> properties(p, env), ClientProperties.none());
+        String decisions = k.read("decisions_topic", ConnectionReaders::topic, DEFAULT_DECISIONS_TOPIC);
+        String deadLetters = k.read("dead_letter_topic", ConnectionReaders::topic, DEFAULT_DEAD_LETTER_TOPIC);
+        if (decisions != null && decisions.equals(deadLetters)) {
             String key = k.has("dead_letter_topic") ? "dead_letter_topic" : "decisions_topic";
-            throw k.required(key, "").error("'" + decisions + "' is used as both decisions_topic and "
-                    + "dead_letter_topic: give each its own topic");
+            k.report(k.required(key, "").error(UserText.quoted(decisions) + " is used as both decisions_topic and "
+                    + "dead_letter_topic: give each its own topic"));
         }
-        String statePrefix = k.optional("state_topic_prefix").map(ConnectionReaders::topic).orElse(DEFAULT_STATE_TOPIC_PREFIX);
-        String groupPrefix = k.optional("consumer_group_prefix").map(ConnectionReaders::topic).orElse(DEFAULT_GROUP_PREFIX);
-        List<String> inputTopics = inputTopics(k.required("input_topics", "the list of topics carrying experiment events"),
-                decisions, deadLetters, statePrefix);
-        Duration commit = k.optional("commit_interval")
-                .map(d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(1))).orElse(DEFAULT_COMMIT_INTERVAL);
-        boolean keyed = k.optional("input_keyed_by_unit").map(ConfigNode::bool).orElse(false);
-        int tallyThreads = k.optional("tally_threads").map(t -> t.smallInteger(1, 64)).orElse(DEFAULT_TALLY_THREADS);
-        Optional<String> instanceId = k.optional("instance_id").map(i -> {
-            String text = i.text();
-            if (!INSTANCE_ID.matcher(text).matches()) {
-                throw i.error("must be 1 to 200 letters, digits, '.', '_' or '-' (it names this daemon in the "
-                        + "consumer groups), such as interim-eu-1");
-            }
-            return text;
-        });
-        Duration startupTimeout = k.optional("startup_timeout")
-                .map(d -> d.duration(Duration.ofSeconds(1), Duration.ofHours(1))).orElse(DEFAULT_STARTUP_TIMEOUT);
+        String statePrefix = k.read("state_topic_prefix", ConnectionReaders::topic, DEFAULT_STATE_TOPIC_PREFIX);
+        String groupPrefix = k.read("consumer_group_prefix", ConnectionReaders::topic, DEFAULT_GROUP_PREFIX);
+        List<String> inputTopics = k.readRequired("input_topics", "the list of topics carrying experiment events",
+                t -> inputTopics(t, decisions, deadLetters, statePrefix));
+        Duration commit = k.read("commit_interval", d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(1)),
+                DEFAULT_COMMIT_INTERVAL);
+        Boolean keyed = k.read("input_keyed_by_unit", ConfigNode::bool, false);
+        Integer tallyThreads = k.read("tally_threads", t -> t.smallInteger(1, 64), DEFAULT_TALLY_THREADS);
+        Optional<String> instanceId = Optional.ofNullable(k.read("instance_id", ConnectionReaders::instanceId, null));
+        Duration startupTimeout = k.read("startup_timeout", d -> d.duration(Duration.ofSeconds(1), Duration.ofHours(1)),
+                DEFAULT_STARTUP_TIMEOUT);
+        start.requireNone();
         return new KafkaSettings(servers, properties, inputTopics, decisions, deadLetters, statePrefix, groupPrefix,
                 commit, keyed, tallyThreads, instanceId, startupTimeout);
     }
@@ -109,40 +109,46 @@ final class ConnectionReaders {
         String port = colon < 0 ? "" : address.substring(colon + 1);
         if (!HOST.matcher(host).matches() || !port.matches("\\d{1,5}") || Integer.parseInt(port) < 1
                 || Integer.parseInt(port) > 65535) {
-            throw where.error("'" + address + "' is not a broker address: write host:port, such as kafka-1.internal:9092");
+            throw where.error(UserText.quoted(address) + " is not a broker address: write host:port, such as "
+                    + "kafka-1.internal:9092");
         }
         return address;
     }
 
     private static ClientProperties properties(ConfigNode p, Environment env) {
+        Problems.Checkpoint start = p.checkpoint();
         Map<String, String> written = new LinkedHashMap<>();
         Map<String, String> resolved = new LinkedHashMap<>();
         for (Map.Entry<String, ConfigNode> e : p.entries("Kafka client property names to values").entrySet()) {
-            String name = e.getKey();
-            ConfigNode value = e.getValue();
-            if (name.equals("bootstrap.servers")) {
-                throw value.error("set the brokers with kafka.bootstrap_servers instead");
-            }
-            if (RESERVED_PROPERTIES.contains(name)) {
-                throw value.error("is set by interim itself (its exactly-once processing depends on it); remove it");
-            }
-            if (!PROPERTY_NAME.matcher(name).matches()) {
-                throw value.error("is not a Kafka client property name (letters, digits, '.', '_', '-')");
-            }
-            if (!value.json().isValueNode() || value.json().isNull()) {
-                throw value.error("must be a single value (text, number or true/false); got " + value.kind()
-                        + ". Write nested property names in full, with dots, such as ssl.truststore.type");
-            }
-            String text = value.json().asText();
-            requireReferenceForCredential(value, name, text);
-            written.put(name, text);
-            if (env.reads()) {
-                resolved.put(name, substitute(value, text, env));
-            } else {
-                substitute(value, text, null);
-            }
+            p.problems().check(() -> property(e.getKey(), e.getValue(), env, written, resolved));
         }
+        start.requireNone();
         return new ClientProperties(written, env.reads() ? resolved : null);
+    }
+
+    private static void property(String name, ConfigNode value, Environment env, Map<String, String> written,
+                                 Map<String, String> resolved) {
+        if (name.equals("bootstrap.servers")) {
+            throw value.error("set the brokers with kafka.bootstrap_servers instead");
+        }
+        if (RESERVED_PROPERTIES.contains(name)) {
+            throw value.error("is set by interim itself (its exactly-once processing depends on it); remove it");
+        }
+        if (!PROPERTY_NAME.matcher(name).matches()) {
+            throw value.error("is not a Kafka client property name (letters, digits, '.', '_', '-')");
+        }
+        if (!value.json().isValueNode() || value.json().isNull()) {
+            throw value.error("must be a single value (text, number or true/false); got " + value.kind()
+                    + ". Write nested property names in full, with dots, such as ssl.truststore.type");
+        }
+        String text = value.json().asText();
+        requireReferenceForCredential(value, name, text);
+        written.put(name, text);
+        if (env.reads()) {
+            resolved.put(name, substitute(value, text, env));
+        } else {
+            substitute(value, text, null);
+        }
     }
 
     /** A credential must come from the environment, so that the file can be kept in version control. */
@@ -174,8 +180,9 @@ final class ConnectionReaders {
                 }
                 String name = text.substring(i + 2, end);
                 if (!Environment.isName(name)) {
-                    throw at.error("refers to '${" + name + "}', which is not an environment variable name "
-                            + "(letters, digits and '_', not starting with a digit)");
+                    throw at.error("refers to ${...} holding something that is not an environment variable name "
+                            + "(not shown: it may be a credential written in the file); put the value in a variable "
+                            + "such as KAFKA_PASSWORD and write ${KAFKA_PASSWORD}");
                 }
                 if (env != null) {
                     out.append(env.value(at, name));
@@ -188,74 +195,120 @@ final class ConnectionReaders {
         return out.toString();
     }
 
+    /** This daemon's id in the consumer groups: characters Kafka accepts, room for the stage suffixes. */
+    private static String instanceId(ConfigNode i) {
+        String text = i.text();
+        if (!INSTANCE_ID.matcher(text).matches()) {
+            throw i.error("must be 1 to 200 letters, digits, '.', '_' or '-' (it names this daemon in the "
+                    + "consumer groups), such as interim-eu-1");
+        }
+        return text;
+    }
+
     private static String topic(ConfigNode t) {
         String name = t.text();
         if (!TOPIC.matcher(name).matches() || name.equals(".") || name.equals("..")) {
-            throw t.error("'" + name + "' is not a Kafka topic name: up to 249 letters, digits, '.', '_' or '-'");
+            throw t.error(UserText.quoted(name) + " is not a Kafka topic name: up to 249 letters, digits, '.', '_' "
+                    + "or '-'");
         }
         return name;
     }
 
-    /** The input topics: distinct, and none of them one the daemon writes (it would read its own output). */
+    /**
+     * The input topics: distinct, and none of them one the daemon writes (it would read its own
+     * output). A topic setting given as null had a problem of its own and is not compared with.
+     */
     private static List<String> inputTopics(ConfigNode inputs, String decisions, String deadLetters, String statePrefix) {
+        Problems.Checkpoint start = inputs.checkpoint();
         List<String> names = new ArrayList<>();
-        for (ConfigNode t : inputs.elements("topic names")) {
-            String name = topic(t);
-            if (names.contains(name)) {
-                throw t.error("topic '" + name + "' is listed twice");
+        List<ConfigNode> elements = inputs.elements("topic names");
+        for (ConfigNode t : elements) {
+            String name = inputs.problems().attempt(() -> inputTopic(t, names, decisions, deadLetters, statePrefix));
+            if (name != null) {
+                names.add(name);
             }
-            if (name.equals(decisions) || name.equals(deadLetters)) {
-                throw t.error("'" + name + "' is also the " + (name.equals(decisions) ? "decisions_topic" : "dead_letter_topic")
-                        + ": the daemon would read its own output; give them different topics");
-            }
-            // The state topics are <prefix>-tallies, -units, -looks and -deliveries (StreamSettings).
-            if (name.startsWith(statePrefix + "-")) {
-                throw t.error("'" + name + "' starts with '" + statePrefix + "-', the names of the daemon's own state topics ("
-                        + statePrefix + "-tallies, -units, -looks, -deliveries); choose another state_topic_prefix");
-            }
-            names.add(name);
         }
-        if (names.isEmpty()) {
+        if (elements.isEmpty()) {
             throw inputs.error("must list at least one topic");
         }
+        start.requireNone();
         return names;
+    }
+
+    private static String inputTopic(ConfigNode t, List<String> before, String decisions, String deadLetters,
+                                     String statePrefix) {
+        String name = topic(t);
+        if (before.contains(name)) {
+            throw t.error("topic " + UserText.quoted(name) + " is listed twice");
+        }
+        if (name.equals(decisions) || name.equals(deadLetters)) {
+            throw t.error(UserText.quoted(name) + " is also the " + (name.equals(decisions) ? "decisions_topic"
+                    : "dead_letter_topic") + ": the daemon would read its own output; give them different topics");
+        }
+        // The state topics are <prefix>-tallies, -units, -looks and -deliveries (StreamSettings).
+        if (statePrefix != null && name.startsWith(statePrefix + "-")) {
+            throw t.error(UserText.quoted(name) + " starts with '" + statePrefix + "-', the names of the daemon's own state "
+                    + "topics (" + statePrefix + "-tallies, -units, -looks, -deliveries); choose another state_topic_prefix");
+        }
+        return name;
     }
 
     // ---- events ----
 
     static EventMapping events(ConfigNode e) {
         e.mapping(EVENTS_KEYS);
-        JsonPointer experiment = Pointers.field(e.required("experiment", "the JSON Pointer of the experiment id, such as /experiment"));
-        JsonPointer arm = Pointers.field(e.required("arm", "the JSON Pointer of the arm, such as /arm"));
-        Optional<JsonPointer> unit = e.optional("unit").map(Pointers::field);
-        Optional<JsonPointer> time = e.optional("time").map(Pointers::field);
-        return new EventMapping(experiment, arm, unit, time);
+        Problems.Checkpoint start = e.checkpoint();
+        JsonPointer experiment = e.readRequired("experiment", "the JSON Pointer of the experiment id, such as /experiment",
+                Pointers::field);
+        JsonPointer arm = e.readRequired("arm", "the JSON Pointer of the arm, such as /arm", Pointers::field);
+        JsonPointer unit = e.read("unit", Pointers::field, null);
+        JsonPointer time = e.read("time", Pointers::field, null);
+        start.requireNone();
+        return new EventMapping(experiment, arm, Optional.ofNullable(unit), Optional.ofNullable(time));
     }
 
     // ---- http ----
 
     static HttpSettings http(Optional<ConfigNode> section, Environment env) {
         if (section.isEmpty()) {
-            return new HttpSettings(DEFAULT_BIND_ADDRESS, DEFAULT_PORT, Optional.empty());
+            return new HttpSettings(DEFAULT_BIND_ADDRESS, DEFAULT_PORT, Optional.empty(), List.of());
         }
         ConfigNode h = section.get().mapping(HTTP_KEYS);
-        String bind = h.optional("bind_address").map(b -> {
+        Problems.Checkpoint start = h.checkpoint();
+        String bind = h.read("bind_address", b -> {
             String text = b.text();
             if (!HOST.matcher(text).matches()) {
-                throw b.error("'" + text + "' is not an address or host name, such as 127.0.0.1 or 0.0.0.0");
+                throw b.error(UserText.quoted(text) + " is not an address or host name, such as 127.0.0.1 or 0.0.0.0");
             }
             return text;
-        }).orElse(DEFAULT_BIND_ADDRESS);
-        int port = h.optional("port").map(p -> p.smallInteger(0, 65535)).orElse(DEFAULT_PORT);
-        Optional<Secret> token = h.optional("admin_token_env").map(t -> adminToken(t, env));
-        return new HttpSettings(bind, port, token);
+        }, DEFAULT_BIND_ADDRESS);
+        Integer port = h.read("port", p -> p.smallInteger(0, 65535), DEFAULT_PORT);
+        Secret token = h.read("admin_token_env", t -> adminToken(t, env), null);
+        List<String> allowedHosts = h.read("allowed_hosts", ConnectionReaders::allowedHosts, List.of());
+        start.requireNone();
+        return new HttpSettings(bind, port, Optional.ofNullable(token), allowedHosts);
     }
 
+    /** Host names as a client writes them in the URL, without scheme, port or path; {@code *} for any. */
+    private static List<String> allowedHosts(ConfigNode at) {
+        List<String> names = new ArrayList<>();
+        for (ConfigNode item : at.elements("host names, such as [monitor.internal], or [\"*\"] to answer any")) {
+            String name = item.text();
+            if (!name.equals("*") && !HOST.matcher(name).matches()) {
+                throw item.error(UserText.quoted(name) + " is not a host name: write the name alone, without scheme, port or "
+                        + "path, such as monitor.internal (or \"*\" to answer any Host)");
+            }
+            names.add(name);
+        }
+        return names;
+    }
+
+    /** A token too short or with spaces is a problem of the environment: recorded, and the token kept. */
     private static Secret adminToken(ConfigNode at, Environment env) {
-        Secret token = env.secret(at);
+        Secret token = env.secret(at, "the admin token", "INTERIM_ADMIN_TOKEN");
         if (token.isRead() && (token.reveal().length() < MIN_ADMIN_TOKEN || token.reveal().chars().anyMatch(Character::isWhitespace))) {
-            throw at.error("the token in " + token.variable() + " must be at least " + MIN_ADMIN_TOKEN
-                    + " characters without spaces; generate one with: openssl rand -hex 24");
+            at.reportEnvironment(at.error("the token in " + token.variable() + " must be at least " + MIN_ADMIN_TOKEN
+                    + " characters without spaces; generate one with: openssl rand -hex 24"));
         }
         return token;
     }
@@ -264,14 +317,17 @@ final class ConnectionReaders {
 
     static WebhookSettings webhook(ConfigNode w, Environment env) {
         w.mapping(WEBHOOK_KEYS);
-        URI url = url(w.required("url", "the address the kill webhook is POSTed to, such as https://flags.internal/hooks/interim"));
-        Secret key = signingKey(w.required("signing_key_env",
-                "the name of the environment variable holding the signing key, such as INTERIM_WEBHOOK_KEY"), env);
-        Duration timeout = w.optional("timeout").map(d -> d.duration(Duration.ofMillis(100), Duration.ofMinutes(5)))
-                .orElse(Duration.ofSeconds(5));
-        int attempts = w.optional("max_attempts").map(a -> a.smallInteger(1, 20)).orElse(5);
-        Duration backoff = w.optional("initial_backoff").map(d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(10)))
-                .orElse(Duration.ofSeconds(1));
+        Problems.Checkpoint start = w.checkpoint();
+        URI url = w.readRequired("url", "the address the kill webhook is POSTed to, such as "
+                + "https://flags.internal/hooks/interim", ConnectionReaders::url);
+        Secret key = w.readRequired("signing_key_env", "the name of the environment variable holding the signing key, "
+                + "such as INTERIM_WEBHOOK_KEY", k -> signingKey(k, env));
+        Duration timeout = w.read("timeout", d -> d.duration(Duration.ofMillis(100), Duration.ofMinutes(5)),
+                Duration.ofSeconds(5));
+        Integer attempts = w.read("max_attempts", a -> a.smallInteger(1, 20), 5);
+        Duration backoff = w.read("initial_backoff", d -> d.duration(Duration.ofMillis(10), Duration.ofMinutes(10)),
+                Duration.ofSeconds(1));
+        start.requireNone();
         return new WebhookSettings(url, key, timeout, attempts, backoff);
     }
 
@@ -281,11 +337,11 @@ final class ConnectionReaders {
         try {
             uri = new URI(text);
         } catch (URISyntaxException e) {
-            throw at.error("'" + text + "' is not a URL: " + e.getReason());
+            throw at.error(UserText.quoted(text) + " is not a URL: " + e.getReason());
         }
         String scheme = uri.getScheme() == null ? "" : uri.getScheme().toLowerCase(Locale.ROOT);
         if (!(scheme.equals("http") || scheme.equals("https")) || uri.getHost() == null) {
-            throw at.error("'" + text + "' must be an absolute http or https URL with a host, such as "
+            throw at.error(UserText.quoted(text) + " must be an absolute http or https URL with a host, such as "
                     + "https://flags.internal/hooks/interim");
         }
         if (uri.getRawUserInfo() != null) {
@@ -295,9 +351,12 @@ final class ConnectionReaders {
         return uri;
     }
 
-    /** Standard Webhooks keys: base64 of 24 to 64 random bytes, optionally prefixed {@code whsec_}. */
+    /**
+     * Standard Webhooks keys: base64 of 24 to 64 random bytes, optionally prefixed {@code whsec_}. A
+     * key of another form is a problem of the environment: recorded, and the key kept.
+     */
     private static Secret signingKey(ConfigNode at, Environment env) {
-        Secret key = env.secret(at);
+        Secret key = env.secret(at, "the signing key", "INTERIM_WEBHOOK_KEY");
         if (key.isRead()) {
             String text = key.reveal();
             String body = text.startsWith("whsec_") ? text.substring("whsec_".length()) : text;
@@ -308,8 +367,9 @@ final class ConnectionReaders {
                 bytes = -1;
             }
             if (bytes < 24 || bytes > 64) {
-                throw at.error("the key in " + key.variable() + " must be the base64 of 24 to 64 random bytes, "
-                        + "optionally prefixed whsec_; generate one with: echo whsec_$(openssl rand -base64 32)");
+                at.reportEnvironment(at.error("the key in " + key.variable() + " must be the base64 of 24 to 64 "
+                        + "random bytes, optionally prefixed whsec_; generate one with: echo whsec_$(openssl rand "
+                        + "-base64 32)"));
             }
         }
         return key;

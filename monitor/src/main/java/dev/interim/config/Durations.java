@@ -1,5 +1,6 @@
 package dev.interim.config;
 
+import dev.interim.text.UserText;
 import java.time.Duration;
 import java.util.regex.Matcher;
 import java.util.regex.Pattern;
@@ -18,7 +19,7 @@ public final class Durations {
     public static Duration parse(String text) {
         Matcher m = FORM.matcher(text == null ? "" : text.strip());
         if (!m.matches()) {
-            throw new IllegalArgumentException("'" + text + "' is not a duration: write a whole number and a unit "
+            throw new IllegalArgumentException(UserText.quoted(text) + " is not a duration: write a whole number and a unit "
                     + "(ms, s, m or h), such as 500ms, 30s, 5m or 1h");
         }
         long amount = Long.parseLong(m.group(1));

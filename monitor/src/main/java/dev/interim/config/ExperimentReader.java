@@ -1,8 +1,11 @@
 package dev.interim.config;
 
+import dev.interim.experiment.RunMode;
+
 import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
+import dev.interim.text.UserText;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.LinkedHashMap;
@@ -26,57 +29,84 @@ final class ExperimentReader {
      */
     static ExperimentConfig read(ConfigNode e, boolean unitMapped) {
         e.mapping(KEYS);
-        String id = e.required("id", "the experiment id as it appears in events").text();
-        String control = e.required("control", "the control arm, as it appears in events").text();
-        List<String> treatments = treatments(e.required("treatments", "the list of treatment arms (at least one)"), control);
-        List<String> arms = new ArrayList<>();
-        arms.add(control);
-        arms.addAll(treatments);
-        Map<String, Double> split = e.optional("split").map(s -> split(s, arms)).orElse(null);
-        Duration lookEvery = e.optional("look_every").map(d -> d.duration(Duration.ofSeconds(1), Duration.ofHours(24)))
-                .orElse(DEFAULT_LOOK_EVERY);
-        long minPerArm = e.optional("min_per_arm").map(ConfigNode::integer).orElse(DEFAULT_MIN_PER_ARM);
-        boolean dryRun = e.optional("dry_run").map(ConfigNode::bool).orElse(true);
-        Assignment assignment = e.optional("assignment").map(a -> a.parsed(Assignment::parse))
-                .orElse(unitMapped ? Assignment.UNIT : Assignment.EVENT);
-        double sampleRatio = e.optional("sample_ratio_threshold").map(ConfigNode::number).orElse(DEFAULT_SAMPLE_RATIO_THRESHOLD);
+        Problems.Checkpoint start = e.checkpoint();
+        String id = e.readRequired("id", "the experiment id as it appears in events", ConfigNode::text);
+        String control = e.readRequired("control", "the control arm, as it appears in events", ConfigNode::text);
+        List<String> treatments = e.readRequired("treatments", "the list of treatment arms (at least one)",
+                t -> treatments(t, control));
+        Map<String, Double> split = null;
+        if (control != null && treatments != null) {
+            List<String> arms = new ArrayList<>();
+            arms.add(control);
+            arms.addAll(treatments);
+            split = e.read("split", s -> split(s, arms), null);
+        }
+        Duration lookEvery = e.read("look_every", d -> d.duration(Duration.ofSeconds(1), Duration.ofHours(24)),
+                DEFAULT_LOOK_EVERY);
+        Long minPerArm = e.read("min_per_arm", ConfigNode::integer, DEFAULT_MIN_PER_ARM);
+        Boolean dryRun = e.read("dry_run", ConfigNode::bool, true);
+        Assignment assignment = e.read("assignment", a -> a.parsed(Assignment::parse),
+                unitMapped ? Assignment.UNIT : Assignment.EVENT);
+        Double sampleRatio = e.read("sample_ratio_threshold", ConfigNode::number, DEFAULT_SAMPLE_RATIO_THRESHOLD);
 
-        ConfigNode metricsNode = e.required("metrics", "the list of metrics watched (at least one)");
         List<MetricDefinition> metrics = new ArrayList<>();
         Map<String, MetricSource> sources = new LinkedHashMap<>();
-        for (ConfigNode m : metricsNode.elements("metrics")) {
-            MetricReader.Read read = MetricReader.read(m);
+        e.readRequired("metrics", "the list of metrics watched (at least one)", list -> metrics(list, metrics, sources));
+        start.requireNone();
+        Map<String, Double> shares = split;
+        ExperimentDefinition definition = Validated.at(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
+                shares, lookEvery, minPerArm, RunMode.dryRun(dryRun), sampleRatio, metrics, assignment));
+        return new ExperimentConfig(definition, sources);
+    }
+
+    /** Reads every metric of the list into {@code metrics} and {@code sources}, recording the problems of each. */
+    private static ConfigNode metrics(ConfigNode list, List<MetricDefinition> metrics, Map<String, MetricSource> sources) {
+        List<ConfigNode> elements = list.elements("metrics");
+        for (ConfigNode m : elements) {
+            MetricReader.Read read = list.problems().attempt(() -> MetricReader.read(m));
+            if (read == null) {
+                continue;
+            }
             String name = read.definition().name();
             if (sources.containsKey(name)) {
-                throw m.required("name", "").error("metric '" + name + "' is already defined in this experiment: "
-                        + "give each metric its own name");
+                list.report(m.required("name", "").error("metric " + UserText.quoted(name) + " is already defined in "
+                        + "this experiment: give each metric its own name"));
+                continue;
             }
             metrics.add(read.definition());
             sources.put(name, read.source());
         }
-        if (metrics.isEmpty()) {
-            throw metricsNode.error("must list at least one metric");
+        if (elements.isEmpty()) {
+            throw list.error("must list at least one metric");
         }
-        ExperimentDefinition definition = Domain.build(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
-                split, lookEvery, minPerArm, dryRun, sampleRatio, metrics, assignment));
-        return new ExperimentConfig(definition, sources);
+        return list;
     }
 
+    /** The treatment arms; {@code control} is null when it had a problem of its own. */
     private static List<String> treatments(ConfigNode t, String control) {
+        Problems.Checkpoint start = t.checkpoint();
         List<String> arms = new ArrayList<>();
-        for (ConfigNode arm : t.elements("arm names")) {
-            String name = arm.text();
-            if (name.equals(control)) {
-                throw arm.error("arm '" + name + "' is already the control: a treatment must be another arm");
+        List<ConfigNode> elements = t.elements("arm names");
+        for (ConfigNode arm : elements) {
+            String name = t.problems().attempt(() -> {
+                String text = arm.text();
+                if (text.equals(control)) {
+                    throw arm.error("arm " + UserText.quoted(text) + " is already the control: a treatment must be "
+                            + "another arm");
+                }
+                if (arms.contains(text)) {
+                    throw arm.error("arm " + UserText.quoted(text) + " is listed twice");
+                }
+                return text;
+            });
+            if (name != null) {
+                arms.add(name);
             }
-            if (arms.contains(name)) {
-                throw arm.error("arm '" + name + "' is listed twice");
-            }
-            arms.add(name);
         }
-        if (arms.isEmpty()) {
+        if (elements.isEmpty()) {
             throw t.error("must list at least one treatment arm");
         }
+        start.requireNone();
         return arms;
     }
 
@@ -85,11 +115,11 @@ final class ExperimentReader {
         Map<String, Double> shares = new LinkedHashMap<>();
         for (Map.Entry<String, ConfigNode> entry : s.entries("arm names to shares, such as {current: 50, fast: 50}").entrySet()) {
             if (!arms.contains(entry.getKey())) {
-                throw entry.getValue().error("'" + entry.getKey() + "' is not an arm of this experiment (arms: "
-                        + String.join(", ", arms) + ")");
+                throw entry.getValue().error(UserText.quoted(entry.getKey()) + " is not an arm of this experiment "
+                        + "(arms: " + shown(arms) + ")");
             }
             double share = entry.getValue().number();
-            if (!(share > 0) || !Double.isFinite(share)) {
+            if (!(share > 0)) {
                 throw entry.getValue().error("a share must be a positive number (any positive weights; they are "
                         + "normalised); got " + entry.getValue().shown());
             }
@@ -97,9 +127,13 @@ final class ExperimentReader {
         }
         List<String> missing = arms.stream().filter(a -> !shares.containsKey(a)).toList();
         if (!missing.isEmpty()) {
-            throw s.error("gives no share for " + String.join(", ", missing) + ": give every arm a share, or leave "
+            throw s.error("gives no share for " + shown(missing) + ": give every arm a share, or leave "
                     + "split out for an equal split");
         }
         return shares;
+    }
+
+    private static String shown(List<String> names) {
+        return String.join(", ", names.stream().map(UserText::shown).toList());
     }
 }

@@ -11,6 +11,9 @@ final class KeyHints {
         String best = null;
         int bestDistance = Integer.MAX_VALUE;
         for (String candidate : accepted) {
+            if (Math.abs(key.length() - candidate.length()) > 2) {
+                continue; // more than two edits apart, whatever the letters (and a huge key costs nothing)
+            }
             int d = distance(key.toLowerCase(java.util.Locale.ROOT), candidate);
             if (d < bestDistance) {
                 best = candidate;

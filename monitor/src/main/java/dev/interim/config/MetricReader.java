@@ -1,5 +1,7 @@
 package dev.interim.config;
 
+import dev.interim.experiment.Sides;
+
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.interim.experiment.Horizon;
@@ -9,6 +11,7 @@ import dev.interim.experiment.Role;
 import dev.interim.experiment.StopAction;
 import dev.interim.experiment.Worse;
 import dev.interim.sequential.SpendingFunction;
+import dev.interim.text.UserText;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
@@ -34,30 +37,34 @@ final class MetricReader {
 
     static Read read(ConfigNode m) {
         m.mapping(KEYS);
-        String name = m.required("name", "the metric's name, such as checkout-errors").text();
-        MetricKind kind = m.required("kind", "event-rate, unit-rate, event-mean, unit-total or ratio").parsed(MetricKind::parse);
-        Role role = m.required("role", "guardrail (watches for harm) or primary").parsed(Role::parse);
-        Worse worse = m.required("worse", "higher or lower: which direction of the metric hurts users").parsed(Worse::parse);
-        MetricSource source = source(m, kind);
-        double alpha = m.optional("alpha").map(ConfigNode::number).orElse(DEFAULT_ALPHA);
-        int sides = m.optional("sides").map(ConfigNode::intValue).orElse(role == Role.GUARDRAIL ? 1 : 2);
-        SpendingFunction spending = m.optional("spending").map(s -> s.parsed(SpendingFunction::parse))
-                .orElseGet(() -> SpendingFunction.parse(DEFAULT_SPENDING));
-        SpendingFunction futility = m.optional("futility").map(f -> f.parsed(SpendingFunction::parse)).orElse(null);
-        Horizon horizon = horizon(m);
-        Double baseline = m.optional("baseline").map(ConfigNode::number).orElse(null);
-        StopAction action = m.optional("action").map(a -> a.parsed(StopAction::parse)).orElse(StopAction.NONE);
-        Double cap = m.optional("cap").map(MetricReader::finite).orElse(null);
-        Double denominatorCap = m.optional("denominator_cap").map(MetricReader::finite).orElse(null);
-        if (cap != null && kind.isProportion()) {
-            throw m.required("cap", "").error("applies to event-mean, unit-total and ratio metrics: a rate's events "
-                    + "count 0 or 1; leave cap out");
+        Problems.Checkpoint start = m.checkpoint();
+        String name = m.readRequired("name", "the metric's name, such as checkout-errors", ConfigNode::text);
+        MetricKind kind = m.readRequired("kind", "event-rate, unit-rate, event-mean, unit-total or ratio",
+                k -> k.parsed(MetricKind::parse));
+        Role role = m.readRequired("role", "guardrail (watches for harm) or primary", r -> r.parsed(Role::parse));
+        Worse worse = m.readRequired("worse", "higher or lower: which direction of the metric hurts users",
+                w -> w.parsed(Worse::parse));
+        MetricSource source = kind == null ? null : m.problems().attempt(() -> source(m, kind));
+        Double alpha = m.read("alpha", ConfigNode::number, DEFAULT_ALPHA);
+        Integer sides = m.read("sides", ConfigNode::intValue, role == Role.GUARDRAIL ? 1 : 2);
+        SpendingFunction spending = m.read("spending", s -> s.parsed(SpendingFunction::parse),
+                SpendingFunction.parse(DEFAULT_SPENDING));
+        SpendingFunction futility = m.read("futility", f -> f.parsed(SpendingFunction::parse), null);
+        Horizon horizon = m.problems().attempt(() -> horizon(m));
+        Double baseline = m.read("baseline", ConfigNode::number, null);
+        StopAction action = m.read("action", a -> a.parsed(StopAction::parse), StopAction.NONE);
+        Double cap = m.read("cap", ConfigNode::number, null);
+        Double denominatorCap = m.read("denominator_cap", ConfigNode::number, null);
+        if (cap != null && kind != null && kind.isProportion()) {
+            m.report(m.required("cap", "").error("applies to event-mean, unit-total and ratio metrics: a rate's events "
+                    + "count 0 or 1; leave cap out"));
         }
-        if (denominatorCap != null && kind != MetricKind.RATIO) {
-            throw m.required("denominator_cap", "").error("applies to ratio metrics only; leave it out, or use cap");
+        if (denominatorCap != null && kind != null && kind != MetricKind.RATIO) {
+            m.report(m.required("denominator_cap", "").error("applies to ratio metrics only; leave it out, or use cap"));
         }
-        MetricDefinition definition = Domain.build(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
-                sides, spending, futility, horizon, baseline, action, cap, denominatorCap));
+        start.requireNone();
+        MetricDefinition definition = Validated.at(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
+                Sides.of(sides), spending, futility, horizon, baseline, action, cap, denominatorCap));
         return new Read(definition, source);
     }
 
@@ -73,7 +80,7 @@ final class MetricReader {
                         + "with max_per_arm, leave it out");
             }
             long perArm = m.required("max_per_arm", "").integer();
-            return Domain.build(m, KEYS, () -> new Horizon.MaxPerArm(perArm));
+            return Validated.at(m, KEYS, () -> new Horizon.MaxPerArm(perArm));
         }
         if (!powered) {
             throw m.error("needs a horizon: max_per_arm (the planned maximum per arm), or power with effect "
@@ -91,7 +98,7 @@ final class MetricReader {
                         + "relative_effect: a share of control's level), with power").number();
         int plannedLooks = m.optional("planned_looks").map(ConfigNode::intValue).orElse(DEFAULT_PLANNED_LOOKS);
         Horizon.Scale scale = relative ? Horizon.Scale.RELATIVE : Horizon.Scale.ABSOLUTE;
-        return Domain.build(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks, scale));
+        return Validated.at(m, KEYS, () -> new Horizon.Powered(power, effect, plannedLooks, scale));
     }
 
     private static MetricSource source(ConfigNode m, MetricKind kind) {
@@ -136,12 +143,14 @@ final class MetricReader {
 
     /** {@code {min: X, max: Y}}, either end optional but not both; each end a finite number, min ≤ max. */
     private static ValueRange range(ConfigNode r) {
+        Problems.Checkpoint start = r.checkpoint();
         r.mapping(RANGE_KEYS);
         if (!r.has("min") && !r.has("max")) {
+            start.requireNone(); // an unknown key, reported already, was meant to be one of them
             throw r.error("must give min, max or both, such as {min: 0} or {min: 0, max: 60000}");
         }
-        double min = r.optional("min").map(MetricReader::finite).orElse(Double.NEGATIVE_INFINITY);
-        double max = r.optional("max").map(MetricReader::finite).orElse(Double.POSITIVE_INFINITY);
+        double min = r.optional("min").map(MetricReader::end).orElse(Double.NEGATIVE_INFINITY);
+        double max = r.optional("max").map(MetricReader::end).orElse(Double.POSITIVE_INFINITY);
         if (min > max) {
             throw r.error("min " + r.required("min", "").shown() + " is above max " + r.required("max", "").shown()
                     + ": no value would be allowed");
@@ -149,12 +158,12 @@ final class MetricReader {
         return new ValueRange(min, max);
     }
 
-    private static double finite(ConfigNode n) {
-        double v = n.number();
-        if (!Double.isFinite(v)) {
+    /** An end of a range: a finite number; an open end is left out. */
+    private static double end(ConfigNode n) {
+        if (n.json().isNumber() && !Double.isFinite(n.json().doubleValue())) {
             throw n.error("must be a finite number (leave the key out for an open end); got " + n.kind());
         }
-        return v;
+        return n.number();
     }
 
     /** {@code {OPERATOR: VALUE}} with exactly one of the operators of {@link Condition.Comparison}. */
@@ -167,7 +176,8 @@ final class MetricReader {
         }
         if (c.json().size() != 1) {
             throw c.error("must hold exactly one comparison (accepted: " + accepted + "); got "
-                    + (c.json().isEmpty() ? "none" : String.join(", ", c.entries("one comparison").keySet())));
+                    + (c.json().isEmpty() ? "none" : String.join(", ", c.entries("one comparison").keySet().stream()
+                    .map(UserText::shown).toList())));
         }
         Map.Entry<String, ConfigNode> only = c.entries("one comparison").entrySet().iterator().next();
         Condition.Comparison comparison = Arrays.stream(Condition.Comparison.values())
@@ -194,8 +204,10 @@ final class MetricReader {
         JsonNode n = v.json();
         if (comparison.ordering()) {
             if (!n.isNumber() || !Double.isFinite(n.doubleValue())) {
-                throw v.error(comparison.key() + " compares numbers: give a number; got " + v.kind());
+                throw v.error(comparison.key() + " compares numbers: give a finite number; got " + v.kind());
             }
+        } else if (n.isNumber() && !Double.isFinite(n.doubleValue())) {
+            throw v.error("must be a finite number; got " + v.kind());
         } else if (!(n.isTextual() || n.isNumber() || n.isBoolean())) {
             throw v.error("must be text, a number or true/false; got " + v.kind());
         }

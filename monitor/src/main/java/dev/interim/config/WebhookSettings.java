@@ -11,7 +11,8 @@ import java.time.Duration;
  * @param signingKey the HMAC-SHA256 key: base64, optionally prefixed {@code whsec_}
  * @param timeout how long one attempt may take
  * @param maxAttempts attempts in all, the first included
- * @param initialBackoff the wait before the second attempt; it doubles for each later one
+ * @param initialBackoff the shortest wait before the second attempt; it doubles for each later one
+ *                       (random jitter only lengthens a wait, see {@code WebhookSender})
  */
 public record WebhookSettings(URI url, Secret signingKey, Duration timeout, int maxAttempts, Duration initialBackoff) {
 }

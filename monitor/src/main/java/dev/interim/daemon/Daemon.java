@@ -171,7 +171,7 @@ public final class Daemon implements AutoCloseable {
         webhooks = Executors.newSingleThreadExecutor(r -> daemonThread(r, "interim-webhook"));
         deliveries = config.webhook().isPresent() ? new KafkaDeliveryLog(settings, settings.deliveriesTopic()) : null;
         WebhookSender sender = config.webhook().map(w -> WebhookSender.to(w.url(),
-                        dev.interim.signal.Secret.parse(w.signingKey().reveal()))
+                        dev.interim.signal.SigningKey.parse(w.signingKey().reveal()))
                 .maxAttempts(w.maxAttempts()).backoff(w.initialBackoff(), w.initialBackoff().multipliedBy(32))
                 .requestTimeout(w.timeout()).deliveryLog(deliveries).build()).orElse(null);
         StageEvents events = new Events(meters, sender, webhooks, options.onDecision());
@@ -183,8 +183,17 @@ public final class Daemon implements AutoCloseable {
             tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events, tallyMember(i))
                     .leaveGroupOnClose(leave));
         }
-        judge = new JudgeStage(settings, catalog, options.clock(), events, DecisionJson::write, judgeMember())
-                .leaveGroupOnClose(leave);
+        judge = new JudgeStage(settings, catalog, options.clock(), events, new dev.interim.stream.DecisionWriter() {
+            @Override
+            public byte[] decision(DecisionRecord record) {
+                return DecisionJson.write(record);
+            }
+
+            @Override
+            public byte[] acknowledgement(dev.interim.experiment.Acknowledgement acknowledgement) {
+                return DecisionJson.write(acknowledgement);
+            }
+        }, judgeMember()).leaveGroupOnClose(leave);
         for (int i = 0; i < tallies.size(); i++) {
             start(tallies.get(i), tallies.size() == 1 ? "interim-tally" : "interim-tally-" + (i + 1),
                     settings.tallyGroup(), tallyMember(i));
@@ -263,22 +272,23 @@ public final class Daemon implements AutoCloseable {
     /** Binds the HTTP endpoint, or says in one line why it cannot. */
     private static HttpEndpoint startHttp(HttpSettings settings, Meters meters) {
         String bind = settings.bindAddress();
-        String shown = bind.length() > 100 ? bind.substring(0, 100) + "…" : bind;
+        String shown = dev.interim.text.UserText.quoted(bind);
         InetAddress address;
         try {
             address = InetAddress.getByName(bind);
         } catch (UnknownHostException e) {
-            throw new EnvironmentException("http.bind_address '" + shown + "' does not resolve to an address: use an address "
+            throw new EnvironmentException("http.bind_address " + shown + " does not resolve to an address: use an address "
                     + "or host name of this machine, such as 127.0.0.1 (this machine only) or 0.0.0.0 (every interface)", e);
         }
         if (!local(address)) {
-            throw new EnvironmentException("http.bind_address '" + shown + "' (" + address.getHostAddress() + ") is not an "
+            throw new EnvironmentException("http.bind_address " + shown + " (" + address.getHostAddress() + ") is not an "
                     + "address of this machine: use one of its addresses, 127.0.0.1 (this machine only) or 0.0.0.0 (every interface)");
         }
         String where = (address.getHostAddress().contains(":") ? "[" + address.getHostAddress() + "]" : address.getHostAddress())
                 + ":" + settings.port();
         try {
-            return HttpEndpoint.builder().bindAddress(bind).port(settings.port()).metrics(meters::scrape).start();
+            return HttpEndpoint.builder().bindAddress(bind).port(settings.port()).allowedHosts(settings.allowedHosts())
+                    .metrics(meters::scrape).start();
         } catch (RuntimeException e) {
             BindException bindFailure = cause(e, BindException.class);
             if (bindFailure == null) {
@@ -549,7 +559,7 @@ public final class Daemon implements AutoCloseable {
         List<DecisionRecord> undelivered = new ArrayList<>();
         try {
             dev.interim.stream.StateReader.readAll(settings, settings.decisionsTopic(), null, (key, value) -> {
-                if (value == null) {
+                if (value == null || DecisionJson.ACKNOWLEDGEMENT_TYPE.equals(DecisionJson.type(value))) {
                     return;
                 }
                 try {
@@ -724,7 +734,7 @@ public final class Daemon implements AutoCloseable {
         }
 
         private static String fmt(double x) {
-            return Double.isFinite(x) ? String.format(java.util.Locale.ROOT, "%.4g", x) : String.valueOf(x);
+            return dev.interim.text.Numbers.significant(x, 4);
         }
     }
 

@@ -3,6 +3,7 @@ package dev.interim.dashboard;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.interim.experiment.ExperimentView;
+import dev.interim.text.UserText;
 import java.io.IOException;
 import java.net.ConnectException;
 import java.net.URI;
@@ -58,7 +59,7 @@ public final class DaemonClient {
     }
 
     private static String badAddress(String address) {
-        return "the daemon's address must be http://HOST:PORT (for example " + DEFAULT_ADDRESS + "), got '" + address + "'";
+        return "the daemon's address must be http://HOST:PORT (for example " + DEFAULT_ADDRESS + "), got " + UserText.quoted(address);
     }
 
     /** The address as given (without a trailing slash). */
@@ -79,7 +80,7 @@ public final class DaemonClient {
         }
         if (response.statusCode() == 404) {
             List<String> known = experimentIds();
-            throw new IllegalArgumentException("the daemon at " + address() + " decides no experiment '" + id + "'; "
+            throw new IllegalArgumentException("the daemon at " + address() + " decides no experiment " + UserText.quoted(id) + "; "
                     + (known.isEmpty() ? "it decides none at the moment" : "it decides: " + String.join(", ", known)));
         }
         return ExperimentJson.read(json(path, response));

@@ -3,11 +3,11 @@ package dev.interim.dashboard;
 import static dev.interim.dashboard.Wording.h;
 
 import dev.interim.chart.BoundaryChart;
-import dev.interim.chart.Numbers;
 import dev.interim.experiment.Decision;
 import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.ExperimentView.ComparisonView;
 import dev.interim.experiment.LookPoint;
+import dev.interim.text.Numbers;
 import java.time.Instant;
 import java.util.ArrayList;
 import java.util.LinkedHashMap;

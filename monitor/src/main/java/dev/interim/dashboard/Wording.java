@@ -1,8 +1,7 @@
 package dev.interim.dashboard;
 
-import static dev.interim.chart.Markup.escape;
+import static dev.interim.text.Markup.escape;
 
-import dev.interim.chart.Numbers;
 import dev.interim.chart.Sides;
 import dev.interim.experiment.Decision;
 import dev.interim.experiment.ExperimentView;
@@ -11,6 +10,7 @@ import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
 import dev.interim.stats.RatioMoments;
+import dev.interim.text.Numbers;
 import java.time.Duration;
 import java.time.Instant;
 import java.time.ZoneOffset;
@@ -159,7 +159,7 @@ final class Wording {
         return label;
     }
 
-    /** The sample-ratio check in words, escaped ("p < 0.000001"). */
+    /** The sample-ratio check in words, escaped ("p = 0.0421", "p = 2.6e-24"). */
     static String sampleRatio(ExperimentView v) {
         String p = h(Numbers.pValue(v.sampleRatio().pValue()));
         return v.sampleRatio().mismatch() ? p + " — MISMATCH: the split is not as configured; decisions held" : p + " — split as configured";

@@ -9,7 +9,8 @@ import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookResult;
 import dev.interim.signal.DecisionJson;
-import dev.interim.signal.Secret;
+import dev.interim.signal.SigningKey;
+import dev.interim.text.Numbers;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.charset.StandardCharsets;
@@ -27,31 +28,39 @@ import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.serialization.StringSerializer;
 
 /**
- * The demonstration: the embedded broker, the invented "tidepool" rollout (three builds, synthetic
+ * The demonstration: the embedded broker, the invented "quorvel" rollout (three builds, synthetic
  * shoppers), a local stand-in for the flag service that receives and verifies kill webhooks, and the
  * daemon. Prints every decision record as one JSON line as it happens, and a summary at the end. It
  * ends once the harmful build has been switched off and the rest have had a few more looks, or
- * after a time limit; with {@code keepRunning} it goes on until interrupted.
+ * after a time limit; with {@link Ending#KEEP_RUNNING} it goes on until interrupted.
  */
 public final class Demo {
     private final PrintWriter out;
     private final PrintWriter err;
     private final Path dataDir;
     private final Duration limit;
-    private final boolean keepRunning;
+    private final Ending ending;
     private final Path saveEvents;
 
-    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning) {
-        this(out, err, dataDir, limit, keepRunning, null);
+    /** When the demo ends. */
+    public enum Ending {
+        /** Shortly after the verdicts, or at the time limit. */
+        AFTER_VERDICT,
+        /** When interrupted (Ctrl-C), so that the dashboard can be explored. */
+        KEEP_RUNNING
+    }
+
+    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, Ending ending) {
+        this(out, err, dataDir, limit, ending, null);
     }
 
     /** With {@code saveEvents}, every event the demo sends is also written there, one JSON line each, for replay. */
-    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, boolean keepRunning, Path saveEvents) {
+    public Demo(PrintWriter out, PrintWriter err, Path dataDir, Duration limit, Ending ending, Path saveEvents) {
         this.out = out;
         this.err = err;
         this.dataDir = dataDir;
         this.limit = limit;
-        this.keepRunning = keepRunning;
+        this.ending = ending;
         this.saveEvents = saveEvents;
     }
 
@@ -59,8 +68,8 @@ public final class Demo {
     public boolean run() throws IOException, InterruptedException {
         byte[] key = new byte[32];
         new SecureRandom().nextBytes(key);
-        String secret = Secret.PREFIX + Base64.getEncoder().encodeToString(key);
-        try (FlagServiceStandIn flags = new FlagServiceStandIn(Secret.parse(secret), this::say)) {
+        String secret = SigningKey.PREFIX + Base64.getEncoder().encodeToString(key);
+        try (FlagServiceStandIn flags = new FlagServiceStandIn(SigningKey.parse(secret), this::say)) {
             String yaml = DemoScenario.yaml(0, flags.url().toString());
             InterimConfig config = ConfigLoader.parse(yaml, Map.of("DEMO_WEBHOOK_KEY", secret));
             say("starting the embedded Kafka broker and the daemon (data in " + dataDir + ")");
@@ -73,7 +82,7 @@ public final class Demo {
                 DemoTraffic traffic = new DemoTraffic(20261202);
                 long start = System.nanoTime();
                 long decidedAt = -1;
-                while (keepRunning || System.nanoTime() - start < limit.toNanos()) {
+                while (ending == Ending.KEEP_RUNNING || System.nanoTime() - start < limit.toNanos()) {
                     traffic.shoppers(400, System.currentTimeMillis(), (shopper, json) -> {
                         producer.send(new ProducerRecord<>(config.kafka().inputTopics().get(0), shopper, json));
                         if (saved != null) {
@@ -90,7 +99,7 @@ public final class Demo {
                     if (decidedAt < 0 && !flags.kills().isEmpty()) {
                         decidedAt = System.nanoTime();
                     }
-                    if (!keepRunning && decidedAt > 0 && System.nanoTime() - decidedAt > Duration.ofSeconds(8).toNanos()) {
+                    if (ending == Ending.AFTER_VERDICT && decidedAt > 0 && System.nanoTime() - decidedAt > Duration.ofSeconds(8).toNanos()) {
                         break;
                     }
                 }
@@ -109,8 +118,9 @@ public final class Demo {
             for (Comparison c : m.comparisons()) {
                 LookResult last = c.last();
                 out.printf(Locale.ROOT, "  %-12s %-20s %-14s %5s %8s %8s %8s%n", c.arm(), c.metric().name(), c.decision().label(),
-                        last == null ? "-" : last.look().number(), last == null ? "-" : fmt(last.look().fraction()),
-                        last == null ? "-" : fmt(last.estimate().z()), last == null ? "-" : fmt(last.boundary()));
+                        last == null ? Numbers.NONE : last.look().number(), last == null ? Numbers.NONE : Numbers.fixed(last.look().fraction(), 3),
+                        last == null ? Numbers.NONE : Numbers.fixed(last.estimate().z(), 3),
+                        last == null ? Numbers.NONE : Numbers.fixed(last.boundary(), 3));
                 if (c.arm().equals("candidate-b") && c.decision() == Decision.STOP_HARM) {
                     harmStopped = true;
                 }
@@ -125,10 +135,6 @@ public final class Demo {
                 : "the scenario did not end as expected: candidate-b stopped " + harmStopped + ", candidate-a stopped " + healthyStopped);
         out.flush();
         return harmStopped && !healthyStopped;
-    }
-
-    private static String fmt(double x) {
-        return Double.isFinite(x) ? String.format(Locale.ROOT, "%.3f", x) : (x > 0 ? "inf" : x < 0 ? "-inf" : "nan");
     }
 
     private void print(DecisionRecord d) {

@@ -4,14 +4,14 @@ import java.util.SplittableRandom;
 import java.util.function.BiConsumer;
 
 /**
- * Synthetic shoppers of the invented "tidepool" checkout: each shopper is assigned to a build by a
+ * Synthetic shoppers of the invented "quorvel" checkout: each shopper is assigned to a build by a
  * hash of their id (a third each), browses, attempts a payment (which may fail and takes some
  * time), and places an order when the payment went through and they decide to. candidate-a is as
  * good as stable (a touch better); candidate-b fails more payments and is slower. Every number
  * here is made up for the demonstration.
  */
 public final class DemoTraffic {
-    public static final String EXPERIMENT = "tidepool-payments-2026-12";
+    public static final String EXPERIMENT = "quorvel-payments-2026-12";
     static final String[] BUILDS = {"stable", "candidate-a", "candidate-b"};
     private static final String[] FAILURES = {"declined_by_gateway", "timeout", "internal_error"};
 

@@ -2,7 +2,7 @@ package dev.interim.demo;
 
 import com.sun.net.httpserver.HttpServer;
 import dev.interim.signal.DecisionJson;
-import dev.interim.signal.Secret;
+import dev.interim.signal.SigningKey;
 import dev.interim.signal.WebhookSignature;
 import dev.interim.experiment.DecisionRecord;
 import java.io.IOException;
@@ -23,7 +23,7 @@ final class FlagServiceStandIn implements AutoCloseable {
     private final HttpServer server;
     private final List<DecisionRecord> kills = new CopyOnWriteArrayList<>();
 
-    FlagServiceStandIn(Secret secret, Consumer<String> say) throws IOException {
+    FlagServiceStandIn(SigningKey secret, Consumer<String> say) throws IOException {
         server = HttpServer.create(new InetSocketAddress("127.0.0.1", 0), 0);
         server.createContext("/flags/kill", exchange -> {
             try (InputStream in = exchange.getRequestBody()) {

@@ -1,5 +1,6 @@
 package dev.interim.experiment;
 
+import dev.interim.text.UserText;
 import java.util.Locale;
 
 /**
@@ -27,7 +28,7 @@ public enum Assignment {
                 return a;
             }
         }
-        throw new IllegalArgumentException("unknown assignment '" + text + "': use unit (each unit keeps its arm) or "
+        throw new IllegalArgumentException("unknown assignment " + UserText.quoted(text) + ": use unit (each unit keeps its arm) or "
                 + "event (each event assigned on its own)");
     }
 }

@@ -24,8 +24,9 @@ import java.util.Optional;
  * state is never held. Looks skipped while held cost nothing: spending functions spend by
  * information, not by look count.
  *
- * <p>Mutable and not thread-safe; time is passed in. The whole state is rebuilt from
- * {@link #fractions()} and the decision ({@link #restore}), so α already spent survives restarts.
+ * <p>Mutable and not thread-safe; time is passed in. The state is rebuilt after a restart from the
+ * monitor's {@link #snapshot()}, the decision, the last look's result and the kept look points
+ * ({@link #restore}), so α already spent, the decision and the history survive restarts.
  */
 public final class Comparison {
     private final ExperimentDefinition experiment;
@@ -53,6 +54,8 @@ public final class Comparison {
     /** Recent fractions kept in memory; the state itself is the monitor's snapshot. */
     static final int KEPT_FRACTIONS = 10_000;
     private final List<LookPoint> points = new ArrayList<>();
+    /** The first kept point not yet persisted, or changed since (thinning moves them all). */
+    private int unsavedFrom;
 
     Comparison(ExperimentDefinition experiment, MetricDefinition metric, String arm) {
         this.experiment = experiment;
@@ -83,7 +86,7 @@ public final class Comparison {
         if (metric.role() == Role.GUARDRAIL) {
             return metric.worse().harm();
         }
-        if (metric.sides() == 2) {
+        if (metric.sides() == Sides.TWO) {
             return Alternative.TWO_SIDED;
         }
         return metric.worse().harm() == Alternative.GREATER ? Alternative.LESS : Alternative.GREATER;
@@ -91,6 +94,14 @@ public final class Comparison {
 
     public String arm() {
         return arm;
+    }
+
+    /**
+     * The drift η at which the design has the planned power at its planned looks (a powered horizon:
+     * the planned information is I_max = (η/δ)²); NaN for a maximum per arm.
+     */
+    public double plannedDrift() {
+        return plannedDrift;
     }
 
     public MetricDefinition metric() {
@@ -129,10 +140,39 @@ public final class Comparison {
 
     /** Rebuilds the state after a restart from a {@link #snapshot()} and the decision. */
     public void restore(SequentialMonitor.Snapshot snapshot, Decision restored) {
+        restore(snapshot, restored, null, List.of());
+    }
+
+    /**
+     * Rebuilds the state after a restart: the monitor from its {@link #snapshot()}, the decision, the
+     * last look's result ({@link #last()}, null if none was kept) and the kept look points
+     * ({@link #points()}), so that views, meters and the records of later holds carry on from them.
+     */
+    public void restore(SequentialMonitor.Snapshot snapshot, Decision restored, LookResult lastLook,
+                        List<LookPoint> kept) {
         monitor = SequentialMonitor.restore(design, snapshot);
         recentCount = 0;
         needs.clear();
         decision = restored == null ? Decision.CONTINUE : restored;
+        last = lastLook;
+        points.clear();
+        points.addAll(kept);
+        unsavedFrom = points.size();
+    }
+
+    /** The look points kept for views and charts, oldest first (unmodifiable; call on the owning thread). */
+    public List<LookPoint> points() {
+        return java.util.Collections.unmodifiableList(points);
+    }
+
+    /** The index of the first kept point not persisted since {@link #saved()} (the size when none). */
+    public int unsavedFrom() {
+        return Math.min(unsavedFrom, points.size());
+    }
+
+    /** The kept points are persisted as they are now. */
+    public void saved() {
+        unsavedFrom = points.size();
     }
 
     /** Rebuilds the state after a restart: the same looks, the same α spent, the same decision. */
@@ -208,7 +248,7 @@ public final class Comparison {
         remember(fraction);
         Decision previous = decision;
         if (look.informationAdded()) {
-            decision = decide(look, e.z());
+            decision = Decision.at(look, e.z(), metric.worse());
         }
         ConfidenceInterval interval = RepeatedConfidenceInterval.at(design, look, e.effect(), e.standardError(),
                 e.degreesOfFreedom());
@@ -239,8 +279,10 @@ public final class Comparison {
     }
 
     private void keep(LookPoint p) {
+        unsavedFrom = Math.min(unsavedFrom, points.size());
         points.add(p);
         if (points.size() > KEPT_POINTS) {
+            unsavedFrom = 0;
             // Thin the older half: keep every other point of it, so the whole run stays drawable.
             List<LookPoint> thinned = new ArrayList<>(KEPT_POINTS);
             int half = points.size() / 2;
@@ -315,15 +357,4 @@ public final class Comparison {
      * usual rule of thumb for it (common practice).
      */
     static final double FULL_COUNT = 30;
-
-    private Decision decide(Look look, double z) {
-        if (look.rejects(z)) {
-            boolean harmful = metric.worse() == Worse.HIGHER ? z > 0 : z < 0;
-            return harmful ? Decision.STOP_HARM : Decision.STOP_BENEFIT;
-        }
-        if (look.futile(z)) {
-            return Decision.STOP_FUTILITY;
-        }
-        return look.last() ? Decision.COMPLETE : Decision.CONTINUE;
-    }
 }

@@ -24,6 +24,25 @@ public enum Decision {
         return label;
     }
 
+    /**
+     * The decision rule at a look that added information: a crossed efficacy boundary stops for harm
+     * or benefit by the direction {@code worse} says hurts users, a crossed futility boundary for
+     * futility, the final look completes; otherwise continue. The daemon's comparisons and the
+     * simulation of a design's error rates both decide by this one rule.
+     *
+     * @param z the statistic on the standard normal scale, treatment − control
+     */
+    public static Decision at(dev.interim.sequential.Look look, double z, Worse worse) {
+        if (look.rejects(z)) {
+            boolean harmful = worse == Worse.HIGHER ? z > 0 : z < 0;
+            return harmful ? STOP_HARM : STOP_BENEFIT;
+        }
+        if (look.futile(z)) {
+            return STOP_FUTILITY;
+        }
+        return look.last() ? COMPLETE : CONTINUE;
+    }
+
     /** True for the states that end the comparison for good. */
     public boolean isFinal() {
         return this == STOP_HARM || this == STOP_BENEFIT || this == STOP_FUTILITY || this == COMPLETE;

@@ -1,5 +1,7 @@
 package dev.interim.experiment;
 
+import dev.interim.stats.Probabilities;
+import dev.interim.text.UserText;
 import java.time.Duration;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
@@ -20,34 +22,40 @@ import java.util.regex.Pattern;
  * @param split expected share of exposures per arm (any positive weights; normalised)
  * @param lookEvery time between looks
  * @param minPerArm observations every arm needs before the first look
- * @param dryRun decide and record, but never call the kill webhook
+ * @param mode live, or dry-run: decide and record, but never call the kill webhook
  * @param sampleRatioThreshold p-value below which the split is judged broken and decisions held
  * @param metrics the metrics watched (at least one)
  * @param assignment how arms were assigned: per unit (event metrics are then analysed as ratios of
  *                   per-unit sums, with delta-method variances) or per event
  */
 public record ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
-                                   Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
+                                   Duration lookEvery, long minPerArm, RunMode mode, double sampleRatioThreshold,
                                    List<MetricDefinition> metrics, Assignment assignment) {
 
     /** An experiment whose arms were assigned per event (each event an independent observation). */
     public ExperimentDefinition(String id, String control, List<String> treatments, Map<String, Double> split,
-                                Duration lookEvery, long minPerArm, boolean dryRun, double sampleRatioThreshold,
+                                Duration lookEvery, long minPerArm, RunMode mode, double sampleRatioThreshold,
                                 List<MetricDefinition> metrics) {
-        this(id, control, treatments, split, lookEvery, minPerArm, dryRun, sampleRatioThreshold, metrics, Assignment.EVENT);
+        this(id, control, treatments, split, lookEvery, minPerArm, mode, sampleRatioThreshold, metrics, Assignment.EVENT);
+    }
+
+    /** True in dry-run mode: decisions are recorded, nothing acts on them. */
+    public boolean dryRun() {
+        return mode == RunMode.DRY_RUN;
     }
 
     private static final Pattern ID = Pattern.compile("[A-Za-z0-9_.-]{1,128}");
 
     public ExperimentDefinition {
-        require(id != null && ID.matcher(id).matches(), "id must be 1 to 128 letters, digits, '_', '-' or '.', got '" + id + "'");
-        require(control != null && ID.matcher(control).matches(), "control must name an arm, got '" + control + "'");
+        require(mode != null, "mode is required: live or dry-run");
+        require(id != null && ID.matcher(id).matches(), "id must be 1 to 128 letters, digits, '_', '-' or '.', got " + UserText.quoted(id));
+        require(control != null && ID.matcher(control).matches(), "control must name an arm, got " + UserText.quoted(control));
         require(treatments != null && !treatments.isEmpty(), "treatments must list at least one arm");
         Set<String> arms = new HashSet<>();
         arms.add(control);
         for (String t : treatments) {
-            require(t != null && ID.matcher(t).matches(), "treatments: an arm name must be 1 to 128 letters, digits, '_', '-' or '.', got '" + t + "'");
-            require(arms.add(t), "arm '" + t + "' is listed twice (control and treatments must differ)");
+            require(t != null && ID.matcher(t).matches(), "treatments: an arm name must be 1 to 128 letters, digits, '_', '-' or '.', got " + UserText.quoted(t));
+            require(arms.add(t), "arm " + UserText.quoted(t) + " is listed twice (control and treatments must differ)");
         }
         treatments = List.copyOf(treatments);
         if (split == null || split.isEmpty()) {
@@ -65,12 +73,11 @@ public record ExperimentDefinition(String id, String control, List<String> treat
         require(lookEvery != null && !lookEvery.isNegative() && lookEvery.compareTo(Duration.ofSeconds(1)) >= 0,
                 "look_every must be at least 1s, got " + lookEvery);
         require(minPerArm >= 2, "min_per_arm must be at least 2, got " + minPerArm);
-        require(sampleRatioThreshold > 0 && sampleRatioThreshold < 1,
-                "sample_ratio_threshold must lie strictly between 0 and 1, got " + sampleRatioThreshold);
+        Probabilities.requireOpen(sampleRatioThreshold, "sample_ratio_threshold");
         require(metrics != null && !metrics.isEmpty(), "metrics must list at least one metric");
         Set<String> names = new HashSet<>();
         for (MetricDefinition m : metrics) {
-            require(names.add(m.name()), "metric '" + m.name() + "' is defined twice");
+            require(names.add(m.name()), "metric " + UserText.quoted(m.name()) + " is defined twice");
         }
         metrics = List.copyOf(metrics);
         require(assignment != null, "assignment is required: unit or event");

@@ -16,10 +16,16 @@ import java.util.Optional;
  * already reached a final decision; when the split recovers (and no operator hold remains) they
  * continue. Each hold and resume is a decision record too.
  *
+ * <p>What operators set (a hold, an acknowledgement) and the run the experiment belongs to are its
+ * {@link OperatorState}: with each comparison's state, all that a restart needs to carry on exactly
+ * where it stopped, without a record of anything that did not happen.
+ *
  * <p>Mutable and not thread-safe: one owner per experiment.
  */
 public final class ExperimentMonitor {
     private final ExperimentDefinition definition;
+    /** The run this state belongs to: part of every decision id (empty for offline tools: see {@link DecisionRecord}). */
+    private String run;
     /** metric name → arm → comparison, in configuration order. */
     private final Map<String, Map<String, Comparison>> comparisons = new LinkedHashMap<>();
     private Instant lastLook;
@@ -29,8 +35,29 @@ public final class ExperimentMonitor {
     private Map<String, Long> lastExposures = Map.of();
     private Map<String, Map<String, Tally>> lastTallies = Map.of();
 
+    /**
+     * What operators set and the run of the experiment, persisted by the daemon with the comparisons'
+     * state and restored on a restart.
+     *
+     * @param run the id of this run of the experiment, created when its state was first written
+     * @param hold the operator's hold reason, or null when no operator holds it
+     * @param acknowledged whether an operator has acknowledged the stops for harm so far
+     */
+    public record OperatorState(String run, String hold, boolean acknowledged) {
+        public OperatorState {
+            java.util.Objects.requireNonNull(run, "run");
+        }
+    }
+
+    /** A monitor whose decision ids name no run (replay, simulation, tests): the same looks give the same ids. */
     public ExperimentMonitor(ExperimentDefinition definition) {
+        this(definition, "");
+    }
+
+    /** A monitor of one run of the experiment: its decision ids differ from those of every other run. */
+    public ExperimentMonitor(ExperimentDefinition definition, String run) {
         this.definition = definition;
+        this.run = java.util.Objects.requireNonNull(run, "run");
         for (MetricDefinition metric : definition.metrics()) {
             Map<String, Comparison> byArm = new LinkedHashMap<>();
             for (String arm : definition.treatments()) {
@@ -60,6 +87,26 @@ public final class ExperimentMonitor {
                     + "' on metric '" + metric + "'");
         }
         return c;
+    }
+
+    /** The run of the experiment this monitor decides (empty for offline tools). */
+    public String run() {
+        return run;
+    }
+
+    /** What operators set, and the run: to be persisted whenever it changes. */
+    public OperatorState operatorState() {
+        return new OperatorState(run, operatorHold, acknowledged);
+    }
+
+    /**
+     * Restores what operators had set before a restart. Writes no record: the comparisons' own states
+     * (a hold included) are restored with them, so nothing changes here.
+     */
+    public void restore(OperatorState state) {
+        run = state.run();
+        operatorHold = state.hold();
+        acknowledged = state.acknowledged();
     }
 
     public SampleRatio sampleRatio() {
@@ -105,7 +152,7 @@ public final class ExperimentMonitor {
             Optional<LookResult> r = outcomes.get(i);
             MetricDefinition metric = tasks.get(i).metric();
             r.ifPresent(results::add);
-            r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(x, metric, definition.dryRun())));
+            r.filter(LookResult::changed).ifPresent(x -> records.add(DecisionRecord.of(run, x, metric, definition.mode())));
             if (r.isPresent() && r.get().changed() && r.get().decision() == Decision.STOP_HARM) {
                 acknowledged = false;
             }
@@ -141,16 +188,29 @@ public final class ExperimentMonitor {
         for (Comparison c : comparisons()) {
             Decision before = c.decision();
             if (c.arm().equals(arm) && c.forceStop()) {
-                records.add(DecisionRecord.ofStateChange(definition.id(), c, before, at, definition.dryRun(),
+                records.add(DecisionRecord.ofStateChange(run, definition.id(), c, before, at, definition.mode(),
                         reason == null || reason.isBlank() ? "operator stop" : reason));
             }
         }
         return records;
     }
 
-    /** An operator has seen the stops for harm: the paging signal clears until a new stop. */
-    public void acknowledge() {
+    /**
+     * An operator has seen the stops for harm: the paging signal clears until a new stop. Returns
+     * what was acknowledged (the comparisons stopped for harm so far), or empty when it already was.
+     */
+    public Optional<Acknowledgement> acknowledge(Instant at) {
+        if (acknowledged) {
+            return Optional.empty();
+        }
         acknowledged = true;
+        List<Acknowledgement.Stop> stops = new ArrayList<>();
+        for (Comparison c : comparisons()) {
+            if (c.decision() == Decision.STOP_HARM) {
+                stops.add(new Acknowledgement.Stop(c.arm(), c.metric().name()));
+            }
+        }
+        return Optional.of(Acknowledgement.of(run, definition.id(), at, stops, definition.mode()));
     }
 
     public boolean acknowledged() {
@@ -171,7 +231,7 @@ public final class ExperimentMonitor {
         }
         String reason = operatorHold != null ? operatorHold : sampleRatio.mismatch() ? "sample-ratio mismatch" : null;
         return new ExperimentView(definition.id(), definition.control(), definition.treatments(), definition.dryRun(),
-                held(), reason, sampleRatio, lastLook, lastExposures, lastTallies, views, definition.assignment());
+                held(), reason, sampleRatio, lastLook, lastExposures, lastTallies, views, definition.assignment(), run);
     }
 
     public boolean held() {
@@ -186,7 +246,7 @@ public final class ExperimentMonitor {
             Decision before = c.decision();
             boolean changed = hold ? c.hold() : c.resume();
             if (changed) {
-                records.add(DecisionRecord.ofStateChange(definition.id(), c, before, at, definition.dryRun(),
+                records.add(DecisionRecord.ofStateChange(run, definition.id(), c, before, at, definition.mode(),
                         hold ? reason : "resume"));
             }
         }

@@ -12,11 +12,21 @@ import java.util.Map;
  * @param tallies the sufficient statistics at the last look, metric → arm → tally (every event counted once)
  * @param lastLook when the last look ran (null before the first)
  * @param assignment how arms were assigned (per unit: event metrics are ratios of per-unit sums)
+ * @param run the run of the experiment whose state this is (part of its decision ids), empty offline
  */
 public record ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
                              String holdReason, SampleRatio sampleRatio, Instant lastLook, Map<String, Long> exposures,
                              Map<String, Map<String, Tally>> tallies, List<ComparisonView> comparisons,
-                             Assignment assignment) {
+                             Assignment assignment, String run) {
+
+    /** A view that names no run. */
+    public ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
+                          String holdReason, SampleRatio sampleRatio, Instant lastLook, Map<String, Long> exposures,
+                          Map<String, Map<String, Tally>> tallies, List<ComparisonView> comparisons,
+                          Assignment assignment) {
+        this(id, control, treatments, dryRun, held, holdReason, sampleRatio, lastLook, exposures, tallies, comparisons,
+                assignment, "");
+    }
 
     /** A view of an experiment assigned per event. */
     public ExperimentView(String id, String control, List<String> treatments, boolean dryRun, boolean held,
@@ -33,6 +43,7 @@ public record ExperimentView(String id, String control, List<String> treatments,
         tallies.forEach((metric, byArm) -> copy.put(metric, Map.copyOf(byArm)));
         tallies = Map.copyOf(copy);
         comparisons = List.copyOf(comparisons);
+        run = run == null ? "" : run;
     }
 
     /**

@@ -1,5 +1,7 @@
 package dev.interim.experiment;
 
+import dev.interim.stats.Probabilities;
+
 /**
  * How much information a comparison plans for: the information fraction of a look is the
  * information gathered so far over the planned maximum, I/I_max, with I = 1/Var(estimate).
@@ -43,9 +45,7 @@ public sealed interface Horizon permits Horizon.MaxPerArm, Horizon.Powered {
             if (scale == null) {
                 throw new IllegalArgumentException("the scale of the effect is required: absolute or relative");
             }
-            if (!(power > 0 && power < 1)) {
-                throw new IllegalArgumentException("power must lie strictly between 0 and 1, got " + power);
-            }
+            Probabilities.requireOpen(power, "power");
             if (!(effect != 0) || !Double.isFinite(effect)) {
                 throw new IllegalArgumentException("effect must be a non-zero number, got " + effect);
             }

@@ -1,6 +1,8 @@
 package dev.interim.experiment;
 
 import dev.interim.sequential.SpendingFunction;
+import dev.interim.stats.Probabilities;
+import dev.interim.text.UserText;
 import java.util.regex.Pattern;
 
 /**
@@ -12,7 +14,7 @@ import java.util.regex.Pattern;
  * @param role primary or guardrail
  * @param worse which direction of the metric hurts users
  * @param alpha type I error for this metric, shared out over the treatment arms (Bonferroni)
- * @param sides 1 (guardrails: harm only; primary: benefit only) or 2 (primary: either way)
+ * @param sides one (guardrails: harm only; primary: benefit only) or two (primary: either way)
  * @param spending α-spending function
  * @param futility β-spending function for non-binding futility (one-sided primary metrics with a
  *                 powered horizon only), or null
@@ -25,12 +27,12 @@ import java.util.regex.Pattern;
  *            ratio is taken as at most this value (common practice for revenue-like metrics)
  * @param denominatorCap the same for a ratio's denominator, or null
  */
-public record MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, int sides,
+public record MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, Sides sides,
                                SpendingFunction spending, SpendingFunction futility, Horizon horizon,
                                Double baseline, StopAction action, Double cap, Double denominatorCap) {
 
     /** A metric without caps. */
-    public MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, int sides,
+    public MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, Sides sides,
                             SpendingFunction spending, SpendingFunction futility, Horizon horizon,
                             Double baseline, StopAction action) {
         this(name, kind, role, worse, alpha, sides, spending, futility, horizon, baseline, action, null, null);
@@ -40,22 +42,24 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
 
     public MetricDefinition {
         if (name == null || !NAME.matcher(name).matches()) {
-            throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got '" + name + "'");
+            throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got " + UserText.quoted(name));
         }
         require(kind != null, "kind is required: event-rate, unit-rate, event-mean, unit-total or ratio");
         require(role != null, "role is required: primary or guardrail");
         require(worse != null, "worse is required: higher or lower");
-        require(alpha > 0 && alpha < 1, "alpha must lie strictly between 0 and 1, got " + alpha);
-        require(sides == 1 || sides == 2, "sides must be 1 or 2, got " + sides);
-        require(role != Role.GUARDRAIL || sides == 1, "sides must be 1 for a guardrail (it watches for harm only), got " + sides);
+        Probabilities.requireOpen(alpha, "alpha");
+        require(sides != null, "sides is required: 1 or 2");
+        require(role != Role.GUARDRAIL || sides == Sides.ONE,
+                "sides must be 1 for a guardrail (it watches for harm only), got " + sides.count());
         require(spending != null, "spending is required: obf, pocock, power:RHO or hsd:GAMMA");
         require(horizon != null, "a horizon is required: max_per_arm, or power with effect");
-        require(futility == null || (role == Role.PRIMARY && sides == 1 && horizon instanceof Horizon.Powered),
+        require(futility == null || (role == Role.PRIMARY && sides == Sides.ONE && horizon instanceof Horizon.Powered),
                 "futility needs a one-sided primary metric with power and effect");
         if (baseline != null) {
             require(Double.isFinite(baseline), "baseline must be a finite number, got " + baseline);
-            require(!kind.isProportion() || (baseline > 0 && baseline < 1),
-                    "baseline of a rate must lie strictly between 0 and 1, got " + baseline);
+            if (kind.isProportion()) {
+                Probabilities.requireOpen(baseline, "baseline of a rate");
+            }
         }
         if (horizon instanceof Horizon.Powered p) {
             require(baseline == null || p.scale() == Horizon.Scale.ABSOLUTE || baseline != 0,

@@ -1,5 +1,7 @@
 package dev.interim.experiment;
 
+import dev.interim.text.UserText;
+
 /**
  * What a metric counts, and over what: per event (each event is an observation) or per unit (each
  * unit — a user, a session, a device — is one observation, whatever its number of events).
@@ -51,7 +53,7 @@ public enum MetricKind {
                 return k;
             }
         }
-        throw new IllegalArgumentException("unknown metric kind '" + text
-                + "': use event-rate, unit-rate, event-mean, unit-total or ratio");
+        throw new IllegalArgumentException("unknown metric kind " + UserText.quoted(text)
+                + ": use event-rate, unit-rate, event-mean, unit-total or ratio");
     }
 }

@@ -1,5 +1,7 @@
 package dev.interim.experiment;
 
+import dev.interim.text.UserText;
+
 /** What happens beyond the decision record when an arm is stopped for harm on this metric. */
 public enum StopAction {
     /** Record and meter only. */
@@ -14,7 +16,7 @@ public enum StopAction {
             case "none" -> NONE;
             case "kill" -> KILL;
             case "page" -> PAGE;
-            default -> throw new IllegalArgumentException("unknown action '" + text + "': use none, kill or page");
+            default -> throw new IllegalArgumentException("unknown action " + UserText.quoted(text) + ": use none, kill or page");
         };
     }
 }

@@ -1,6 +1,7 @@
 package dev.interim.experiment;
 
 import dev.interim.stats.Alternative;
+import dev.interim.text.UserText;
 
 /** Which direction of the metric hurts users: higher error rates and latencies, lower revenue. */
 public enum Worse {
@@ -15,7 +16,7 @@ public enum Worse {
         return switch (text == null ? "" : text) {
             case "higher" -> HIGHER;
             case "lower" -> LOWER;
-            default -> throw new IllegalArgumentException("unknown direction '" + text + "': use higher or lower");
+            default -> throw new IllegalArgumentException("unknown direction " + UserText.quoted(text) + ": use higher or lower");
         };
     }
 }

@@ -156,9 +156,9 @@ public final class ExperimentApi {
 
     /** An experiment not decided here: not configured (404), not yet assigned (503), or decided elsewhere. */
     private Response notHere(String id, boolean action) throws Exception {
-        String shown = id.length() > 130 ? id.substring(0, 128) + "…" : id;
+        String shown = dev.interim.text.UserText.quoted(id);
         if (!operations.configured().contains(id)) {
-            return error(404, "no experiment '" + shown + "' is configured; GET /api/experiments lists the ones decided here");
+            return error(404, "no experiment " + shown + " is configured; GET /api/experiments lists the ones decided here");
         }
         Ownership ownership = operations.ownership();
         if (!ownership.assigned()) {
@@ -166,8 +166,8 @@ public final class ExperimentApi {
         }
         String where = operations.ownerOf(id).map(o -> "another instance (" + o + ")").orElse("another instance");
         return action
-                ? error(409, "experiment '" + shown + "' is decided by " + where + ", not this one; send the action there")
-                : error(404, "experiment '" + shown + "' is decided by " + where + ", not this one; ask that instance");
+                ? error(409, "experiment " + shown + " is decided by " + where + ", not this one; send the action there")
+                : error(404, "experiment " + shown + " is decided by " + where + ", not this one; ask that instance");
     }
 
     private enum Action { HOLD, RESUME, ACKNOWLEDGE, STOP }
@@ -239,6 +239,9 @@ public final class ExperimentApi {
         v.treatments().forEach(treatments::add);
         n.put("assignment", v.assignment().label());
         n.put("dry_run", v.dryRun());
+        if (!v.run().isEmpty()) {
+            n.put("run", v.run());
+        }
         n.put("held", v.held());
         if (v.holdReason() != null) {
             n.put("hold_reason", v.holdReason());

@@ -9,6 +9,7 @@ import com.fasterxml.jackson.core.filter.JsonPointerBasedFilter;
 import com.fasterxml.jackson.core.filter.TokenFilter;
 import dev.interim.stream.BadEventException;
 import dev.interim.stream.BadEventException.Reason;
+import dev.interim.text.UserText;
 import java.io.IOException;
 import java.time.DateTimeException;
 import java.time.Instant;
@@ -107,8 +108,7 @@ final class EventTime {
             }
             return at.toEpochMilli();
         } catch (DateTimeException | ArithmeticException e) {
-            String shown = text.length() <= 40 ? text : text.substring(0, 40) + "…";
-            throw wrong("'" + shown + "' is not an ISO-8601 time with an offset, such as 2031-05-02T10:15:04.120Z");
+            throw wrong(UserText.quoted(text) + " is not an ISO-8601 time with an offset, such as 2031-05-02T10:15:04.120Z");
         }
     }
 

@@ -28,11 +28,6 @@ public interface ReplayListener {
      * @param done true for the last report, once the whole file is read
      */
     record Progress(long events, long bytesRead, long bytesTotal, long elapsedNanos, boolean done) {
-        /** Events per second so far (0 before any time has passed). */
-        public double eventsPerSecond() {
-            return elapsedNanos <= 0 ? 0 : events * 1e9 / elapsedNanos;
-        }
-
         /** Share of the file read, 0 to 1 (1 for an empty file). */
         public double fractionRead() {
             return bytesTotal <= 0 ? 1 : Math.min(1, (double) bytesRead / bytesTotal);

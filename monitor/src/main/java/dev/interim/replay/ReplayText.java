@@ -1,5 +1,11 @@
 package dev.interim.replay;
 
+import static dev.interim.text.Numbers.INFINITY;
+import static dev.interim.text.Numbers.NONE;
+import static dev.interim.text.Numbers.count;
+import static dev.interim.text.Numbers.fixed;
+import static dev.interim.text.Numbers.significant;
+
 import dev.interim.config.Durations;
 import dev.interim.config.ExperimentConfig;
 import dev.interim.config.InterimConfig;
@@ -8,17 +14,16 @@ import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.LookResult;
 import dev.interim.stats.ConfidenceInterval;
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
-import java.math.BigDecimal;
-import java.math.MathContext;
-import java.math.RoundingMode;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.Locale;
 
 /**
  * A replay as people read it: one aligned line per decision as it happens, and a summary at the
- * end. Numbers are locale-independent; an infinite boundary or interval end prints as {@code inf}.
+ * end. Numbers are written by {@link Numbers}'s human text: an infinite boundary or interval end
+ * prints as {@code ∞} ({@code -∞}), a value that is not there as {@link Numbers#NONE}, and the
+ * sample-ratio p-value like {@code 2.6e-24} when tiny (the JSON lines stay raw).
  * The summary's last column is the relative change (treatment/control − 1) with its interval; for a
  * comparison that never looked it says why (the comparison's reason for skipping its last due look).
  */
@@ -99,8 +104,8 @@ public final class ReplayText {
         for (String arm : concat(v.control(), v.treatments())) {
             exposures.add(arm + " " + count(v.exposures().getOrDefault(arm, 0L)));
         }
-        out.println("  exposures: " + String.join(", ", exposures) + "; sample ratio p = "
-                + significant(v.sampleRatio().pValue(), 3) + "; arms assigned per " + v.assignment().label()
+        out.println("  exposures: " + String.join(", ", exposures) + "; sample ratio "
+                + Numbers.pValue(v.sampleRatio().pValue()) + "; arms assigned per " + v.assignment().label()
                 + (v.held() ? "; HELD (" + v.holdReason() + ")" : ""));
         List<String[]> rows = new ArrayList<>();
         rows.add(new String[] {"arm", "metric", "role", "decision", "look", "fraction", "z", "boundary", "estimate",
@@ -108,7 +113,7 @@ public final class ReplayText {
         for (ComparisonOutcome c : e.comparisons()) {
             LookResult l = c.last();
             if (l == null) {
-                rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(), "-", "-", "-", "-", "-", "-",
+                rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(), NONE, NONE, NONE, NONE, NONE, NONE,
                     c.skipped() == null ? "too few observations to look" : c.skipped()});
                 continue;
             }
@@ -147,24 +152,24 @@ public final class ReplayText {
     }
 
     private static String interval(ConfidenceInterval i) {
-        String lower = Double.isInfinite(i.lower()) ? "(-inf" : "[" + significant(i.lower(), 4);
-        String upper = Double.isInfinite(i.upper()) ? "inf)" : significant(i.upper(), 4) + "]";
+        String lower = Double.isInfinite(i.lower()) ? "(-" + INFINITY : "[" + significant(i.lower(), 4);
+        String upper = Double.isInfinite(i.upper()) ? INFINITY + ")" : significant(i.upper(), 4) + "]";
         return lower + ", " + upper + " " + significant(100 * i.level(), 4) + "%";
     }
 
     /**
      * The relative change treatment/control − 1 in percent with its repeated interval (at the level of
-     * the interval column), e.g. {@code +4.12% [+0.31%, inf)}; {@code -} when undefined (a level that
-     * is not positive). An end open below (−100%: the log ratio's interval is open there) prints as
+     * the interval column), e.g. {@code +4.12% [+0.31%, ∞)}; {@link Numbers#NONE} when undefined (a
+     * level that is not positive). An end open below (−100%: the log ratio's interval is open there) prints as
      * {@code (-100%}.
      */
     static String relative(LookResult l) {
         ConfidenceInterval i = l.relativeInterval();
         if (i == null || !Double.isFinite(l.estimate().relative())) {
-            return "-";
+            return NONE;
         }
         String lower = i.lower() <= -1 ? "(-100%" : "[" + percent(i.lower());
-        String upper = Double.isInfinite(i.upper()) ? "inf)" : percent(i.upper()) + "]";
+        String upper = Double.isInfinite(i.upper()) ? INFINITY + ")" : percent(i.upper()) + "]";
         return percent(l.estimate().relative()) + " " + lower + ", " + upper;
     }
 
@@ -178,32 +183,4 @@ public final class ReplayText {
         return s.length() >= width ? s : s + " ".repeat(width - s.length());
     }
 
-    /** Fixed decimals; {@code inf}, {@code -inf}, {@code nan} for the rest. */
-    static String fixed(double x, int places) {
-        if (!Double.isFinite(x)) {
-            return nonFinite(x);
-        }
-        return String.format(Locale.ROOT, "%." + places + "f", x);
-    }
-
-    /** {@code digits} significant digits, plain (no exponent), trailing zeros dropped. */
-    static String significant(double x, int digits) {
-        if (!Double.isFinite(x)) {
-            return nonFinite(x);
-        }
-        if (x == 0) {
-            return "0";
-        }
-        BigDecimal d = new BigDecimal(x).round(new MathContext(digits, RoundingMode.HALF_EVEN)).stripTrailingZeros();
-        return d.scale() < 0 ? d.setScale(0).toPlainString() : d.toPlainString();
-    }
-
-    private static String nonFinite(double x) {
-        return Double.isNaN(x) ? "nan" : x > 0 ? "inf" : "-inf";
-    }
-
-    /** A count with thousands separators: {@code 1,234,567}. */
-    static String count(long n) {
-        return String.format(Locale.ROOT, "%,d", n);
-    }
 }

@@ -1,5 +1,6 @@
 package dev.interim.sequential;
 
+import dev.interim.stats.Alternative;
 import java.util.function.DoubleUnaryOperator;
 import org.apache.commons.numbers.rootfinder.BrentSolver;
 
@@ -25,10 +26,11 @@ final class BoundarySolver {
     private BoundarySolver() {}
 
     /**
-     * The upper boundary at fraction t1 spending {@code increment} on the upper side (and, when
-     * {@code symmetric}, on the lower side at −b too).
+     * The upper boundary at fraction t1 spending {@code increment} on the upper side (and, for a
+     * two-sided {@code alternative}, on the lower side at −b too).
      */
-    static double upper(SubDensity state, double t1, double increment, boolean symmetric) {
+    static double upper(SubDensity state, double t1, double increment, Alternative alternative) {
+        boolean symmetric = alternative == Alternative.TWO_SIDED;
         if (!(increment >= SMALLEST_INCREMENT)) {
             return Double.POSITIVE_INFINITY;
         }

@@ -1,5 +1,7 @@
 package dev.interim.sequential;
 
+import dev.interim.stats.Probabilities;
+
 /**
  * The smallest effect a design must detect, with what its variance depends on. Both compare two arms
  * of equal size; {@link #fixedSamplePerArm} is the textbook single-look sample size per arm.
@@ -37,9 +39,7 @@ public sealed interface Effect permits Effect.MeanDifference, Effect.ProportionD
      */
     record ProportionDifference(double baseline, double delta) implements Effect {
         public ProportionDifference {
-            if (!(baseline > 0 && baseline < 1)) {
-                throw new IllegalArgumentException("the baseline rate must lie strictly between 0 and 1, got " + baseline);
-            }
+            Probabilities.requireOpen(baseline, "the baseline rate");
             double other = baseline + delta;
             if (!(delta != 0) || !(other > 0 && other < 1)) {
                 throw new IllegalArgumentException("baseline rate + effect must be a different rate strictly between 0 and 1, got "

@@ -1,5 +1,7 @@
 package dev.interim.sequential;
 
+import dev.interim.stats.Probabilities;
+
 /**
  * Non-binding futility stopping by β spending (one-sided designs only): at each look the futility
  * boundary a_k is set so that, under the alternative the design is powered for, the probability of
@@ -13,9 +15,7 @@ package dev.interim.sequential;
  */
 public record Futility(double beta, SpendingFunction spending, double drift) {
     public Futility {
-        if (!(beta > 0 && beta < 1)) {
-            throw new IllegalArgumentException("beta (1 - power) must lie strictly between 0 and 1, got " + beta);
-        }
+        Probabilities.requireOpen(beta, "beta (1 - power)");
         if (spending == null) {
             throw new IllegalArgumentException("futility needs a beta-spending function");
         }

@@ -1,6 +1,7 @@
 package dev.interim.sequential;
 
 import dev.interim.stats.Alternative;
+import dev.interim.stats.Probabilities;
 import java.util.Arrays;
 import org.apache.commons.numbers.rootfinder.BrentSolver;
 
@@ -30,9 +31,7 @@ public record GroupSequentialDesign(double alpha, Alternative alternative, Spend
     public static final int DEFAULT_RESOLUTION = 16;
 
     public GroupSequentialDesign {
-        if (!(alpha > 0 && alpha < 1)) {
-            throw new IllegalArgumentException("alpha must lie strictly between 0 and 1, got " + alpha);
-        }
+        Probabilities.requireOpen(alpha, "alpha");
         if (alternative == null) {
             throw new IllegalArgumentException("a design needs a direction (two-sided, greater or less)");
         }
@@ -68,9 +67,7 @@ public record GroupSequentialDesign(double alpha, Alternative alternative, Spend
             throw new IllegalArgumentException("the planned fractions of a classic design must end at 1, got "
                     + plannedFractions[plannedFractions.length - 1]);
         }
-        if (!(alpha > 0 && alpha < 1)) {
-            throw new IllegalArgumentException("alpha must lie strictly between 0 and 1, got " + alpha);
-        }
+        Probabilities.requireOpen(alpha, "alpha");
         boolean twoSided = alternative == Alternative.TWO_SIDED;
         double[] fractions = plannedFractions.clone();
         // Size of the classic shape with constant 1 at each look; the constant scales it.

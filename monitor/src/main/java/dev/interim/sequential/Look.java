@@ -19,12 +19,33 @@ import dev.interim.stats.Alternative;
  * @param alphaSpent cumulative type I error spent up to and including this look
  * @param alphaIncrement type I error spent at this look
  * @param betaSpent cumulative type II error spent by futility boundaries (0 without futility)
- * @param informationAdded false when this look brought no information beyond the previous one
- * @param last true when this look reached the planned maximum information (fraction ≥ 1) or came after it
+ * @param stage where the look stands in the design: an interim look, the final one, a look that
+ *              brought no information beyond the previous one, or one after the final look
  */
 public record Look(int number, double fraction, double upper, double lower, Alternative alternative,
-                   double alphaSpent, double alphaIncrement, double betaSpent,
-                   boolean informationAdded, boolean last) {
+                   double alphaSpent, double alphaIncrement, double betaSpent, Stage stage) {
+
+    /** Where a look stands in its design. */
+    public enum Stage {
+        /** Before the planned maximum information, with information beyond the previous look. */
+        INTERIM,
+        /** The look that reached the planned maximum information (fraction ≥ 1): it spends the rest of α. */
+        FINAL,
+        /** No information beyond the previous look (its fraction did not exceed it): nothing is spent. */
+        NO_INFORMATION,
+        /** After the final look: no α is left, the boundaries are infinite. */
+        AFTER_END
+    }
+
+    /** Whether this look brought information beyond the previous one (an interim or the final look). */
+    public boolean informationAdded() {
+        return stage == Stage.INTERIM || stage == Stage.FINAL;
+    }
+
+    /** Whether this look reached the planned maximum information or came after it. */
+    public boolean last() {
+        return stage == Stage.FINAL || stage == Stage.AFTER_END;
+    }
 
     /** Whether statistic z crosses a boundary that rejects the null hypothesis. */
     public boolean rejects(double z) {

@@ -1,6 +1,7 @@
 package dev.interim.sequential;
 
 import dev.interim.stats.Alternative;
+import dev.interim.stats.Probabilities;
 import org.apache.commons.numbers.rootfinder.BrentSolver;
 
 /**
@@ -39,9 +40,7 @@ public final class Planning {
 
     /** The drift at which the design has the given power; for futility designs it also sets the alternative. */
     public static double driftForPower(GroupSequentialDesign design, double[] fractions, double power) {
-        if (!(power > 0 && power < 1)) {
-            throw new IllegalArgumentException("power must lie strictly between 0 and 1, got " + power);
-        }
+        Probabilities.requireOpen(power, "power");
         double single = zAlpha(design) + StandardNormal.quantile(power);
         return BRENT.findRoot(eta -> power(aimedAt(design, eta), fractions, eta) - power, single * 0.5, single * 2.5);
     }

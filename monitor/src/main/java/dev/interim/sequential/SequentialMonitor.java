@@ -144,12 +144,12 @@ public final class SequentialMonitor {
         double before = underNull.fraction;
         if (previous != null && previous.last()) {
             previous = orient(number, Math.max(fraction, before), Double.POSITIVE_INFINITY,
-                    Double.NEGATIVE_INFINITY, 0, fraction > before, true);
+                    Double.NEGATIVE_INFINITY, 0, Look.Stage.AFTER_END);
             return previous;
         }
         if (previous != null && !(fraction > before * (1 + NO_INFORMATION))) {
             previous = new Look(number, before, previous.upper(), previous.lower(), previous.alternative(),
-                    alphaSpent, 0, betaSpent, false, false);
+                    alphaSpent, 0, betaSpent, Look.Stage.NO_INFORMATION);
             return previous;
         }
         boolean last = fraction >= 1;
@@ -157,7 +157,7 @@ public final class SequentialMonitor {
         double increment = Math.max(0, allowedBy(fraction) - alphaSpent);
         double upper;
         if (design.spending() != null) {
-            upper = BoundarySolver.upper(underNull, fraction, increment, twoSided);
+            upper = BoundarySolver.upper(underNull, fraction, increment, design.alternative());
         } else {
             upper = design.classic().at(fraction);
             increment = underNull.upperTail(fraction, upper) + (twoSided ? underNull.lowerTail(fraction, -upper) : 0);
@@ -171,7 +171,7 @@ public final class SequentialMonitor {
         if (design.futility() != null) {
             lower = futilityBoundary(fraction, upper, last);
         }
-        previous = orient(number, fraction, upper, lower, increment, true, last);
+        previous = orient(number, fraction, upper, lower, increment, last ? Look.Stage.FINAL : Look.Stage.INTERIM);
         return previous;
     }
 
@@ -196,13 +196,11 @@ public final class SequentialMonitor {
 
     /** Builds the look in the design's direction; a "less" design is the mirror image of "greater". */
     private Look orient(int number, double fraction, double upper, double lower, double increment,
-                        boolean informationAdded, boolean last) {
+                        Look.Stage stage) {
         Alternative alternative = design.alternative();
         if (alternative == Alternative.LESS) {
-            return new Look(number, fraction, -lower, -upper, alternative, alphaSpent, increment, betaSpent,
-                    informationAdded, last);
+            return new Look(number, fraction, -lower, -upper, alternative, alphaSpent, increment, betaSpent, stage);
         }
-        return new Look(number, fraction, upper, lower, alternative, alphaSpent, increment, betaSpent,
-                informationAdded, last);
+        return new Look(number, fraction, upper, lower, alternative, alphaSpent, increment, betaSpent, stage);
     }
 }

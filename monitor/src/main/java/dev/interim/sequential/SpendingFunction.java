@@ -1,5 +1,8 @@
 package dev.interim.sequential;
 
+import dev.interim.stats.Probabilities;
+import dev.interim.text.Numbers;
+import dev.interim.text.UserText;
 import java.util.Locale;
 
 /**
@@ -18,10 +21,7 @@ public sealed interface SpendingFunction
 
     /** Cumulative error spent by information fraction {@code t}, for a total error {@code total}. */
     default double spent(double t, double total) {
-        if (!(total > 0 && total < 1)) {
-            throw new IllegalArgumentException(
-                    "error to spend must lie strictly between 0 and 1, got " + total);
-        }
+        Probabilities.requireOpen(total, "error to spend");
         if (Double.isNaN(t)) {
             throw new IllegalArgumentException("information fraction must be a number, got NaN");
         }
@@ -62,28 +62,29 @@ public sealed interface SpendingFunction
             case "hsd":
                 return new HwangShihDeCani(number(text, arg, "GAMMA"));
             default:
-                throw new IllegalArgumentException("unknown spending function '" + text
-                        + "': use obf, pocock, power:RHO (RHO > 0) or hsd:GAMMA");
+                throw new IllegalArgumentException("unknown spending function " + UserText.quoted(text)
+                        + ": use obf, pocock, power:RHO (RHO > 0) or hsd:GAMMA");
         }
     }
 
     private static void noArgument(String text, String arg) {
         if (arg != null) {
             throw new IllegalArgumentException(
-                    "spending function '" + text + "' takes no parameter: write it without ':'");
+                    "spending function " + UserText.quoted(text) + " takes no parameter: write it without ':'");
         }
     }
 
     private static double number(String text, String arg, String name) {
         if (arg == null || arg.isEmpty()) {
             throw new IllegalArgumentException(
-                    "spending function '" + text + "' needs a parameter: write it as " + text + ":" + name);
+                    "spending function " + UserText.quoted(text) + " needs a parameter: write it as "
+                            + UserText.shown(text) + ":" + name);
         }
         try {
             return Double.parseDouble(arg);
         } catch (NumberFormatException e) {
             throw new IllegalArgumentException(
-                    "spending function '" + text + "': " + name + " must be a number, got '" + arg + "'");
+                    "spending function " + UserText.quoted(text) + ": " + name + " must be a number, got " + UserText.quoted(arg));
         }
     }
 
@@ -131,7 +132,7 @@ public sealed interface SpendingFunction
 
         @Override
         public String label() {
-            return "power:" + Labels.number(rho);
+            return "power:" + Numbers.plain(rho);
         }
     }
 
@@ -156,7 +157,7 @@ public sealed interface SpendingFunction
 
         @Override
         public String label() {
-            return "hsd:" + Labels.number(gamma);
+            return "hsd:" + Numbers.plain(gamma);
         }
     }
 }

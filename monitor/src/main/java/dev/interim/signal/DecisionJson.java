@@ -5,6 +5,7 @@ import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.json.JsonMapper;
+import dev.interim.experiment.Acknowledgement;
 import dev.interim.experiment.DecisionRecord;
 import java.io.ByteArrayOutputStream;
 import java.io.IOException;
@@ -95,6 +96,51 @@ public final class DecisionJson {
             throw new UncheckedIOException("writing a decision record to memory failed", e);
         }
         return out.toByteArray();
+    }
+
+    /** The {@code type} of an operator's acknowledgement, published beside the decision records. */
+    public static final String ACKNOWLEDGEMENT_TYPE = "interim.acknowledgement";
+
+    /**
+     * An operator's acknowledgement as compact UTF-8 JSON: {@code type}, {@code experiment},
+     * {@code stops} (the arm and metric of each stop for harm acknowledged), {@code at}, {@code id} and
+     * {@code dry_run} (docs/decision-record.md).
+     */
+    public static byte[] write(Acknowledgement a) {
+        ByteArrayOutputStream out = new ByteArrayOutputStream(256);
+        try (JsonGenerator g = FACTORY.createGenerator(out)) {
+            g.writeStartObject();
+            g.writeStringField("type", ACKNOWLEDGEMENT_TYPE);
+            g.writeStringField("experiment", a.experiment());
+            g.writeArrayFieldStart("stops");
+            for (Acknowledgement.Stop stop : a.stops()) {
+                g.writeStartObject();
+                g.writeStringField("arm", stop.arm());
+                g.writeStringField("metric", stop.metric());
+                g.writeEndObject();
+            }
+            g.writeEndArray();
+            g.writeStringField("at", a.at().toString());
+            g.writeStringField("id", a.id());
+            g.writeBooleanField("dry_run", a.dryRun());
+            g.writeEndObject();
+        } catch (IOException e) {
+            throw new UncheckedIOException("writing an acknowledgement to memory failed", e);
+        }
+        return out.toByteArray();
+    }
+
+    /**
+     * The {@code type} member of a record on the decisions topic ({@link #TYPE} or
+     * {@link #ACKNOWLEDGEMENT_TYPE}), or null when it is not a JSON object with a text {@code type}.
+     */
+    public static String type(byte[] json) {
+        try {
+            JsonNode root = MAPPER.readTree(json);
+            return root != null && root.path("type").isTextual() ? root.path("type").asText() : null;
+        } catch (IOException e) {
+            return null;
+        }
     }
 
     /** The record as one line of JSON text, for logs and the console. */

@@ -1,6 +1,7 @@
 package dev.interim.signal;
 
 import dev.interim.experiment.DecisionRecord;
+import dev.interim.stats.Probabilities;
 import java.io.IOException;
 import java.net.URI;
 import java.net.http.HttpClient;
@@ -24,10 +25,12 @@ import org.slf4j.LoggerFactory;
  *
  * <p>Delivery. A 2xx answer delivers. 4xx answers other than 408 (timeout) and 429 (too many
  * requests) are the receiver's final word and are not retried; everything else — other statuses,
- * timeouts, refused connections — is retried after an exponential backoff with jitter (the n-th wait
- * is {@code min(maxBackoff, initialBackoff·2^(n−1))}, shortened by a random share up to
- * {@code jitter}, and never shorter than a {@code Retry-After} in seconds, itself capped at
- * {@code maxBackoff}), up to {@code maxAttempts} requests, each with its own timeout.
+ * timeouts, refused connections — is retried after an exponential backoff with jitter, up to
+ * {@code maxAttempts} requests, each with its own timeout. The n-th wait is at least its nominal
+ * length {@code min(maxBackoff, initialBackoff·2^(n−1))} and lengthened by a random share of it up
+ * to {@code jitter} (so it lies in [nominal, nominal·(1 + jitter)]): the jitter only adds, so the
+ * first retry never comes sooner than the configured initial backoff. A {@code Retry-After} in
+ * seconds, itself capped at {@code maxBackoff}, is waited for when it is longer.
  *
  * <p>Idempotent by decision id: an id delivered before, in this process or according to the
  * {@link DeliveryLog}, is not sent again, and one id is never sent by two threads at once. A dry-run
@@ -43,7 +46,7 @@ public final class WebhookSender {
 
     private final URI url;
     private final String shownUrl;
-    private final Secret secret;
+    private final SigningKey secret;
     private final int maxAttempts;
     private final Duration initialBackoff;
     private final Duration maxBackoff;
@@ -77,7 +80,7 @@ public final class WebhookSender {
     }
 
     /** A sender to {@code url} (http or https) signing with {@code secret}; the rest has defaults. */
-    public static Builder to(URI url, Secret secret) {
+    public static Builder to(URI url, SigningKey secret) {
         return new Builder(url, secret);
     }
 
@@ -173,11 +176,11 @@ public final class WebhookSender {
         return status >= 400 && status < 500 && status != 408 && status != 429;
     }
 
-    /** The wait after the {@code failures}-th failed attempt. */
+    /** The wait after the {@code failures}-th failed attempt: the nominal wait, lengthened by the jitter. */
     Duration backoff(int failures, Optional<Duration> retryAfter) {
         double nominal = initialBackoff.toNanos() * Math.pow(2, failures - 1);
         double capped = Math.min(nominal, maxBackoff.toNanos());
-        Duration wait = Duration.ofNanos((long) (capped * (1 - jitter * random.getAsDouble())));
+        Duration wait = Duration.ofNanos((long) (capped * (1 + jitter * random.getAsDouble())));
         if (retryAfter.isPresent()) {
             Duration asked = retryAfter.get().compareTo(maxBackoff) > 0 ? maxBackoff : retryAfter.get();
             wait = asked.compareTo(wait) > 0 ? asked : wait;
@@ -239,7 +242,7 @@ public final class WebhookSender {
     /** Settings of a {@link WebhookSender}; every one but the URL and the key has a default. */
     public static final class Builder {
         private final URI url;
-        private final Secret secret;
+        private final SigningKey secret;
         private int maxAttempts = 6;
         private Duration initialBackoff = Duration.ofSeconds(1);
         private Duration maxBackoff = Duration.ofSeconds(60);
@@ -251,7 +254,7 @@ public final class WebhookSender {
         private DeliveryLog deliveryLog = DeliveryLog.none();
         private HttpClient client;
 
-        private Builder(URI url, Secret secret) {
+        private Builder(URI url, SigningKey secret) {
             if (url == null || url.getHost() == null
                     || !("http".equalsIgnoreCase(url.getScheme()) || "https".equalsIgnoreCase(url.getScheme()))) {
                 throw new IllegalArgumentException("webhook url must be an absolute http or https URL with a host, got "
@@ -280,9 +283,12 @@ public final class WebhookSender {
             return this;
         }
 
-        /** The largest share by which a wait may be shortened at random, in [0, 1] (default 0.5). */
+        /**
+         * The largest share by which a wait may be lengthened at random, in [0, 1] (default 0.5): a
+         * wait lies between its nominal length and that length times (1 + share), never below it.
+         */
         public Builder jitter(double share) {
-            require(share >= 0 && share <= 1, "jitter must lie between 0 and 1, got " + share);
+            Probabilities.requireClosed(share, "jitter");
             this.jitter = share;
             return this;
         }

@@ -54,7 +54,7 @@ public final class WebhookSignature {
     }
 
     /** The header value {@code v1,<base64 HMAC-SHA256>} for one delivery attempt. */
-    public static String sign(Secret secret, String id, long timestamp, byte[] body) {
+    public static String sign(SigningKey secret, String id, long timestamp, byte[] body) {
         return VERSION + "," + Base64.getEncoder().encodeToString(mac(secret, id, Long.toString(timestamp), body));
     }
 
@@ -66,7 +66,7 @@ public final class WebhookSignature {
      * @param now the receiver's clock
      * @param tolerance how far the timestamp may lie from {@code now}, either way
      */
-    public static Verification verify(Secret secret, Map<String, List<String>> headers, byte[] body, Instant now,
+    public static Verification verify(SigningKey secret, Map<String, List<String>> headers, byte[] body, Instant now,
                                       Duration tolerance) {
         String id = header(headers, ID);
         String timestamp = header(headers, TIMESTAMP);
@@ -102,7 +102,7 @@ public final class WebhookSignature {
         return match ? Verification.VALID : Verification.NO_MATCHING_SIGNATURE;
     }
 
-    private static byte[] mac(Secret secret, String id, String timestamp, byte[] body) {
+    private static byte[] mac(SigningKey secret, String id, String timestamp, byte[] body) {
         try {
             Mac mac = Mac.getInstance(ALGORITHM);
             mac.init(new SecretKeySpec(secret.key(), ALGORITHM));

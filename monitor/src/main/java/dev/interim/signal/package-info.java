@@ -6,6 +6,6 @@
  *
  * <p>Depends on the experiment layer, never the other way round. Time and waiting are injected
  * ({@link java.time.Clock}, {@link dev.interim.signal.Sleeper}); signing keys live in
- * {@link dev.interim.signal.Secret}, which never prints.
+ * {@link dev.interim.signal.SigningKey}, which never prints.
  */
 package dev.interim.signal;

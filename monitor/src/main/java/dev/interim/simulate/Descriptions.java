@@ -2,6 +2,7 @@ package dev.interim.simulate;
 
 import dev.interim.experiment.Horizon;
 import dev.interim.experiment.MetricDefinition;
+import dev.interim.text.Numbers;
 import java.util.Locale;
 
 /** The words the reports use for a comparison's design. */
@@ -35,8 +36,8 @@ final class Descriptions {
         String sides = c.alternative() == dev.interim.stats.Alternative.TWO_SIDED ? "two-sided"
                 : "one-sided (" + alternative(c) + ")";
         String futility = c.design().futility() == null ? "" : ", non-binding futility " + futility(c);
-        String alpha = "alpha " + Numbers.given(c.alpha())
-                + (c.treatments() > 1 ? " (" + Numbers.given(c.metric().alpha()) + " over " + c.treatments() + " treatments)" : "");
+        String alpha = "alpha " + Numbers.plain(c.alpha())
+                + (c.treatments() > 1 ? " (" + Numbers.plain(c.metric().alpha()) + " over " + c.treatments() + " treatments)" : "");
         return sides + ", " + c.design().efficacyLabel() + " spending" + futility + ", " + alpha;
     }
 
@@ -48,9 +49,9 @@ final class Descriptions {
         }
         Horizon.Powered p = (Horizon.Powered) m.horizon();
         String effect = p.scale() == Horizon.Scale.RELATIVE
-                ? "relative effect " + Numbers.given(p.effect()) + " (a share of control's level)"
-                : "effect " + Numbers.given(p.effect());
-        return "power " + Numbers.given(p.power()) + " for " + effect + " ("
+                ? "relative effect " + Numbers.plain(p.effect()) + " (a share of control's level)"
+                : "effect " + Numbers.plain(p.effect());
+        return "power " + Numbers.plain(p.power()) + " for " + effect + " ("
                 + p.plannedLooks() + " planned looks), i.e. drift " + Numbers.fixed(p.effect() * c.driftPerUnit(), 3);
     }
 

@@ -1,5 +1,6 @@
 package dev.interim.simulate;
 
+import dev.interim.text.UserText;
 import java.util.Locale;
 
 /** The units of the effects given on the command line; every effect is treatment − control. */
@@ -32,6 +33,6 @@ public enum EffectUnit {
                 return u;
             }
         }
-        throw new IllegalArgumentException("unknown effect unit '" + text + "': use drift or metric");
+        throw new IllegalArgumentException("unknown effect unit " + UserText.quoted(text) + ": use drift or metric");
     }
 }

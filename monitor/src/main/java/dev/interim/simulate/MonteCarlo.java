@@ -1,5 +1,6 @@
 package dev.interim.simulate;
 
+import dev.interim.experiment.Decision;
 import dev.interim.experiment.Worse;
 import dev.interim.sequential.Look;
 import java.util.ArrayList;
@@ -40,7 +41,7 @@ final class MonteCarlo {
     private final int looks;
 
     /** One comparison under one drift: what a run needs in its inner loop. */
-    private record Path(double drift, Look[] looks, boolean higherIsWorse) {}
+    private record Path(double drift, Look[] looks, Worse worse) {}
 
     /**
      * @param comparisons the comparisons, all at the same information fractions
@@ -66,9 +67,8 @@ final class MonteCarlo {
             if (!Arrays.equals(comparison.fractions(), fractions)) {
                 throw new IllegalArgumentException("every comparison of one simulation must look at the same fractions");
             }
-            boolean higherIsWorse = comparison.metric().worse() == Worse.HIGHER;
             for (SimulatedEffect e : effects.get(c)) {
-                all.add(new Path(e.drift(), comparison.looks(), higherIsWorse));
+                all.add(new Path(e.drift(), comparison.looks(), comparison.metric().worse()));
             }
         }
         paths = all.toArray(Path[]::new);
@@ -167,7 +167,7 @@ final class MonteCarlo {
                 }
                 score += path.drift * step[k] + stepRoot[k] * draws[k];
                 double z = score * inverseRoot[k];
-                int stop = decide(path.looks[k], z, path.higherIsWorse);
+                int stop = STOP_OF[Decision.at(path.looks[k], z, path.worse).ordinal()];
                 if (stop >= 0) {
                     counts[p].record(stop, k);
                     break;
@@ -176,15 +176,13 @@ final class MonteCarlo {
         }
     }
 
-    /** The decision rule of the daemon's {@code Comparison}: a stop's ordinal, or −1 to continue. */
-    static int decide(Look look, double z, boolean higherIsWorse) {
-        if (look.rejects(z)) {
-            boolean harmful = higherIsWorse ? z > 0 : z < 0;
-            return (harmful ? Stop.HARM : Stop.BENEFIT).ordinal();
+    /** A decision's {@link Stop} ordinal, or −1 for continue (the rule itself is {@link Decision#at}). */
+    private static final int[] STOP_OF = new int[Decision.values().length];
+
+    static {
+        java.util.Arrays.fill(STOP_OF, -1);
+        for (Stop stop : Stop.values()) {
+            STOP_OF[stop.decision().ordinal()] = stop.ordinal();
         }
-        if (look.futile(z)) {
-            return Stop.FUTILITY.ordinal();
-        }
-        return look.last() ? Stop.COMPLETE.ordinal() : -1;
     }
 }

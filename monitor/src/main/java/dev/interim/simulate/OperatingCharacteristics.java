@@ -1,5 +1,6 @@
 package dev.interim.simulate;
 
+import dev.interim.stats.Probabilities;
 import java.util.ArrayList;
 import java.util.EnumMap;
 import java.util.List;
@@ -134,9 +135,7 @@ public record OperatingCharacteristics(double[] fractions, long[][] counts) {
 
     /** The p-quantile of the stopping look, 0 &lt; p &lt; 1, with its 95% Monte Carlo interval. */
     public LookQuantile quantile(double p) {
-        if (!(p > 0 && p < 1)) {
-            throw new IllegalArgumentException("a quantile's probability must lie strictly between 0 and 1, got " + p);
-        }
+        Probabilities.requireOpen(p, "a quantile's probability");
         long n = runs();
         double spread = Z_95 * Math.sqrt(n * p * (1 - p));
         long rank = clamp((long) Math.ceil(n * p), n);

@@ -1,7 +1,9 @@
 package dev.interim.simulate;
 
+import static dev.interim.text.Markup.escape;
+
+import dev.interim.text.Numbers;
 import java.util.List;
-import java.util.Locale;
 
 /**
  * The report as an SVG image, drawn here without a chart library: for each comparison, on the left
@@ -122,7 +124,7 @@ public final class ReportChart {
             double t = i / 4.0;
             double x = LEFT_X + t * LEFT_WIDTH;
             line(s, "grid", x, top, x, top + PANEL_HEIGHT);
-            text(s, "tick", x, top + PANEL_HEIGHT + 14, "middle", Numbers.given(t));
+            text(s, "tick", x, top + PANEL_HEIGHT + 14, "middle", Numbers.plain(t));
             double p = yMax * i / 4.0;
             double y = top + PANEL_HEIGHT - p / yMax * PANEL_HEIGHT;
             line(s, "grid", LEFT_X, y, LEFT_X + LEFT_WIDTH, y);
@@ -145,7 +147,7 @@ public final class ReportChart {
             }
             points.append(' ').append(num(LEFT_X + LEFT_WIDTH)).append(',').append(num(base));
             s.append("<polyline class=\"series effect\" clip-path=\"url(#").append(clip).append(")\" data-drift=\"")
-                    .append(Numbers.given(effects.get(e).effect().drift())).append("\" stroke=\"").append(color(e))
+                    .append(Numbers.plain(effects.get(e).effect().drift())).append("\" stroke=\"").append(color(e))
                     .append("\" points=\"").append(points).append("\"/>\n");
         }
         legend(s, effects, LEFT_X, top + PANEL_HEIGHT + 50);
@@ -185,7 +187,7 @@ public final class ReportChart {
             double p = i / 4.0;
             double y = top + PANEL_HEIGHT - p * PANEL_HEIGHT;
             line(s, "grid", RIGHT_X, y, RIGHT_X + RIGHT_WIDTH, y);
-            text(s, "tick", RIGHT_X - 6, y + 4, "end", Numbers.given(p));
+            text(s, "tick", RIGHT_X - 6, y + 4, "end", Numbers.plain(p));
         }
         double labelled = Double.NEGATIVE_INFINITY;
         for (SimulationReport.EffectResult e : effects) {
@@ -200,7 +202,7 @@ public final class ReportChart {
         double alpha = result.comparison().alpha();
         double alphaY = top + PANEL_HEIGHT - alpha * PANEL_HEIGHT;
         line(s, "alpha-level", RIGHT_X, alphaY, RIGHT_X + RIGHT_WIDTH, alphaY);
-        text(s, "note", RIGHT_X + RIGHT_WIDTH - 4, alphaY - 4, "end", "alpha " + Numbers.given(alpha));
+        text(s, "note", RIGHT_X + RIGHT_WIDTH - 4, alphaY - 4, "end", "alpha " + Numbers.plain(alpha));
         StringBuilder reject = new StringBuilder();
         StringBuilder expected = new StringBuilder();
         StringBuilder marks = new StringBuilder();
@@ -305,22 +307,8 @@ public final class ReportChart {
         return PALETTE[index % PALETTE.length];
     }
 
+    /** A coordinate with two decimals, trailing zeros dropped. */
     private static String num(double x) {
-        return String.format(Locale.ROOT, "%.2f", x);
-    }
-
-    static String escape(String text) {
-        StringBuilder s = new StringBuilder(text.length());
-        for (char ch : text.toCharArray()) {
-            switch (ch) {
-                case '&' -> s.append("&amp;");
-                case '<' -> s.append("&lt;");
-                case '>' -> s.append("&gt;");
-                case '"' -> s.append("&quot;");
-                case '\'' -> s.append("&apos;");
-                default -> s.append(ch);
-            }
-        }
-        return s.toString();
+        return Numbers.rounded(x, 2).toPlainString();
     }
 }

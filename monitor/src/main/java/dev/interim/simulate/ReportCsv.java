@@ -1,5 +1,6 @@
 package dev.interim.simulate;
 
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.util.ArrayList;
 import java.util.List;
@@ -51,9 +52,9 @@ final class ReportCsv {
         RecursionCharacteristics exact = e.recursion();
         List<String> r = new ArrayList<>(List.of(c.experiment(), c.arm(), c.metric().name(), Descriptions.role(c),
                 Descriptions.worse(c), Descriptions.alternative(c), c.design().efficacyLabel(), Descriptions.futility(c),
-                Numbers.given(c.alpha()), String.valueOf(c.lookCount()), String.valueOf(report.runs()),
+                Numbers.plain(c.alpha()), String.valueOf(c.lookCount()), String.valueOf(report.runs()),
                 String.valueOf(report.stream()), Numbers.rounded(e.effect().drift(), 6).toPlainString(),
-                e.effect().inMetricUnits() == null ? "" : Numbers.significant(e.effect().inMetricUnits(), 6),
+                e.effect().inMetricUnits() == null ? "" : Numbers.cell(e.effect().inMetricUnits(), 6),
                 e.effect().direction()));
         r.addAll(estimate(oc.rejection(), exact == null ? Double.NaN : exact.rejection()));
         Map<Stop, Estimate> p = oc.probabilities();
@@ -61,9 +62,9 @@ final class ReportCsv {
             r.addAll(estimate(p.get(s), exact == null ? Double.NaN : exact.probabilities().get(s)));
         }
         r.addAll(estimate(oc.expectedFraction(), exact == null ? Double.NaN : exact.expectedFraction()));
-        r.add(Numbers.significant(oc.expectedFraction().value(), 6));
-        r.add(Numbers.significant(oc.expectedLook().value(), 6));
-        r.add(Numbers.significant(oc.expectedLook().standardError(), 6));
+        r.add(Numbers.cell(oc.expectedFraction().value(), 6));
+        r.add(Numbers.cell(oc.expectedLook().value(), 6));
+        r.add(Numbers.cell(oc.expectedLook().standardError(), 6));
         for (LookQuantile q : oc.quantiles()) {
             r.addAll(List.of(String.valueOf(q.look()), String.valueOf(q.low()), String.valueOf(q.high())));
         }
@@ -76,7 +77,7 @@ final class ReportCsv {
     }
 
     private static List<String> estimate(Estimate e, double recursion) {
-        return List.of(Numbers.significant(e.value(), 6), Numbers.significant(e.standardError(), 6),
-                Numbers.significant(recursion, 6));
+        return List.of(Numbers.cell(e.value(), 6), Numbers.cell(e.standardError(), 6),
+                Numbers.cell(recursion, 6));
     }
 }

@@ -1,5 +1,6 @@
 package dev.interim.simulate;
 
+import dev.interim.text.UserText;
 import java.io.PrintWriter;
 import java.util.Locale;
 
@@ -18,7 +19,7 @@ public enum ReportFormat {
             case "table" -> TABLE;
             case "csv" -> CSV;
             case "json" -> JSON;
-            default -> throw new IllegalArgumentException("unknown --format '" + text + "': use table, csv or json");
+            default -> throw new IllegalArgumentException("unknown --format " + UserText.quoted(text) + ": use table, csv or json");
         };
     }
 

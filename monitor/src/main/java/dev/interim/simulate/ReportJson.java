@@ -8,6 +8,7 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.interim.experiment.Horizon;
 import dev.interim.sequential.Look;
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.io.UncheckedIOException;
 import java.math.BigDecimal;
@@ -75,8 +76,8 @@ final class ReportJson {
         } else {
             design.put("futility", Descriptions.futility(c));
         }
-        design.put("alpha", new BigDecimal(Numbers.given(c.alpha())));
-        design.put("metric_alpha", new BigDecimal(Numbers.given(c.metric().alpha())));
+        design.put("alpha", Numbers.given(c.alpha()));
+        design.put("metric_alpha", Numbers.given(c.metric().alpha()));
         design.put("treatments", c.treatments());
         ObjectNode horizon = node.putObject("horizon");
         if (c.metric().horizon() instanceof Horizon.MaxPerArm max) {
@@ -84,8 +85,8 @@ final class ReportJson {
             horizon.putNull("drift_per_unit");
         } else {
             Horizon.Powered p = (Horizon.Powered) c.metric().horizon();
-            horizon.put("power", new BigDecimal(Numbers.given(p.power())));
-            horizon.put("effect", new BigDecimal(Numbers.given(p.effect())));
+            horizon.put("power", Numbers.given(p.power()));
+            horizon.put("effect", Numbers.given(p.effect()));
             horizon.put("planned_looks", p.plannedLooks());
             horizon.put("drift_per_unit", number(c.driftPerUnit()));
         }
@@ -172,6 +173,6 @@ final class ReportJson {
     }
 
     private static BigDecimal number(double x) {
-        return new BigDecimal(Numbers.significant(x, DIGITS));
+        return Numbers.significantDecimal(x, DIGITS);
     }
 }

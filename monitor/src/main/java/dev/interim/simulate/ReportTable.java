@@ -1,5 +1,6 @@
 package dev.interim.simulate;
 
+import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.util.List;
 import java.util.Map;
@@ -20,7 +21,7 @@ final class ReportTable {
         double[] t = report.fractions();
         out.println("Simulated " + report.runs() + " runs per effect (stream " + report.stream() + ") at " + t.length
                 + (report.equallySpaced() ? " equally spaced looks" : " looks") + ", information fractions "
-                + Numbers.given(t[0]) + (t.length > 1 ? " to " + Numbers.given(t[t.length - 1]) : "") + ".");
+                + Numbers.plain(t[0]) + (t.length > 1 ? " to " + Numbers.plain(t[t.length - 1]) : "") + ".");
         for (SimulationReport.ComparisonResult result : report.comparisons()) {
             out.println();
             comparison(result, out);
@@ -44,7 +45,7 @@ final class ReportTable {
             Map<Stop, Estimate> p = oc.probabilities();
             decisions.row(Descriptions.effect(e.effect()), Numbers.fixed(e.effect().drift(), 3),
                     Numbers.fixed(oc.rejection().value(), 4), Numbers.fixed(oc.rejection().standardError(), 4),
-                    e.recursion() == null ? "-" : Numbers.fixed(e.recursion().rejection(), 4),
+                    e.recursion() == null ? Numbers.NONE : Numbers.fixed(e.recursion().rejection(), 4),
                     Numbers.fixed(p.get(Stop.HARM).value(), 4), Numbers.fixed(p.get(Stop.BENEFIT).value(), 4),
                     Numbers.fixed(p.get(Stop.FUTILITY).value(), 4), Numbers.fixed(p.get(Stop.COMPLETE).value(), 4));
         }
@@ -59,7 +60,7 @@ final class ReportTable {
             LookQuantile median = q.get(2);
             stopping.row(Descriptions.effect(e.effect()),
                     Numbers.fixed(oc.expectedFraction().value(), 3), Numbers.fixed(oc.expectedFraction().standardError(), 4),
-                    e.recursion() == null ? "-" : Numbers.fixed(e.recursion().expectedFraction(), 3),
+                    e.recursion() == null ? Numbers.NONE : Numbers.fixed(e.recursion().expectedFraction(), 3),
                     Numbers.fixed(oc.expectedLook().value(), 2), Numbers.fixed(oc.expectedLook().standardError(), 2),
                     String.valueOf(q.get(0).look()), String.valueOf(q.get(1).look()),
                     median.look() + " (" + median.low() + "-" + median.high() + ")",

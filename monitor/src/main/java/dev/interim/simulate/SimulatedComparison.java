@@ -72,7 +72,7 @@ public record SimulatedComparison(String experiment, String arm, int treatments,
             SequentialMonitor looking = design.monitor();
             Look[] looks = Arrays.stream(fractions).mapToObj(looking::lookAt).toArray(Look[]::new);
             all.add(new SimulatedComparison(experiment.id(), arm, experiment.treatments().size(), metric, design,
-                    fractions, looks, driftPerUnit(design, metric)));
+                    fractions, looks, driftPerUnit(comparison)));
         }
         return all;
     }
@@ -92,10 +92,9 @@ public record SimulatedComparison(String experiment, String arm, int treatments,
      * effect δ is a share of control's level, and so are effects "in the metric's units" here: the
      * drift is proportional to the relative effect whatever that level.
      */
-    private static double driftPerUnit(GroupSequentialDesign design, MetricDefinition metric) {
-        if (metric.horizon() instanceof Horizon.Powered p) {
-            double drift = Planning.driftForPower(design, Fractions.equallySpaced(p.plannedLooks()), p.power());
-            return drift / Math.abs(p.effect());
+    private static double driftPerUnit(Comparison comparison) {
+        if (comparison.metric().horizon() instanceof Horizon.Powered p) {
+            return comparison.plannedDrift() / Math.abs(p.effect());
         }
         return Double.NaN;
     }

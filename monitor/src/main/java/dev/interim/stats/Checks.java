@@ -6,13 +6,6 @@ final class Checks {
     private Checks() {
     }
 
-    static double openUnitInterval(String name, double value) {
-        if (!(value > 0.0 && value < 1.0)) {
-            throw new IllegalArgumentException(name + " must be in the open interval (0, 1), was " + value);
-        }
-        return value;
-    }
-
     static double finite(String name, double value) {
         if (!Double.isFinite(value)) {
             throw new IllegalArgumentException(name + " must be a finite number, was " + value);

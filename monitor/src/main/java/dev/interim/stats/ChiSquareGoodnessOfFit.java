@@ -23,9 +23,7 @@ public record ChiSquareGoodnessOfFit(double statistic, int degreesOfFreedom, dou
         if (degreesOfFreedom < 1) {
             throw new IllegalArgumentException("degreesOfFreedom must be >= 1, was " + degreesOfFreedom);
         }
-        if (!(pValue >= 0.0 && pValue <= 1.0)) {
-            throw new IllegalArgumentException("pValue must be in [0, 1], was " + pValue);
-        }
+        Probabilities.requireClosed(pValue, "pValue");
     }
 
     /**
@@ -70,7 +68,7 @@ public record ChiSquareGoodnessOfFit(double statistic, int degreesOfFreedom, dou
      * @throws IllegalArgumentException unless {@code 0 < alpha < 1}
      */
     public boolean reject(double alpha) {
-        Checks.openUnitInterval("alpha", alpha);
+        Probabilities.requireOpen(alpha, "alpha");
         return pValue <= alpha;
     }
 }

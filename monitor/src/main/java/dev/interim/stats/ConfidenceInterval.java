@@ -12,7 +12,7 @@ package dev.interim.stats;
 public record ConfidenceInterval(double lower, double upper, double level) {
 
     public ConfidenceInterval {
-        Checks.openUnitInterval("level", level);
+        Probabilities.requireOpen(level, "level");
         if (Double.isNaN(lower) || Double.isNaN(upper) || lower > upper) {
             throw new IllegalArgumentException(
                     "a confidence interval needs lower <= upper, neither NaN; was [" + lower + ", " + upper + "]");

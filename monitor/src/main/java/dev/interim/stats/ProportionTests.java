@@ -70,7 +70,7 @@ public final class ProportionTests {
         String test = "one-proportion z";
         Checks.notNull("sample", sample);
         Checks.notNull("alternative", alternative);
-        Checks.openUnitInterval("p0", p0);
+        Probabilities.requireOpen(p0, "p0");
         Checks.atLeast(test, "trials", sample.trials(), 1);
         double rate = sample.rate();
         double nullSe = Math.sqrt(p0 * (1 - p0) / sample.trials());

@@ -33,9 +33,7 @@ public record TestResult(String name, double statistic, double degreesOfFreedom,
             throw new IllegalArgumentException(
                     "degreesOfFreedom must be > 0 (or +Infinity for a z test), was " + degreesOfFreedom);
         }
-        if (!(pValue >= 0.0 && pValue <= 1.0)) {
-            throw new IllegalArgumentException("pValue must be in [0, 1], was " + pValue);
-        }
+        Probabilities.requireClosed(pValue, "pValue");
         Checks.finite("estimate", estimate);
         if (!(standardError >= 0.0 && standardError < Double.POSITIVE_INFINITY)) {
             throw new IllegalArgumentException("standardError must be finite and >= 0, was " + standardError);
@@ -61,7 +59,7 @@ public record TestResult(String name, double statistic, double degreesOfFreedom,
      * @throws IllegalArgumentException unless {@code 0 < alpha < 1}
      */
     public boolean reject(double alpha) {
-        Checks.openUnitInterval("alpha", alpha);
+        Probabilities.requireOpen(alpha, "alpha");
         return pValue <= alpha;
     }
 
@@ -77,7 +75,7 @@ public record TestResult(String name, double statistic, double degreesOfFreedom,
      * @throws IllegalArgumentException unless {@code 0 < level < 1}
      */
     public ConfidenceInterval confidenceInterval(double level) {
-        Checks.openUnitInterval("level", level);
+        Probabilities.requireOpen(level, "level");
         ContinuousDistribution reference = referenceDistribution(degreesOfFreedom);
         return switch (alternative) {
             case TWO_SIDED -> {

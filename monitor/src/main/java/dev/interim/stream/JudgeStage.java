@@ -1,10 +1,12 @@
 package dev.interim.stream;
 
+import dev.interim.experiment.Acknowledgement;
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.ExperimentView;
+import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
 import dev.interim.experiment.Tally;
@@ -21,6 +23,7 @@ import java.util.HashSet;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
+import java.util.UUID;
 import java.util.Queue;
 import java.util.concurrent.CompletableFuture;
 import java.util.concurrent.ConcurrentLinkedQueue;
@@ -57,7 +60,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final Catalog catalog;
     private final Clock clock;
     private final StageEvents events;
-    private final Function<DecisionRecord, byte[]> decisionJson;
+    private final DecisionWriter writer;
     private final String member;
     private volatile boolean leaveGroupOnClose;
     private volatile boolean assigned;
@@ -68,12 +71,20 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
     private final Map<String, ExperimentView> views = new ConcurrentHashMap<>();
     private final Queue<Command> commands = new ConcurrentLinkedQueue<>();
+    /** experiment → what operators had set as last committed (an experiment missing here is written at the next commit). */
+    private final Map<String, ExperimentMonitor.OperatorState> persisted = new HashMap<>();
+    /**
+     * Tallies partitions (by number) being re-read after an assignment → the end offset to reach: their
+     * experiments do not look before the partials are complete, so a first look after a restart never
+     * sees a part of the data (a sample ratio off, a hold nobody set).
+     */
+    private final Map<Integer, Long> catchingUp = new HashMap<>();
     private KafkaConsumer<byte[], byte[]> consumer;
     private KafkaProducer<byte[], byte[]> producer;
 
     public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
-                      Function<DecisionRecord, byte[]> decisionJson) {
-        this(settings, catalog, clock, events, decisionJson, null);
+                      DecisionWriter writer) {
+        this(settings, catalog, clock, events, writer, null);
     }
 
     /**
@@ -81,12 +92,12 @@ public final class JudgeStage implements Runnable, AutoCloseable {
      *               stable across restarts of the same daemon; null for a dynamic member
      */
     public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
-                      Function<DecisionRecord, byte[]> decisionJson, String member) {
+                      DecisionWriter writer, String member) {
         this.settings = settings;
         this.catalog = catalog;
         this.clock = clock;
         this.events = events;
-        this.decisionJson = decisionJson;
+        this.writer = writer;
         this.member = member;
     }
 
@@ -109,34 +120,41 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     }
 
     /** An operator's action on an owned experiment, run on the judge's thread and committed like a look. */
-    private record Command(String experiment, Function<ExperimentMonitor, List<DecisionRecord>> action,
+    private record Command(String experiment, Function<ExperimentMonitor, Outcome> action,
                            CompletableFuture<List<DecisionRecord>> done) {}
+
+    /** What an operator's action produced: decision records, or an acknowledgement. */
+    private record Outcome(List<DecisionRecord> records, Acknowledgement acknowledgement) {
+        static Outcome of(List<DecisionRecord> records) {
+            return new Outcome(records, null);
+        }
+    }
 
     /** Holds every comparison of {@code experiment} not yet final; completes once the records are committed. */
     public CompletableFuture<List<DecisionRecord>> hold(String experiment, String reason) {
-        return submit(experiment, m -> m.hold(clock.instant(), reason));
+        return submit(experiment, m -> Outcome.of(m.hold(clock.instant(), reason)));
     }
 
     /** Stops {@code arm} for harm by an operator's decision; completes once the records are committed. */
     public CompletableFuture<List<DecisionRecord>> forceStop(String experiment, String arm, String reason) {
-        return submit(experiment, m -> m.forceStop(clock.instant(), arm, reason));
+        return submit(experiment, m -> Outcome.of(m.forceStop(clock.instant(), arm, reason)));
     }
 
-    /** Clears the experiment's paging signal; completes at the next commit. */
+    /**
+     * Clears the experiment's paging signal until a new stop; the acknowledgement is published and
+     * kept in the experiment's state. Completes once committed.
+     */
     public CompletableFuture<List<DecisionRecord>> acknowledge(String experiment) {
-        return submit(experiment, m -> {
-            m.acknowledge();
-            return List.of();
-        });
+        return submit(experiment, m -> new Outcome(List.of(), m.acknowledge(clock.instant()).orElse(null)));
     }
 
     /** Ends an operator's hold; completes once the records are committed. */
     public CompletableFuture<List<DecisionRecord>> resume(String experiment) {
-        return submit(experiment, m -> m.resume(clock.instant()));
+        return submit(experiment, m -> Outcome.of(m.resume(clock.instant())));
     }
 
     private CompletableFuture<List<DecisionRecord>> submit(String experiment,
-                                                           Function<ExperimentMonitor, List<DecisionRecord>> action) {
+                                                           Function<ExperimentMonitor, Outcome> action) {
         CompletableFuture<List<DecisionRecord>> done = new CompletableFuture<>();
         commands.add(new Command(experiment, action, done));
         return done;
@@ -161,6 +179,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                     apply(r.key(), r.value());
                     pending.put(new TopicPartition(r.topic(), r.partition()), new OffsetAndMetadata(r.offset() + 1));
                 }
+                caughtUp();
                 lookWhereDue();
             }
         } catch (WakeupException e) {
@@ -184,14 +203,21 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 .put(k.arm() + '\u001f' + k.metric(), StateCodec.partial(value));
     }
 
+    /** Ends the catching up of the tallies partitions whose re-reading has reached its end. */
+    private void caughtUp() {
+        catchingUp.entrySet().removeIf(e -> consumer.position(new TopicPartition(settings.talliesTopic(), e.getKey()))
+                >= e.getValue());
+    }
+
     /** Runs the operators' actions and the looks that are due, and commits what they produced. */
     private void lookWhereDue() {
         Instant now = clock.instant();
         List<DecisionRecord> decisions = new ArrayList<>();
+        List<Acknowledgement> acknowledgements = new ArrayList<>();
         List<LookReport> reports = new ArrayList<>();
         List<Duration> took = new ArrayList<>();
         List<Map<String, Map<String, Tally>>> given = new ArrayList<>();
-        Set<String> changed = new HashSet<>();          // experiment \u001f arm \u001f metric
+        Set<ComparisonKey> changed = new HashSet<>();
         List<Command> done = new ArrayList<>();
         List<List<DecisionRecord>> doneRecords = new ArrayList<>();
         for (Command c; (c = commands.poll()) != null; ) {
@@ -200,20 +226,23 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 c.done().completeExceptionally(new NotOwnedException(c.experiment()));
                 continue;
             }
-            List<DecisionRecord> records;
+            Outcome outcome;
             try {
-                records = c.action().apply(monitor);
+                outcome = c.action().apply(monitor);
             } catch (RuntimeException refused) {
                 c.done().completeExceptionally(refused);   // e.g. an unknown arm: the operator's mistake, not ours
                 continue;
             }
-            decisions.addAll(records);
-            records.forEach(d -> changed.add(d.experiment() + '\u001f' + d.arm() + '\u001f' + d.metric()));
+            decisions.addAll(outcome.records());
+            outcome.records().forEach(d -> changed.add(new ComparisonKey(d.experiment(), d.arm(), d.metric())));
+            if (outcome.acknowledgement() != null) {
+                acknowledgements.add(outcome.acknowledgement());
+            }
             done.add(c);
-            doneRecords.add(records);
+            doneRecords.add(outcome.records());
         }
         for (ExperimentMonitor monitor : owned.values()) {
-            if (!monitor.due(now)) {
+            if (!monitor.due(now) || catchingUp.containsKey(settings.stateFor(monitor.definition().id()))) {
                 continue;
             }
             long start = System.nanoTime();
@@ -224,13 +253,21 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             reports.add(report);
             decisions.addAll(report.decisions());
             for (LookResult r : report.results()) {
-                changed.add(report.experiment() + '\u001f' + r.arm() + '\u001f' + r.metric());
+                changed.add(new ComparisonKey(report.experiment(), r.arm(), r.metric()));
             }
             for (DecisionRecord d : report.decisions()) {
-                changed.add(d.experiment() + '\u001f' + d.arm() + '\u001f' + d.metric());
+                changed.add(new ComparisonKey(d.experiment(), d.arm(), d.metric()));
             }
         }
-        if (changed.isEmpty() && reports.isEmpty() && pending.isEmpty()) {
+        Map<String, ExperimentMonitor.OperatorState> operatorChanges = new HashMap<>();
+        owned.forEach((id, m) -> {
+            ExperimentMonitor.OperatorState state = m.operatorState();
+            if (!state.equals(persisted.get(id))) {
+                operatorChanges.put(id, state);
+            }
+        });
+        if (changed.isEmpty() && reports.isEmpty() && pending.isEmpty() && operatorChanges.isEmpty()
+                && acknowledgements.isEmpty()) {
             for (int i = 0; i < done.size(); i++) {
                 done.get(i).done().complete(doneRecords.get(i));
             }
@@ -240,13 +277,25 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             producer.beginTransaction();
             for (DecisionRecord d : decisions) {
                 producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
-                        decisionJson.apply(d)));
+                        writer.decision(d)));
             }
-            for (String key : changed) {
-                String[] k = key.split("\u001f", -1);
-                Comparison c = owned.get(k[0]).comparison(k[2], k[1]);
-                producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(k[0]),
-                        StateCodec.key(key), StateCodec.history(c.snapshot(), c.decision())));
+            for (Acknowledgement a : acknowledgements) {
+                producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(a.experiment()),
+                        writer.acknowledgement(a)));
+            }
+            operatorChanges.forEach((id, state) -> producer.send(new ProducerRecord<>(settings.looksTopic(),
+                    settings.stateFor(id), StateCodec.key(id), StateCodec.operatorState(state))));
+            for (ComparisonKey key : changed) {
+                Comparison c = owned.get(key.experiment()).comparison(key.metric(), key.arm());
+                List<LookPoint> points = c.points();
+                int size = points.size();
+                producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+                        StateCodec.key(key.text()), StateCodec.history(c.snapshot(), c.decision(), c.last(), size)));
+                for (int block = c.unsavedFrom() / StateCodec.POINTS_PER_BLOCK;
+                     block * StateCodec.POINTS_PER_BLOCK < size; block++) {
+                    producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+                            StateCodec.key(key.pointsKey(block)), StateCodec.points(points, block, size)));
+                }
             }
             if (!pending.isEmpty()) {
                 producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
@@ -267,8 +316,12 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             own(assigned);
             return;
         }
-        Set<String> experiments = new HashSet<>();
-        changed.forEach(k -> experiments.add(k.substring(0, k.indexOf('\u001f'))));
+        persisted.putAll(operatorChanges);
+        Set<String> experiments = new HashSet<>(operatorChanges.keySet());
+        for (ComparisonKey key : changed) {
+            experiments.add(key.experiment());
+            owned.get(key.experiment()).comparison(key.metric(), key.arm()).saved();
+        }
         reports.forEach(r -> experiments.add(r.experiment()));
         for (String id : experiments) {
             ExperimentMonitor m = owned.get(id);
@@ -284,6 +337,21 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         }
         if (!decisions.isEmpty()) {
             events.committed(decisions);
+        }
+    }
+
+    /**
+     * One comparison's place on the looks topic. Its state record's key is
+     * {@code experiment 0x1f arm 0x1f metric}; its blocks of look points add {@code 0x1f points 0x1f n};
+     * the experiment's own record (what operators set, the run) is keyed by the experiment id alone.
+     */
+    record ComparisonKey(String experiment, String arm, String metric) {
+        String text() {
+            return experiment + '\u001f' + arm + '\u001f' + metric;
+        }
+
+        String pointsKey(int block) {
+            return text() + '\u001f' + StateCodec.POINTS + '\u001f' + block;
         }
     }
 
@@ -353,31 +421,97 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         if (fresh.isEmpty()) {
             return;
         }
+        Restored restored = new Restored();
         StateReader.readAll(settings, settings.looksTopic(), numbers, (key, value) -> {
             String[] k = StateCodec.key(key).split("\u001f", -1);
             ExperimentMonitor monitor = owned.get(k[0]);
-            if (monitor != null && fresh.contains(monitor) && value != null && k.length == 3) {
-                StateCodec.History h = StateCodec.history(value);
-                try {
-                    Comparison c = monitor.comparison(k[2], k[1]);
-                    if (h.snapshot() != null) {
-                        c.restore(h.snapshot(), h.decision());
-                    } else {
-                        c.restore(h.fractions(), h.decision());
-                    }
-                } catch (IllegalArgumentException gone) {
-                    LOG.info("look history of {} / {} / {} no longer configured; ignored", k[0], k[1], k[2]);
-                }
+            if (monitor != null && fresh.contains(monitor)) {
+                restored.add(k, value);
             }
         });
-        // The partials are cumulative and compacted: re-read them from the beginning.
+        for (ExperimentMonitor m : fresh) {
+            restore(m, restored);
+        }
+        // The partials are cumulative and compacted: re-read them from the beginning, and look only
+        // once they are read to where they ended now.
         consumer.seekToBeginning(partitions);
+        consumer.endOffsets(partitions).forEach((tp, end) -> {
+            if (end != null && end > 0) {
+                catchingUp.put(tp.partition(), end);
+            }
+        });
         for (ExperimentMonitor m : fresh) {
             partials.remove(m.definition().id());
             views.put(m.definition().id(), m.view());
             events.owned(m);
         }
         LOG.info("judge owns {} experiment(s): {}", owned.size(), owned.keySet());
+    }
+
+    /** The records of the looks topic of the experiments being taken over, read in any order. */
+    private static final class Restored {
+        final Map<String, ExperimentMonitor.OperatorState> operators = new HashMap<>();
+        final Map<List<String>, byte[]> histories = new HashMap<>();
+        final Map<List<String>, Map<Integer, byte[]>> blocks = new HashMap<>();
+
+        void add(String[] k, byte[] value) {
+            if (k.length == 1) {
+                if (value == null) {
+                    operators.remove(k[0]);
+                } else {
+                    operators.put(k[0], StateCodec.operatorState(value));
+                }
+            } else if (k.length == 3) {
+                histories.put(List.of(k[0], k[1], k[2]), value);
+            } else if (k.length == 5 && StateCodec.POINTS.equals(k[3])) {
+                Map<Integer, byte[]> byBlock = blocks.computeIfAbsent(List.of(k[0], k[1], k[2]), x -> new HashMap<>());
+                byBlock.put(Integer.parseInt(k[4]), value);
+            }
+        }
+    }
+
+    /**
+     * Restores an experiment taken over: what operators set and its run (a new run when it has no state
+     * yet), then each comparison's state, last look and kept look points. Nothing is published.
+     */
+    private void restore(ExperimentMonitor monitor, Restored restored) {
+        String id = monitor.definition().id();
+        ExperimentMonitor.OperatorState operator = restored.operators.get(id);
+        if (operator != null) {
+            monitor.restore(operator);
+            persisted.put(id, operator);
+        } else {
+            monitor.restore(new ExperimentMonitor.OperatorState(UUID.randomUUID().toString(), null, false));
+            persisted.remove(id);   // written with the next commit, before any decision of this run leaves
+        }
+        restored.histories.forEach((k, value) -> {
+            if (!k.get(0).equals(id) || value == null) {
+                return;
+            }
+            StateCodec.History h = StateCodec.history(value, k.get(0), k.get(1), k.get(2));
+            try {
+                Comparison c = monitor.comparison(k.get(2), k.get(1));
+                if (h.snapshot() == null) {
+                    c.restore(h.fractions(), h.decision());
+                    return;
+                }
+                List<LookPoint> points = new ArrayList<>(h.points());
+                Map<Integer, byte[]> blocks = restored.blocks.getOrDefault(k, Map.of());
+                for (int block = 0; points.size() < h.points(); block++) {
+                    byte[] b = blocks.get(block);
+                    if (b == null) {
+                        LOG.warn("look history of {} / {} / {}: block {} of its points is missing; kept {} of {}",
+                                k.get(0), k.get(1), k.get(2), block, points.size(), h.points());
+                        break;
+                    }
+                    points.addAll(StateCodec.points(b));
+                }
+                c.restore(h.snapshot(), h.decision(), h.last(),
+                        points.size() > h.points() ? points.subList(0, h.points()) : points);
+            } catch (IllegalArgumentException gone) {
+                LOG.info("look history of {} / {} / {} no longer configured; ignored", k.get(0), k.get(1), k.get(2));
+            }
+        });
     }
 
     private void disown(Collection<TopicPartition> partitions) {
@@ -387,12 +521,14 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             boolean leaving = numbers.contains(settings.stateFor(m.definition().id()));
             if (leaving) {
                 partials.remove(m.definition().id());
+                persisted.remove(m.definition().id());
                 views.remove(m.definition().id());
                 events.disowned(m);
             }
             return leaving;
         });
         pending.keySet().removeIf(tp -> numbers.contains(tp.partition()));
+        catchingUp.keySet().removeIf(numbers::contains);
     }
 
     private final class Rebalance implements ConsumerRebalanceListener {

@@ -4,6 +4,12 @@ import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.interim.experiment.Decision;
+import dev.interim.experiment.Estimate;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.LookPoint;
+import dev.interim.experiment.LookResult;
+import dev.interim.stats.ConfidenceInterval;
+import java.time.Instant;
 import dev.interim.sequential.Look;
 import dev.interim.sequential.SequentialMonitor;
 import dev.interim.stats.Alternative;
@@ -362,12 +368,22 @@ final class StateCodec {
 
     /**
      * The state of one comparison: its decision and its sequential monitor's snapshot (version 2), or,
-     * in records of version 1, the fractions of every look, replayed on restore.
+     * in records of version 1, the fractions of every look, replayed on restore. From version 3 also
+     * the last look's result and how many look points are kept (the points themselves are in blocks
+     * of {@link #POINTS_PER_BLOCK}, each a record of its own: see {@link #points(List, int, int)}).
+     *
+     * @param last the last look's result, or null (none yet, or a record older than version 3)
+     * @param points how many look points the blocks hold for this state (0 before version 3)
      */
-    record History(List<Double> fractions, SequentialMonitor.Snapshot snapshot, Decision decision) {}
+    record History(List<Double> fractions, SequentialMonitor.Snapshot snapshot, Decision decision, LookResult last,
+                   int points) {}
 
     static byte[] history(SequentialMonitor.Snapshot s, Decision decision) {
-        ObjectNode n = JSON.createObjectNode().put("v", 2).put("decision", decision.name());
+        return history(s, decision, null, 0);
+    }
+
+    static byte[] history(SequentialMonitor.Snapshot s, Decision decision, LookResult lastResult, int points) {
+        ObjectNode n = JSON.createObjectNode().put("v", 3).put("decision", decision.name());
         n.put("alpha_spent", doubles(new double[] {s.alphaSpent(), s.betaSpent()}));
         n.put("null_state", doubles(s.nullState()));
         if (s.alternativeState() != null) {
@@ -376,33 +392,156 @@ final class StateCodec {
         Look l = s.last();
         if (l != null) {
             n.put("last_look", l.number()).put("last_alternative", l.alternative().name())
-                    .put("last_flags", (l.informationAdded() ? 1 : 0) + (l.last() ? 2 : 0))
-                    .put("last_values", doubles(new double[] {l.fraction(), l.upper(), l.lower(), l.alphaSpent(),
-                        l.alphaIncrement(), l.betaSpent()}));
+                    .put("last_flags", flags(l)).put("last_values", doubles(values(l)));
         }
+        if (lastResult != null) {
+            Look rl = lastResult.look();
+            Estimate e = lastResult.estimate();
+            ConfidenceInterval i = lastResult.interval();
+            ConfidenceInterval r = lastResult.relativeInterval();
+            ObjectNode o = n.putObject("last_result");
+            o.put("previous", lastResult.previous().name()).put("decision", lastResult.decision().name())
+                    .put("at", lastResult.at().toString())
+                    .put("look", rl.number()).put("alternative", rl.alternative().name()).put("flags", flags(rl))
+                    .put("look_values", doubles(values(rl)))
+                    .put("estimate", doubles(new double[] {e.effect(), e.standardError(), e.z(), e.degreesOfFreedom(),
+                        e.treatmentLevel(), e.controlLevel(), e.treatmentLevelError(), e.controlLevelError(),
+                        e.conservativeInformation()}))
+                    .put("interval", doubles(new double[] {i.lower(), i.upper(), i.level()}));
+            if (r != null) {
+                o.put("relative_interval", doubles(new double[] {r.lower(), r.upper(), r.level()}));
+            }
+        }
+        n.put("points", points);
         return write(n);
     }
 
-    static History history(byte[] bytes) {
+    /**
+     * Reads a comparison's state record; {@code experiment}, {@code arm} and {@code metric} come from
+     * its key (they name the last look's result).
+     */
+    static History history(byte[] bytes, String experiment, String arm, String metric) {
         JsonNode n = read(bytes);
         Decision decision = Decision.valueOf(n.path("decision").asText(Decision.CONTINUE.name()));
         if (n.path("v").asInt() < 2) {
             List<Double> fractions = new ArrayList<>();
             n.path("fractions").forEach(f -> fractions.add(f.asDouble()));
-            return new History(fractions, null, decision);
+            return new History(fractions, null, decision, null, 0);
         }
         double[] spent = doubles(n.path("alpha_spent").asText());
         Look last = null;
         if (n.has("last_look")) {
-            double[] v = doubles(n.path("last_values").asText());
-            int flags = n.path("last_flags").asInt();
-            last = new Look(n.path("last_look").asInt(), v[0], v[1], v[2], Alternative.valueOf(n.path("last_alternative").asText()),
-                    v[3], v[4], v[5], (flags & 1) != 0, (flags & 2) != 0);
+            last = look(n.path("last_look").asInt(), n.path("last_alternative").asText(), n.path("last_flags").asInt(),
+                    doubles(n.path("last_values").asText()));
         }
         SequentialMonitor.Snapshot snapshot = new SequentialMonitor.Snapshot(last, spent[0], spent[1],
                 doubles(n.path("null_state").asText()),
                 n.has("alternative_state") ? doubles(n.path("alternative_state").asText()) : null);
-        return new History(null, snapshot, decision);
+        LookResult result = null;
+        JsonNode o = n.path("last_result");
+        if (o.isObject()) {
+            Look rl = look(o.path("look").asInt(), o.path("alternative").asText(), o.path("flags").asInt(),
+                    doubles(o.path("look_values").asText()));
+            double[] e = doubles(o.path("estimate").asText());
+            double[] i = doubles(o.path("interval").asText());
+            ConfidenceInterval relative = null;
+            if (o.has("relative_interval")) {
+                double[] r = doubles(o.path("relative_interval").asText());
+                relative = new ConfidenceInterval(r[0], r[1], r[2]);
+            }
+            result = new LookResult(experiment, arm, metric, Decision.valueOf(o.path("previous").asText()),
+                    Decision.valueOf(o.path("decision").asText()), rl,
+                    new Estimate(e[0], e[1], e[2], e[3], e[4], e[5], e[6], e[7], e[8]),
+                    new ConfidenceInterval(i[0], i[1], i[2]), relative, Instant.parse(o.path("at").asText()));
+        }
+        return new History(null, snapshot, decision, result, n.path("points").asInt(0));
+    }
+
+    private static int flags(Look l) {
+        return (l.informationAdded() ? 1 : 0) + (l.last() ? 2 : 0);
+    }
+
+    private static double[] values(Look l) {
+        return new double[] {l.fraction(), l.upper(), l.lower(), l.alphaSpent(), l.alphaIncrement(), l.betaSpent()};
+    }
+
+    private static Look look(int number, String alternative, int flags, double[] v) {
+        boolean added = (flags & 1) != 0;
+        boolean last = (flags & 2) != 0;
+        Look.Stage stage = added ? (last ? Look.Stage.FINAL : Look.Stage.INTERIM)
+                : (last ? Look.Stage.AFTER_END : Look.Stage.NO_INFORMATION);
+        return new Look(number, v[0], v[1], v[2], Alternative.valueOf(alternative), v[3], v[4], v[5], stage);
+    }
+
+    /**
+     * Look points per record. A look rewrites only the block its point went into (at most 64 points,
+     * about 7 kB), so the history costs a bounded write per look however long it grows; the thinning
+     * of the oldest half (every ~1,000 looks) rewrites them all once.
+     */
+    static final int POINTS_PER_BLOCK = 64;
+    /** The key suffix of a block of look points: {@code experiment 0x1f arm 0x1f metric 0x1f points 0x1f n}. */
+    static final String POINTS = "points";
+    private static final int POINT_BYTES = 4 + 8 + 4 + 11 * 8 + 1;
+    private static final byte POINTS_VERSION = 1;
+
+    /** Block {@code block} of {@code points}: those at indices [64·block, 64·block + 64), as one binary record. */
+    static byte[] points(List<LookPoint> points, int block, int size) {
+        int from = block * POINTS_PER_BLOCK;
+        int to = Math.min(size, from + POINTS_PER_BLOCK);
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(1 + 4 + (to - from) * POINT_BYTES);
+        b.put(POINTS_VERSION).putInt(to - from);
+        for (int i = from; i < to; i++) {
+            LookPoint p = points.get(i);
+            b.putInt(p.look()).putLong(p.at().getEpochSecond()).putInt(p.at().getNano());
+            for (double v : new double[] {p.fraction(), p.statistic(), p.upper(), p.lower(), p.alphaSpent(), p.estimate(),
+                p.intervalLower(), p.intervalUpper(), p.relative(), p.relativeLower(), p.relativeUpper()}) {
+                b.putDouble(v);
+            }
+            b.put((byte) p.decision().ordinal());
+        }
+        return b.array();
+    }
+
+    static List<LookPoint> points(byte[] bytes) {
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.wrap(bytes);
+        if (b.get() != POINTS_VERSION) {
+            throw new IllegalArgumentException("a block of look points of an unknown version");
+        }
+        int n = b.getInt();
+        List<LookPoint> out = new ArrayList<>(n);
+        Decision[] decisions = Decision.values();
+        for (int i = 0; i < n; i++) {
+            int look = b.getInt();
+            Instant at = Instant.ofEpochSecond(b.getLong(), b.getInt());
+            double[] v = new double[11];
+            for (int j = 0; j < v.length; j++) {
+                v[j] = b.getDouble();
+            }
+            out.add(new LookPoint(look, at, v[0], v[1], v[2], v[3], v[4], v[5], v[6], v[7], decisions[b.get()], v[8], v[9],
+                    v[10]));
+        }
+        return out;
+    }
+
+    /**
+     * What operators set on an experiment, and its run: the record under the experiment id alone.
+     */
+    static byte[] operatorState(ExperimentMonitor.OperatorState s) {
+        ObjectNode n = JSON.createObjectNode().put("v", 1).put("run", s.run()).put("acknowledged", s.acknowledged());
+        if (s.hold() != null) {
+            n.put("hold", s.hold());
+        }
+        return write(n);
+    }
+
+    static ExperimentMonitor.OperatorState operatorState(byte[] bytes) {
+        JsonNode n = read(bytes);
+        String run = n.path("run").asText("");
+        if (run.isEmpty()) {
+            throw new IllegalArgumentException("an experiment's state record without its run");
+        }
+        return new ExperimentMonitor.OperatorState(run, n.hasNonNull("hold") ? n.path("hold").asText() : null,
+                n.path("acknowledged").asBoolean(false));
     }
 
     /** Doubles as base64 of their IEEE 754 bits: exact, infinities included, and compact. */

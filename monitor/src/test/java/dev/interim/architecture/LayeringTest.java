@@ -31,8 +31,16 @@ class LayeringTest {
                 .should().dependOnClassesThat().resideInAnyPackage(
                         "org.apache.kafka..", "java.net..", "com.sun.net.httpserver..", "javax.net..",
                         "java.io..", "java.nio..", "java.sql..", "picocli..", "com.fasterxml.jackson..",
-                        "io.micrometer..")
+                        "io.micrometer..", "org.eclipse.jetty..")
                 .because("the statistics must stay pure: no I/O, no transport, no serialisation")
+                .check(classes);
+    }
+
+    @Test
+    void jettyStaysInsideTheHttpEndpoint() {
+        noClasses().that().resideOutsideOfPackage("dev.interim.http..")
+                .should().dependOnClassesThat().resideInAnyPackage("org.eclipse.jetty..")
+                .because("routes, requests and answers are HttpEndpoint's own types: the server underneath can change")
                 .check(classes);
     }
 
@@ -51,12 +59,28 @@ class LayeringTest {
         noClasses().that().resideInAPackage("dev.interim.experiment..")
                 .should().dependOnClassesThat().resideInAnyPackage(
                         "org.apache.kafka..", "java.net..", "com.sun.net.httpserver..", "java.io..", "java.nio.file..",
-                        "picocli..", "com.fasterxml.jackson..", "io.micrometer..", "dev.interim.cli..", "dev.interim.config..")
+                        "picocli..", "com.fasterxml.jackson..", "io.micrometer..", "org.eclipse.jetty..", "dev.interim.cli..",
+                        "dev.interim.config..")
                 .orShould().callMethod(System.class, "currentTimeMillis")
                 .orShould().callMethod(System.class, "nanoTime")
                 .orShould().callMethod(java.time.Instant.class, "now")
                 .orShould().dependOnClassesThat().areAssignableTo(java.time.Clock.class)
                 .because("the decision state machine is pure; the daemon passes the time in")
+                .check(classes);
+    }
+
+    /**
+     * {@code text} is the lowest layer, usable from {@code stats} to the edges: number and markup
+     * text from the JDK's language, math and collection classes alone.
+     */
+    @Test
+    void theTextLayerIsPureAndBelowEverything() {
+        noClasses().that().resideInAPackage("dev.interim.text..")
+                .should().dependOnClassesThat().resideOutsideOfPackages("dev.interim.text..", "java.lang..", "java.math..",
+                        "java.util..")
+                .orShould().callMethod(System.class, "currentTimeMillis")
+                .orShould().callMethod(System.class, "nanoTime")
+                .because("every layer writes its numbers with it, so it may depend on none of them, nor on I/O or the clock")
                 .check(classes);
     }
 

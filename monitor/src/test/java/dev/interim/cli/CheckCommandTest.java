@@ -9,13 +9,15 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.Timeout;
 import org.junit.jupiter.api.io.TempDir;
 import picocli.CommandLine;
 
 /**
- * {@code interim check}: exit 0 and a summary for a valid file; exit 2 and one line naming the file,
- * the key and the rule for an invalid one. Expected values are read off config/interim.example.yaml;
- * the exit-code convention is the command line's (see {@link Interim}).
+ * {@code interim check}: exit 0 and a summary for a valid file; exit 2 and a line per problem naming
+ * the file, the key and the rule for an invalid one (every problem of the file, values first, then
+ * the secrets). Expected values are read off config/interim.example.yaml; the exit-code convention is
+ * the command line's (see {@link Interim}).
  */
 class CheckCommandTest {
     /** base64 of 32 bytes, in the Standard Webhooks form. */
@@ -252,5 +254,91 @@ class CheckCommandTest {
 
         assertThat(r.exit()).isEqualTo(2);
         assertThat(r.errLines()).singleElement().asString().contains("no such file");
+    }
+
+    // ---- every problem at once, and secrets never shown ----
+
+    private String exampleWith(String old, String replacement) throws IOException {
+        String yaml = Files.readString(example());
+        assertThat(yaml).contains(old);
+        return yaml.replace(old, replacement);
+    }
+
+    @Test
+    void aBadAlphaAndAMissingSecretAreBothNamedValuesFirst() throws IOException {
+        Path f = file(exampleWith("alpha: 0.01              # per metric", "alpha: 1.5 # per metric"));
+
+        Cli.Result r = check(Map.of("INTERIM_ADMIN_TOKEN", ADMIN_TOKEN), "--config", f.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.out()).isEmpty();
+        assertThat(r.errLines()).containsExactly(
+                "interim: " + f + ": experiments[0].metrics[0].alpha: alpha must lie strictly between 0 and 1, got 1.5",
+                "interim: " + f + ": webhook.signing_key_env: environment variable INTERIM_WEBHOOK_KEY is not set; "
+                        + "export it (it holds the signing key) before starting interim",
+                "interim: 2 problems in " + f + ", each on a line above; see 'interim check --help'");
+        assertThat(r.err()).doesNotContain(ADMIN_TOKEN);
+    }
+
+    @Test
+    void aSigningKeyWrittenAsTheVariableNameIsRefusedAndNeverPrinted() throws IOException {
+        Path f = file(exampleWith("signing_key_env: INTERIM_WEBHOOK_KEY", "signing_key_env: " + HOOK_KEY));
+
+        for (String[] options : new String[][] {{"--config", f.toString()}, {"--config", f.toString(), "--without-secrets"}}) {
+            Cli.Result r = check(ENV, options);
+
+            assertThat(r.exit()).isEqualTo(2);
+            assertThat(r.errLines()).singleElement().asString().startsWith("interim: " + f + ": webhook.signing_key_env: "
+                    + "expects the name of the environment variable holding the signing key, and the value given is "
+                    + "not a variable name (not shown: it may be the secret itself)");
+            assertThat(r.out() + r.err()).doesNotContain(HOOK_KEY, HOOK_KEY.substring("whsec_".length(), 24), ADMIN_TOKEN);
+        }
+    }
+
+    /**
+     * {@code run} refuses the same file before it starts anything, with the same lines: a token in
+     * admin_token_env and a bad value, both named, the token nowhere. (The environment of this process
+     * is not consulted for a name that is refused; the timeout only guards against a daemon started
+     * by mistake.)
+     */
+    @Test
+    @Timeout(60)
+    void runRefusesTheSameFileWithEveryProblemAndNoSecret() throws IOException {
+        String token = "c3f9a1e2b7d4a8f0c6e1b9d2a7f3c8e4b1d6a9f2c7e0b5d8";
+        Path f = file(exampleWith("admin_token_env: INTERIM_ADMIN_TOKEN", "admin_token_env: " + token)
+                .replace("alpha: 0.01              # per metric", "alpha: 1.5 # per metric"));
+
+        Cli.Result r = Cli.run("run", "--config", f.toString(), "--data-dir", dir.resolve("data").toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).hasSizeGreaterThanOrEqualTo(3);
+        assertThat(r.errLines().get(0)).startsWith("interim: " + f + ": http.admin_token_env: expects the name of the "
+                + "environment variable holding the admin token");
+        assertThat(r.errLines()).anySatisfy(l -> assertThat(l).contains("experiments[0].metrics[0].alpha: alpha must lie "
+                + "strictly between 0 and 1, got 1.5"));
+        assertThat(r.errLines().get(r.errLines().size() - 1)).contains("problems in " + f).endsWith("see 'interim run --help'");
+        assertThat(r.out() + r.err()).doesNotContain(token);
+        assertThat(dir.resolve("data")).doesNotExist();
+    }
+
+    @Test
+    void aFileOverTheLimitIsRefusedWithTheLimit() throws IOException {
+        Path f = file(Files.readString(example()) + "# " + "x".repeat(2 * 1024 * 1024) + "\n");
+
+        Cli.Result r = check(ENV, "--config", f.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString().startsWith("interim: " + f + ": is ")
+                .contains("a configuration file may hold at most 1 MiB (1048576 bytes)");
+    }
+
+    @Test
+    void invisibleCharactersNeverReachTheTerminal() throws IOException {
+        Path f = file(exampleWith("id: rate-card-engine-v2", "id: \"rate-card\\u202Eengine\\u200B\\u001B[2J\""));
+
+        Cli.Result r = check(ENV, "--config", f.toString());
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.err()).contains("'rate-card\\u202Eengine\\u200B\\u001B[2J'").doesNotContain("\u202E", "\u200B", "\u001B");
     }
 }

@@ -93,4 +93,23 @@ class InterimCommandTest {
         assertThat(err.toString()).isEqualTo("interim: alpha must lie strictly between 0 and 1, got 2.0; see 'interim plan --help'"
                 + System.lineSeparator());
     }
+
+    /**
+     * A value from the command line is quoted like a configuration value: cut at 80 characters with
+     * its length, invisible and steering characters escaped (dev.interim.text.UserText), so a bad
+     * argument cannot turn the error line into a screenful or reorder it on the terminal.
+     */
+    @Test
+    void aBadArgumentIsQuotedCutAndEscaped() {
+        String format = "x".repeat(5000) + "\u202E";
+        Cli.Result r = Cli.run("plan", "--alpha", "0.05", "--looks", "3", "--format", format);
+
+        assertThat(r.exit()).isEqualTo(2);
+        assertThat(r.errLines()).singleElement().asString()
+                .startsWith("interim: unknown --format '" + "x".repeat(80) + "…' (5001 characters): use ")
+                .hasSizeLessThan(300);
+        Cli.Result unknown = Cli.run("pl\u200Ban");
+        assertThat(unknown.exit()).isEqualTo(2);
+        assertThat(unknown.err()).contains("unknown command 'pl\\u200Ban'").doesNotContain("\u200B");
+    }
 }

@@ -17,7 +17,7 @@ import org.junit.jupiter.api.io.TempDir;
 import picocli.CommandLine;
 
 /**
- * {@code interim replay} on the invented Lantern rollout (test resources dev/interim/replay/): the
+ * {@code interim replay} on the invented Mossglint rollout (test resources dev/interim/replay/): the
  * timeline, the summary, the JSON lines, the progress line, and exit code 2 for bad input. What the
  * replay decides is checked in ReplayScenarioTest; here, what the command makes of it.
  */
@@ -35,8 +35,8 @@ class ReplayCommandTest {
         }
     }
 
-    private static final String CONFIG = resource("lantern.yaml").toString();
-    private static final String EVENTS = resource("lantern.ndjson").toString();
+    private static final String CONFIG = resource("mossglint.yaml").toString();
+    private static final String EVENTS = resource("mossglint.ndjson").toString();
 
     /** The real command line, with replay told whether stderr is a terminal. */
     private static Cli.Result replay(boolean terminal, String... options) {
@@ -73,14 +73,14 @@ class ReplayCommandTest {
         assertThat(r.exit()).isZero();
         List<String> lines = r.out().lines().toList();
         // The stop as ReplayScenarioTest finds it (one decision); its numbers are the summary's.
-        assertThat(lines.get(0)).matches("2031-03-04T\\d\\d:\\d\\d:07\\.315Z  lantern-uploads-2031-03  encoder-b  "
+        assertThat(lines.get(0)).matches("2031-03-04T\\d\\d:\\d\\d:07\\.315Z  mossglint-uploads-2031-03  encoder-b  "
                 + "upload-failures  stop-harm      look \\d+  fraction 0\\.\\d{3}  z \\d\\.\\d{3}  boundary \\d\\.\\d{3}");
         assertThat(r.out()).contains("Replay of " + EVENTS + ": 2,660 events in ")
                 .contains("  accepted  2,660\n", "  rejected  0\n", "decisions 1\n")
-                .contains("lantern-uploads-2031-03: 2,660 events from 2031-03-04T09:00:07.315Z; ")
+                .contains("mossglint-uploads-2031-03: 2,660 events from 2031-03-04T09:00:07.315Z; ")
                 .contains("exposures: current ", "sample ratio p = ");
         String stopRow = lines.stream().filter(l -> l.startsWith("  encoder-b  upload-failures")).findFirst().orElseThrow();
-        assertThat(stopRow).contains("guardrail", "stop-harm", ", inf) 97.5%");
+        assertThat(stopRow).contains("guardrail", "stop-harm", ", ∞) 97.5%");
         String look = lines.get(0).replaceAll(".*  look (\\d+)  .*", "$1");
         assertThat(stopRow.split("\\s+")[5]).isEqualTo(look);
         assertThat(lines.stream().filter(l -> l.startsWith("  encoder-")).count()).as("2 arms x 3 metrics").isEqualTo(6);
@@ -92,10 +92,10 @@ class ReplayCommandTest {
         Cli.Result r = replay(false, "--config", CONFIG, "--events", EVENTS, "--report-dir", dir.toString());
 
         assertThat(r.exit()).isZero();
-        java.nio.file.Path report = dir.resolve("report-lantern-uploads-2031-03.html");
+        java.nio.file.Path report = dir.resolve("report-mossglint-uploads-2031-03.html");
         assertThat(r.err()).contains("wrote " + report);
         String html = java.nio.file.Files.readString(report);
-        assertThat(html).contains("lantern-uploads-2031-03", "encoder-b", "<svg");
+        assertThat(html).contains("mossglint-uploads-2031-03", "encoder-b", "<svg");
     }
 
     @Test

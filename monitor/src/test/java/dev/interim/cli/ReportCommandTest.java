@@ -31,7 +31,7 @@ import org.junit.jupiter.api.io.TempDir;
 class ReportCommandTest {
     static final String CONFIG = """
             kafka:
-              input_topics: [kiln.events]
+              input_topics: [kolvane.events]
               commit_interval: 200ms
             events:
               experiment: /exp
@@ -39,7 +39,7 @@ class ReportCommandTest {
             http:
               port: 0
             experiments:
-              - id: kiln-render
+              - id: kolvane-render
                 control: v1
                 treatments: [v2]
                 look_every: 1s
@@ -67,21 +67,21 @@ class ReportCommandTest {
         try (Daemon daemon = Daemon.start(ConfigLoader.parseWithoutSecrets(CONFIG), new Daemon.Options(dir.resolve("kafka"), null, null))) {
             sendTrafficUntilV2IsStopped(daemon);
             String from = "http://127.0.0.1:" + daemon.httpPort();
-            Path out = dir.resolve("kiln.html");
+            Path out = dir.resolve("kolvane.html");
 
-            Cli.Result ok = Cli.run("report", "--experiment", "kiln-render", "--from", from, "--out", out.toString());
+            Cli.Result ok = Cli.run("report", "--experiment", "kolvane-render", "--from", from, "--out", out.toString());
             assertThat(ok.exit()).as(ok.err()).isZero();
-            assertThat(ok.out()).startsWith("report of kiln-render written to " + out.toAbsolutePath())
+            assertThat(ok.out()).startsWith("report of kolvane-render written to " + out.toAbsolutePath())
                     .contains("v2 render-failures: stop-harm");
             String html = Files.readString(out, StandardCharsets.UTF_8);
-            assertThat(html).contains("<title>Interim report · kiln-render</title>", "from " + from,
+            assertThat(html).contains("<title>Interim report · kolvane-render</title>", "from " + from,
                     "data-decision=\"stop-harm\"", "<h3>Outcome</h3>", "<h3>Design</h3>", "<h3>Look history</h3>");
             assertThat(html.split("<svg ", -1)).hasSize(1 + 2);
 
-            Cli.Result unknown = Cli.run("report", "--experiment", "kiln-rendr", "--from", from, "--out", dir.resolve("x.html").toString());
+            Cli.Result unknown = Cli.run("report", "--experiment", "kolvane-rendr", "--from", from, "--out", dir.resolve("x.html").toString());
             assertThat(unknown.exit()).isEqualTo(2);
             assertThat(unknown.errLines()).containsExactly("interim: the daemon at " + from
-                    + " decides no experiment 'kiln-rendr'; it decides: kiln-render; see 'interim report --help'");
+                    + " decides no experiment 'kolvane-rendr'; it decides: kolvane-render; see 'interim report --help'");
             assertThat(dir.resolve("x.html")).doesNotExist();
         }
     }
@@ -92,7 +92,7 @@ class ReportCommandTest {
         try (HttpEndpoint gone = HttpEndpoint.builder().port(0).start()) {
             from = gone.uri().toString();
         }
-        Cli.Result r = Cli.run("report", "--experiment", "kiln-render", "--from", from, "--out", dir.resolve("r.html").toString());
+        Cli.Result r = Cli.run("report", "--experiment", "kolvane-render", "--from", from, "--out", dir.resolve("r.html").toString());
         assertThat(r.exit()).isEqualTo(2);
         assertThat(r.errLines()).containsExactly("interim: cannot reach the daemon at " + from + " (connection refused): start it, "
                 + "or give its HTTP address (the 'http' section of its configuration) with --from; see 'interim report --help'");
@@ -104,14 +104,14 @@ class ReportCommandTest {
         Cli.Result missing = Cli.run("report");
         assertThat(missing.exit()).isEqualTo(2);
         assertThat(missing.err()).contains("--experiment");
-        Cli.Result bad = Cli.run("report", "--experiment", "kiln-render", "--from", "127.0.0.1:8080");
+        Cli.Result bad = Cli.run("report", "--experiment", "kolvane-render", "--from", "127.0.0.1:8080");
         assertThat(bad.exit()).isEqualTo(2);
         assertThat(bad.errLines()).singleElement().asString().startsWith("interim: the daemon's address must be http://HOST:PORT");
     }
 
     @Test
     void theDefaultFileIsNamedAfterTheExperiment() {
-        assertThat(ReportCommand.defaultFileName("kiln-render")).isEqualTo("report-kiln-render.html");
+        assertThat(ReportCommand.defaultFileName("kolvane-render")).isEqualTo("report-kolvane-render.html");
         assertThat(ReportCommand.defaultFileName("a/b c")).isEqualTo("report-a_b_c.html");
     }
 
@@ -129,7 +129,7 @@ class ReportCommandTest {
                 for (int i = 0; i < 600; i++) {
                     for (String arm : failures.keySet()) {
                         boolean ok = random.nextDouble() >= failures.get(arm);
-                        producer.send(new ProducerRecord<>("kiln.events", "r" + i, "{\"exp\":\"kiln-render\",\"arm\":\"" + arm
+                        producer.send(new ProducerRecord<>("kolvane.events", "r" + i, "{\"exp\":\"kolvane-render\",\"arm\":\"" + arm
                                 + "\",\"ok\":" + ok + ",\"ms\":" + (300 + 50 * random.nextDouble()) + "}"));
                     }
                 }
@@ -141,7 +141,7 @@ class ReportCommandTest {
     }
 
     private static boolean stopped(Daemon daemon) {
-        ExperimentView v = daemon.views().get("kiln-render");
+        ExperimentView v = daemon.views().get("kolvane-render");
         return v != null && v.comparisons().stream()
                 .anyMatch(c -> c.arm().equals("v2") && c.metric().equals("render-failures") && c.decision() == Decision.STOP_HARM);
     }

@@ -161,7 +161,7 @@ class SimulateCommandTest {
     void theDemoScenarioSimulatesWithoutAConfigurationFile() {
         Cli.Result r = Cli.run("simulate", "--demo", "--runs", "500", "--looks", "5", "--format", "csv");
         assertThat(r.exit()).as(r.err()).isZero();
-        assertThat(r.csvColumns().get("experiment")).containsOnly("tidepool-payments-2026-12");
+        assertThat(r.csvColumns().get("experiment")).containsOnly("quorvel-payments-2026-12");
         assertThat(r.csvColumns().get("metric")).contains("payment-errors", "checkout-completed");
     }
 

@@ -52,6 +52,7 @@ class DefaultsTest {
         assertThat(config.http().bindAddress()).isEqualTo("127.0.0.1");
         assertThat(config.http().port()).isEqualTo(8080);
         assertThat(config.http().adminToken()).isEmpty();
+        assertThat(config.http().allowedHosts()).as("only IP addresses, localhost and the bind address").isEmpty();
         WebhookSettings w = config.webhook().orElseThrow();
         assertThat(w.timeout()).isEqualTo(Duration.ofSeconds(5));
         assertThat(w.maxAttempts()).isEqualTo(5);
@@ -73,8 +74,8 @@ class DefaultsTest {
         MetricDefinition guardrail = config.experiments().get(0).definition().metrics().get(0);
         MetricDefinition primary = config.experiments().get(0).definition().metrics().get(1);
         assertThat(guardrail.alpha()).isEqualTo(0.05);
-        assertThat(guardrail.sides()).isEqualTo(1);
-        assertThat(primary.sides()).isEqualTo(2);
+        assertThat(guardrail.sides().count()).isEqualTo(1);
+        assertThat(primary.sides().count()).isEqualTo(2);
         assertThat(primary.spending()).isInstanceOf(SpendingFunction.OBrienFlemingType.class);
         assertThat(primary.horizon()).isEqualTo(new Horizon.Powered(0.8, 0.01, 10));
         assertThat(primary.action()).isEqualTo(StopAction.NONE);
@@ -104,7 +105,7 @@ class DefaultsTest {
         assertThat(e.sampleRatioThreshold()).isEqualTo(0.0001);
         assertThat(e.split()).containsEntry("old", 2.0);
         MetricDefinition primary = e.metrics().get(1);
-        assertThat(primary.sides()).isEqualTo(1);
+        assertThat(primary.sides().count()).isEqualTo(1);
         assertThat(primary.alpha()).isEqualTo(0.025);
         assertThat(primary.futility()).isEqualTo(new SpendingFunction.HwangShihDeCani(-2));
         assertThat(primary.spending()).isEqualTo(new SpendingFunction.Power(3));

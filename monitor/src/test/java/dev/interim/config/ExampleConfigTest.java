@@ -47,6 +47,7 @@ class ExampleConfigTest {
     void httpAndWebhookReadTheirSecretsFromTheEnvironment() {
         assertThat(config.http().bindAddress()).isEqualTo("127.0.0.1");
         assertThat(config.http().port()).isEqualTo(8080);
+        assertThat(config.http().allowedHosts()).containsExactly("interim.courier.example");
         assertThat(config.http().adminToken()).hasValueSatisfying(t -> assertThat(t.reveal())
                 .isEqualTo(Configs.exampleEnvironment().get("INTERIM_ADMIN_TOKEN")));
         WebhookSettings w = config.webhook().orElseThrow();
@@ -86,7 +87,7 @@ class ExampleConfigTest {
         assertThat(errors.worse()).isEqualTo(Worse.HIGHER);
         assertThat(errors.alpha()).isEqualTo(0.01);
         assertThat(experiment.definition().comparisonAlpha(errors)).isEqualTo(0.005);
-        assertThat(errors.sides()).isEqualTo(1);
+        assertThat(errors.sides().count()).isEqualTo(1);
         assertThat(errors.spending()).isInstanceOf(SpendingFunction.OBrienFlemingType.class);
         assertThat(errors.horizon()).isEqualTo(new Horizon.MaxPerArm(40_000));
         assertThat(errors.action()).isEqualTo(StopAction.KILL);
@@ -113,7 +114,7 @@ class ExampleConfigTest {
         MetricDefinition purchase = metrics.get(3);
         assertThat(purchase.kind()).isEqualTo(MetricKind.UNIT_RATE);
         assertThat(purchase.role()).isEqualTo(Role.PRIMARY);
-        assertThat(purchase.sides()).isEqualTo(2);
+        assertThat(purchase.sides().count()).isEqualTo(2);
         assertThat(purchase.horizon()).isEqualTo(new Horizon.Powered(0.8, 0.02, 12));
         assertThat(purchase.futility()).isNull();
         assertThat(purchase.baseline()).isNull();

@@ -134,11 +134,15 @@ class InvalidConfigTest {
                         Configs.valid("kafka:\n", "kafka:\n  properties:\n    ssl.truststore: {type: PKCS12}\n")),
                 // http and webhook
                 bad("http.port", "between 0 and 65535; got 70000", Configs.VALID + "http: {port: 70000}\n"),
+                bad("http.allowed_hosts[0]", "without scheme, port or path",
+                        Configs.VALID + "http: {allowed_hosts: ['monitor.courier.example:8080']}\n"),
+                bad("http.allowed_hosts", "must be a list of host names",
+                        Configs.VALID + "http: {allowed_hosts: monitor.courier.example}\n"),
                 bad("webhook.url", "absolute http or https URL",
                         Configs.valid("https://hooks.example/kill", "ftp://hooks.example/kill")),
                 bad("webhook.timeout", "between 100ms and 5m",
                         Configs.valid("signing_key_env: HOOK_KEY", "signing_key_env: HOOK_KEY\n  timeout: 10m")),
-                bad("webhook.signing_key_env", "not an environment variable name",
+                bad("webhook.signing_key_env", "is not a variable name (not shown: it may be the secret itself)",
                         Configs.valid("signing_key_env: HOOK_KEY", "signing_key_env: whsec_abc+def=")),
                 // the file as a whole
                 bad("", "is not valid YAML at line", "kafka: [unclosed\nevents: {}\n"),
@@ -147,7 +151,22 @@ class InvalidConfigTest {
                 bad("", "more than one YAML document", Configs.VALID + "---\nkafka: {}\n"),
                 bad("experiments[0].treatments[1]", "write the value in quotes",
                         Configs.valid("[new-a, new-b]", "[new-a, off]")),
-                bad("", "must be a mapping", "- just\n- a list\n"));
+                bad("", "must be a mapping", "- just\n- a list\n"),
+                // YAML's non-finite numbers (YAML 1.1, "Floating-Point Language-Independent Type": .nan, .inf, -.inf)
+                bad("experiments[0].metrics[0].alpha", "must be a finite number; got .nan",
+                        Configs.valid("max_per_arm: 10000", "max_per_arm: 10000\n        alpha: .nan")),
+                bad("experiments[0].metrics[1].power", "must be a finite number; got .inf",
+                        Configs.valid("power: 0.8", "power: .inf")),
+                bad("experiments[0].metrics[1].effect", "must be a finite number; got -.inf",
+                        Configs.valid("effect: 0.01", "effect: -.Inf")),
+                bad("experiments[0].metrics[0].max_per_arm", "must be a whole number; got .inf",
+                        Configs.valid("max_per_arm: 10000", "max_per_arm: .inf")),
+                bad("experiments[0].metrics[1].counts_if.equals", "must be a finite number; got .nan",
+                        Configs.valid("{equals: paid}", "{equals: .NaN}")),
+                bad("experiments[0].split.old", "must be a finite number; got .inf",
+                        Configs.valid("    metrics:\n", "    split: {old: .inf, new-a: 1, new-b: 1}\n    metrics:\n")),
+                bad("experiments[0].sample_ratio_threshold", "must be a finite number; got .nan",
+                        Configs.valid("    metrics:\n", "    sample_ratio_threshold: .nan\n    metrics:\n")));
     }
 
     private static Arguments bad(String keyPath, String fragment, String yaml) {
@@ -160,6 +179,7 @@ class InvalidConfigTest {
         ConfigException e = catchThrowableOfType(ConfigException.class, () -> ConfigLoader.parse(yaml, Configs.ENV));
 
         assertThat(e).as("refused").isNotNull();
+        assertThat(e.problems()).as("one change, one problem reported").containsExactly(e);
         String expectedPath = keyPath.equals("(file)") ? "" : keyPath;
         assertThat(e.keyPath()).isEqualTo(expectedPath);
         assertThat(e.getMessage()).startsWith(expectedPath.isEmpty() ? "" : expectedPath + ": ").contains(fragment);
@@ -181,5 +201,62 @@ class InvalidConfigTest {
                 Configs.valid("  arm: /arm\n", "  arm: /arm\n  variant: /v\n"), Configs.ENV));
 
         assertThat(e.getMessage()).isEqualTo("events.variant: unknown key; accepted here: experiment, arm, unit, time");
+    }
+
+    // ---- what messages show of the file ----
+
+    /** A tab where indentation belongs is reported at its own line, and no other line is named. */
+    @Test
+    void aTabIsReportedAtItsLine() {
+        String yaml = Configs.valid("  arm: /arm\n", "  arm: /arm\n\tunit2: /u\n");
+        int tabLine = (int) yaml.substring(0, yaml.indexOf('\t')).lines().count() + 1;
+        ConfigException e = catchThrowableOfType(ConfigException.class, () -> ConfigLoader.parse(yaml, Configs.ENV));
+
+        assertThat(e.getMessage()).isEqualTo("is not valid YAML at line " + tabLine + ", column 1: found a tab, which "
+                + "YAML does not allow for indentation: indent with spaces");
+    }
+
+    /** A problem inside a construct begun on an earlier line names the problem's line first, the other as context. */
+    @Test
+    void aProblemInsideABlockNamesItsLineAndWhereTheBlockBegan() {
+        String yaml = Configs.valid("  input_topics: [shop.events]\n", "  input_topics:\n    - shop.events\n    x: 1\n");
+        ConfigException e = catchThrowableOfType(ConfigException.class, () -> ConfigLoader.parse(yaml, Configs.ENV));
+
+        assertThat(e.getMessage()).startsWith("is not valid YAML at line 4, column 5: ").endsWith("begun at line 3)");
+    }
+
+    /** A value of a megabyte is quoted by its first 80 characters and its length: the message stays a line. */
+    @Test
+    void aHugeValueIsCutInTheMessage() {
+        String id = "q".repeat(1_000_000);
+        ConfigException e = catchThrowableOfType(ConfigException.class,
+                () -> ConfigLoader.parse(Configs.valid("id: basket-v3", "id: " + id), Configs.ENV));
+
+        assertThat(e.keyPath()).isEqualTo("experiments[0].id");
+        assertThat(e.getMessage()).endsWith("got '" + "q".repeat(80) + "…' (1000000 characters)").hasSizeLessThan(300);
+    }
+
+    /** Bidirectional controls and zero-width characters are shown escaped, never raw (they would reorder or hide text). */
+    @Test
+    void invisibleCharactersAreEscapedInTheMessage() {
+        String yaml = Configs.valid("id: basket-v3", "id: \"basket\\u202Eev\\u200Bil\\u0007\"");
+        ConfigException e = catchThrowableOfType(ConfigException.class, () -> ConfigLoader.parse(yaml, Configs.ENV));
+
+        assertThat(e.getMessage()).endsWith("got 'basket\\u202Eev\\u200Bil\\u0007'")
+                .doesNotContain("\u202E", "\u200B", "\u0007");
+    }
+
+    /**
+     * Keys are user input too: a long or invisible key is shown cut and escaped in the key path (1000
+     * characters: YAML 1.1 allows implicit keys of at most 1024).
+     */
+    @Test
+    void aLongUnknownKeyIsCutInTheKeyPath() {
+        String key = "k".repeat(999) + "\u2066";
+        ConfigException e = catchThrowableOfType(ConfigException.class,
+                () -> ConfigLoader.parse(Configs.valid("  arm: /arm\n", "  arm: /arm\n  " + key + ": 1\n"), Configs.ENV));
+
+        assertThat(e.keyPath()).isEqualTo("events." + "k".repeat(80) + "… (1000 characters)");
+        assertThat(e.getMessage()).hasSizeLessThan(300).doesNotContain("\u2066");
     }
 }

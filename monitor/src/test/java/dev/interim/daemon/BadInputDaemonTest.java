@@ -346,7 +346,7 @@ class BadInputDaemonTest {
             return out;
         }
 
-        /** The views' tallies: exact successes and trials; means within 1e-9 relative (the bound for sums). */
+        /** The views' tallies: exact successes and trials; means within 1e-9 relative (rounding of sums in another order; common practice). */
         void assertViews(Map<String, ExperimentView> views) {
             Map<String, long[]> allRates = new TreeMap<>(rates);
             allRates.putAll(unitRates());

@@ -4,7 +4,7 @@ import static org.assertj.core.api.Assertions.assertThat;
 
 import com.sun.net.httpserver.HttpServer;
 import dev.interim.embedded.EmbeddedKafka;
-import dev.interim.signal.Secret;
+import dev.interim.signal.SigningKey;
 import java.net.InetSocketAddress;
 import java.net.ServerSocket;
 import java.net.URI;
@@ -42,7 +42,7 @@ class SecretsInOutputTest {
     void noSecretLeavesTheDaemon(@TempDir Path dir) throws Exception {
         byte[] key = new byte[32];
         new SplittableRandom(3).nextBytes(key);
-        String webhookKey = Secret.PREFIX + Base64.getEncoder().encodeToString(key);
+        String webhookKey = SigningKey.PREFIX + Base64.getEncoder().encodeToString(key);
         String adminToken = "admin-9c1f2e7b44a0d3e5f6";
         String kafkaPassword = "kafka-pw-5e8d1c7a2b9f";
         AtomicInteger calls = new AtomicInteger();
@@ -140,7 +140,7 @@ class SecretsInOutputTest {
         }
         String everything = String.join("\n", seen);
         assertThat(everything).contains("vault-canary").contains("decision stop-harm");
-        String keyBody = webhookKey.substring(Secret.PREFIX.length());
+        String keyBody = webhookKey.substring(SigningKey.PREFIX.length());
         assertThat(everything).doesNotContain(keyBody).doesNotContain(adminToken).doesNotContain(kafkaPassword);
         // The endpoint listens on the loopback address only.
         assertThat(String.join("\n", seen)).contains("HTTP endpoint listening on http://127.0.0.1:");

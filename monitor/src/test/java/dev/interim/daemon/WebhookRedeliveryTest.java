@@ -6,7 +6,7 @@ import com.sun.net.httpserver.HttpServer;
 import dev.interim.config.ConfigLoader;
 import dev.interim.config.InterimConfig;
 import dev.interim.experiment.DecisionRecord;
-import dev.interim.signal.Secret;
+import dev.interim.signal.SigningKey;
 import dev.interim.signal.WebhookSignature;
 import java.net.InetSocketAddress;
 import java.nio.file.Path;
@@ -71,8 +71,8 @@ class WebhookRedeliveryTest {
     void anUndeliveredKillIsDeliveredOnceAfterARestart(@TempDir Path dir) throws Exception {
         byte[] key = new byte[32];
         new SplittableRandom(9).nextBytes(key);
-        String secretText = Secret.PREFIX + Base64.getEncoder().encodeToString(key);
-        Secret secret = Secret.parse(secretText);
+        String secretText = SigningKey.PREFIX + Base64.getEncoder().encodeToString(key);
+        SigningKey secret = SigningKey.parse(secretText);
         AtomicInteger status = new AtomicInteger(503);
         AtomicInteger refused = new AtomicInteger();
         List<String> accepted = new CopyOnWriteArrayList<>();

@@ -56,8 +56,8 @@ class DaemonClientTest {
         try (HttpEndpoint endpoint = api(views)) {
             DaemonClient client = DaemonClient.at(endpoint.uri() + "/");
             assertThat(client.address()).isEqualTo(endpoint.uri().toString());
-            assertThat(client.experimentIds()).containsExactly("ember-basket", "harbor-search-ranking", "lantern-onboarding",
-                    "quay-pricing");
+            assertThat(client.experimentIds()).containsExactly("ember-basket", "harbor-search-ranking", "mossglint-onboarding",
+                    "tamsel-pricing");
             for (ExperimentView v : views.values()) {
                 ExperimentView read = client.experiment(v.id());
                 // Everything but the tallies comes back bit for bit; a mean's sum of squared
@@ -136,7 +136,7 @@ class DaemonClientTest {
     @Test
     void anOlderAnswerReadsWithPerEventAssignmentAndNoRelativeChange() throws Exception {
         String old = """
-                {"id":"kiln","control":"a","treatments":["b"],"dry_run":true,"held":false,
+                {"id":"kolvane","control":"a","treatments":["b"],"dry_run":true,"held":false,
                  "sample_ratio":{"p_value":0.5,"mismatch":false},"exposures":{"a":10,"b":10},"tallies":{},
                  "comparisons":[{"arm":"b","metric":"m","kind":"event-mean","decision":"continue","alpha":0.05,
                    "last":{"look":1,"at":"2027-03-08T09:01:00Z","fraction":0.1,"statistic":0.5,"upper":4.0,"lower":null,
@@ -154,10 +154,10 @@ class DaemonClientTest {
 
     @Test
     void anUnknownExperimentIsNamedWithTheOnesThatExist() {
-        try (HttpEndpoint endpoint = api(Map.of("quay-pricing", Scenarios.pricing()))) {
-            assertThatThrownBy(() -> DaemonClient.at(endpoint.uri().toString()).experiment("quay-pricin"))
+        try (HttpEndpoint endpoint = api(Map.of("tamsel-pricing", Scenarios.pricing()))) {
+            assertThatThrownBy(() -> DaemonClient.at(endpoint.uri().toString()).experiment("tamsel-pricin"))
                     .isInstanceOf(IllegalArgumentException.class)
-                    .hasMessage("the daemon at " + endpoint.uri() + " decides no experiment 'quay-pricin'; it decides: quay-pricing");
+                    .hasMessage("the daemon at " + endpoint.uri() + " decides no experiment 'tamsel-pricin'; it decides: tamsel-pricing");
         }
     }
 
@@ -167,7 +167,7 @@ class DaemonClientTest {
         try (HttpEndpoint gone = HttpEndpoint.builder().port(0).start()) {
             address = gone.uri().toString();
         }
-        assertThatThrownBy(() -> DaemonClient.at(address).experiment("quay-pricing"))
+        assertThatThrownBy(() -> DaemonClient.at(address).experiment("tamsel-pricing"))
                 .isInstanceOf(IllegalArgumentException.class)
                 .hasMessage("cannot reach the daemon at " + address + " (connection refused): start it, or give its HTTP address "
                         + "(the 'http' section of its configuration) with --from");

@@ -58,12 +58,12 @@ class DashboardPageTest {
             assertThat(Xhtml.text(card)).contains(look);
         }
         assertThat(page.byClass("experiment")).extracting(e -> e.getAttribute("data-experiment"))
-                .containsExactly("harbor-search-ranking", "lantern-onboarding", "quay-pricing");
+                .containsExactly("harbor-search-ranking", "mossglint-onboarding", "tamsel-pricing");
     }
 
     @Test
     void aStopForHarmIsCalledOutInWordsNotOnlyInColour() {
-        ExperimentView onboarding = VIEWS.get("lantern-onboarding");
+        ExperimentView onboarding = VIEWS.get("mossglint-onboarding");
         List<String> harmed = onboarding.comparisons().stream().filter(c -> c.decision() == Decision.STOP_HARM)
                 .map(ComparisonView::metric).toList();
         assertThat(harmed).as("the scenario stops 'express' for harm").isNotEmpty();
@@ -78,7 +78,7 @@ class DashboardPageTest {
 
     @Test
     void eachCardShowsWhatTheLastLookCountedForItsArmAndControl() {
-        ExperimentView onboarding = VIEWS.get("lantern-onboarding");
+        ExperimentView onboarding = VIEWS.get("mossglint-onboarding");
         Xhtml page = Xhtml.parse(ExperimentSection.html(onboarding, 0, NOW));
         for (Element card : page.byClass("comparison")) {
             String metric = card.getAttribute("data-metric");
@@ -114,7 +114,7 @@ class DashboardPageTest {
         double byHand = hint.ratio() / plain.ratio() - 1;
         String percent = String.format(java.util.Locale.ROOT, "%+.1f%%", 100 * byHand);
         assertThat(card).contains("relative change (95% repeated CI)", percent + " [");
-        ExperimentView perEvent = VIEWS.get("lantern-onboarding");
+        ExperimentView perEvent = VIEWS.get("mossglint-onboarding");
         assertThat(Xhtml.text(Xhtml.parse(ExperimentSection.html(perEvent, 0, NOW)).doc.getDocumentElement()))
                 .contains("arms assigned per event");
     }
@@ -129,6 +129,19 @@ class DashboardPageTest {
                 v.sampleRatio(), v.lastLook(), v.exposures(), v.tallies(), List.of(waiting), v.assignment());
         String card = Xhtml.text(Xhtml.parse(ExperimentSection.html(w, 0, NOW)).byClass("comparison").get(0));
         assertThat(card).contains("none yet: no variance yet: every event so far is a failure in both arms");
+    }
+
+    /**
+     * A tiny sample-ratio p-value reads like a number ({@code 2.6e-24}), never as a row of zeros; the
+     * replay and the report use the same words ({@code dev.interim.text.Numbers.pValue}). Common practice.
+     */
+    @Test
+    void aTinySampleRatioPValueIsWrittenWithAnExponent() {
+        ExperimentView v = Scenarios.perUnitRatio();
+        ExperimentView w = new ExperimentView(v.id(), v.control(), v.treatments(), v.dryRun(), true, "sample-ratio mismatch",
+                new SampleRatio(2.62e-24, true), v.lastLook(), v.exposures(), v.tallies(), v.comparisons(), v.assignment());
+        String text = Xhtml.text(Xhtml.parse(ExperimentSection.html(w, 0, NOW)).doc.getDocumentElement());
+        assertThat(text).contains("p = 2.6e-24 — MISMATCH").doesNotContain("0.0000000");
     }
 
     /** The relative change in words; the numbers are chosen by hand, so the expected texts are too. */
@@ -205,11 +218,11 @@ class DashboardPageTest {
             assertThat(empty.statusCode()).isEqualTo(200);
             assertThat(empty.headers().firstValue("Content-Type")).hasValue("text/html; charset=utf-8");
             assertThat(empty.body()).contains("0 experiments");
-            now.set(Map.of("quay-pricing", VIEWS.get("quay-pricing")));
+            now.set(Map.of("tamsel-pricing", VIEWS.get("tamsel-pricing")));
             HttpResponse<String> fragment = client.send(HttpRequest.newBuilder(base.resolve("/dashboard/fragment")).build(),
                     HttpResponse.BodyHandlers.ofString());
             assertThat(fragment.statusCode()).isEqualTo(200);
-            assertThat(fragment.body()).contains("data-experiment=\"quay-pricing\"", "as of 2027-03-08 09:15:00 UTC")
+            assertThat(fragment.body()).contains("data-experiment=\"tamsel-pricing\"", "as of 2027-03-08 09:15:00 UTC")
                     .doesNotContain("<html");
             assertThat(client.send(HttpRequest.newBuilder(base.resolve("/dashboard")).POST(HttpRequest.BodyPublishers.noBody()).build(),
                     HttpResponse.BodyHandlers.ofString()).statusCode()).isEqualTo(405);

@@ -163,7 +163,7 @@ class ReportTest {
         Path file = dir.resolve("report.html");
         Report.write(ONBOARDING, file, "replay of tuesday.ndjson", GENERATED);
         String html = Files.readString(file, StandardCharsets.UTF_8);
-        assertThat(html).startsWith("<!DOCTYPE html>").contains("<title>Interim report · lantern-onboarding</title>",
+        assertThat(html).startsWith("<!DOCTYPE html>").contains("<title>Interim report · mossglint-onboarding</title>",
                 "generated 2027-03-09 08:00:00 UTC from replay of tuesday.ndjson", "script-src 'none'").doesNotContain("<script");
         Matcher http = Pattern.compile("https?://[^\"'\\s<)]*").matcher(html);
         while (http.find()) {
@@ -192,8 +192,17 @@ class ReportTest {
         assertThat(Xhtml.text(report.doc.getDocumentElement())).contains("500 looks; the table shows 33");
     }
 
+    /** The report's facts write a tiny sample-ratio p-value as the dashboard and the replay do (common practice). */
+    @Test
+    void aTinySampleRatioPValueIsWrittenWithAnExponent() {
+        ExperimentView v = new ExperimentView("kolvane-render", "a", List.of("b"), true, true, "sample-ratio mismatch",
+                new SampleRatio(2.62e-24, true), GENERATED, Map.of("a", 1000L, "b", 700L), Map.of(), List.of());
+        String text = Xhtml.text(Xhtml.body(Report.html(v, null, GENERATED)).doc.getDocumentElement());
+        assertThat(text).contains("p = 2.6e-24").doesNotContain("0.0000000");
+    }
+
     private static ExperimentView view(List<ComparisonView> comparisons) {
-        return new ExperimentView("kiln-render", "a", List.of("b"), true, false, null, new SampleRatio(0.4, false), GENERATED,
+        return new ExperimentView("kolvane-render", "a", List.of("b"), true, false, null, new SampleRatio(0.4, false), GENERATED,
                 Map.of("a", 1000L, "b", 990L), Map.of(), comparisons);
     }
 }

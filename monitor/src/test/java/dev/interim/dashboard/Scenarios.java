@@ -1,5 +1,9 @@
 package dev.interim.dashboard;
 
+import dev.interim.experiment.RunMode;
+
+import dev.interim.experiment.Sides;
+
 import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
@@ -45,12 +49,12 @@ final class Scenarios {
     }
 
     /**
-     * "lantern-onboarding": a new sign-up flow in two variants; 'express' fails 2.6% of sign-ups
+     * "mossglint-onboarding": a new sign-up flow in two variants; 'express' fails 2.6% of sign-ups
      * instead of 1% and must be stopped for harm; 'guided' is healthy.
      */
     static ExperimentView onboarding() {
-        ExperimentDefinition d = new ExperimentDefinition("lantern-onboarding", "classic", List.of("guided", "express"), null,
-                Duration.ofMinutes(1), 200, true, 0.001, List.of(
+        ExperimentDefinition d = new ExperimentDefinition("mossglint-onboarding", "classic", List.of("guided", "express"), null,
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(
                         metric("signup-errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 60_000, StopAction.KILL),
                         metric("first-task-seconds", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER, 1, "pocock", 60_000, StopAction.PAGE),
                         metric("activated", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 2, "obf", 60_000, StopAction.NONE)));
@@ -65,7 +69,7 @@ final class Scenarios {
     /** "harbor-search-ranking": the treatment gets a third of the traffic it should; decisions are held. */
     static ExperimentView searchRanking() {
         ExperimentDefinition d = new ExperimentDefinition("harbor-search-ranking", "bm25", List.of("learned"), null,
-                Duration.ofMinutes(1), 200, false, 0.001, List.of(
+                Duration.ofMinutes(1), 200, RunMode.LIVE, 0.001, List.of(
                         metric("zero-result-rate", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 50_000, StopAction.KILL)));
         Map<String, double[]> arms = new LinkedHashMap<>();
         arms.put("bm25", new double[] {0.05, 0, 0});
@@ -73,13 +77,13 @@ final class Scenarios {
         return run(d, arms, 6, 2000, Map.of("learned", 0.34), 72);
     }
 
-    /** "quay-pricing": a one-sided primary metric with a powered horizon and a futility boundary; no true effect. */
+    /** "tamsel-pricing": a one-sided primary metric with a powered horizon and a futility boundary; no true effect. */
     static ExperimentView pricing() {
-        MetricDefinition conversion = new MetricDefinition("checkout-conversion", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, 1,
+        MetricDefinition conversion = new MetricDefinition("checkout-conversion", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, Sides.ONE,
                 SpendingFunction.parse("hsd:-4"), SpendingFunction.parse("hsd:-2"), new Horizon.Powered(0.9, 0.02, 4), null,
                 StopAction.NONE);
-        ExperimentDefinition d = new ExperimentDefinition("quay-pricing", "list-price", List.of("bundle"), null,
-                Duration.ofMinutes(1), 200, true, 0.001, List.of(conversion));
+        ExperimentDefinition d = new ExperimentDefinition("tamsel-pricing", "list-price", List.of("bundle"), null,
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(conversion));
         Map<String, double[]> arms = new LinkedHashMap<>();
         arms.put("list-price", new double[] {0.10, 0, 0.10});
         arms.put("bundle", new double[] {0.10, 0, 0.11});
@@ -92,10 +96,10 @@ final class Scenarios {
      * session by about 5%. Not part of {@link #invented()}.
      */
     static ExperimentView perUnitRatio() {
-        MetricDefinition value = new MetricDefinition("value-per-session", MetricKind.RATIO, Role.PRIMARY, Worse.LOWER, 0.05, 2,
+        MetricDefinition value = new MetricDefinition("value-per-session", MetricKind.RATIO, Role.PRIMARY, Worse.LOWER, 0.05, Sides.TWO,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.NONE);
         ExperimentDefinition d = new ExperimentDefinition("ember-basket", "plain", List.of("bundle-hint"), null,
-                Duration.ofMinutes(1), 200, true, 0.001, List.of(value), Assignment.UNIT);
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(value), Assignment.UNIT);
         ExperimentMonitor monitor = new ExperimentMonitor(d);
         SplittableRandom random = new SplittableRandom(74);
         Map<String, Double> perSession = Map.of("plain", 20.0, "bundle-hint", 21.0);
@@ -123,7 +127,7 @@ final class Scenarios {
 
     static MetricDefinition metric(String name, MetricKind kind, Role role, Worse worse, int sides, String spending, long maxPerArm,
                                    StopAction action) {
-        return new MetricDefinition(name, kind, role, worse, 0.05, sides, SpendingFunction.parse(spending), null,
+        return new MetricDefinition(name, kind, role, worse, 0.05, Sides.of(sides), SpendingFunction.parse(spending), null,
                 new Horizon.MaxPerArm(maxPerArm), null, action);
     }
 

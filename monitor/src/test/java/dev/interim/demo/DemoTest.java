@@ -30,7 +30,7 @@ class DemoTest {
         StringWriter out = new StringWriter();
         StringWriter err = new StringWriter();
         Path saved = dir.resolve("demo-events.ndjson");
-        boolean ok = new Demo(new PrintWriter(out), new PrintWriter(err), dir.resolve("kafka"), Duration.ofMinutes(3), false,
+        boolean ok = new Demo(new PrintWriter(out), new PrintWriter(err), dir.resolve("kafka"), Duration.ofMinutes(3), Demo.Ending.AFTER_VERDICT,
                 saved).run();
         assertThat(ok).as(err.toString()).isTrue();
         List<JsonNode> records = new ArrayList<>();

@@ -26,13 +26,13 @@ class ExperimentMonitorTest {
     private static final Instant T0 = Instant.parse("2026-03-01T00:00:00Z");
 
     static MetricDefinition errorRate(long maxPerArm, StopAction action) {
-        return new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, 1,
+        return new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.ONE,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(maxPerArm), null, action);
     }
 
     static ExperimentDefinition rollout(List<String> treatments, MetricDefinition... metrics) {
         return new ExperimentDefinition("checkout-canary", "stable", treatments, null, Duration.ofMinutes(1), 50,
-                false, 0.001, List.of(metrics));
+                RunMode.LIVE, 0.001, List.of(metrics));
     }
 
     /** Cumulative error counts per arm, drawn look by look. */
@@ -88,7 +88,7 @@ class ExperimentMonitorTest {
         assertThat(stop.intervalLower()).isPositive();           // the one-sided RCI excludes no harm
         assertThat(stop.intervalUpper()).isEqualTo(Double.POSITIVE_INFINITY);
         assertThat(stop.killRequested()).isTrue();
-        assertThat(stop.decisionId()).isEqualTo(DecisionRecord.id("checkout-canary", "candidate", "errors",
+        assertThat(stop.decisionId()).isEqualTo(DecisionRecord.id("", "checkout-canary", "candidate", "errors",
                 Decision.STOP_HARM, stop.look()));
         assertThat(monitor.comparison("errors", "candidate").decision()).isEqualTo(Decision.STOP_HARM);
         // Absorbing: more data, even reassuring data, changes nothing.
@@ -211,7 +211,7 @@ class ExperimentMonitorTest {
     @Test
     void aSingleArmRolloutIsComparedWithItsBaseline() {
         MetricDefinition latency = new MetricDefinition("latency_ms", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER,
-                0.05, 1, SpendingFunction.parse("pocock"), null, new Horizon.MaxPerArm(5000), 120.0, StopAction.PAGE);
+                0.05, Sides.ONE, SpendingFunction.parse("pocock"), null, new Horizon.MaxPerArm(5000), 120.0, StopAction.PAGE);
         ExperimentMonitor monitor = new ExperimentMonitor(rollout(List.of("candidate"), latency));
         SplittableRandom random = new SplittableRandom(8);
         dev.interim.stats.RunningMoments m = new dev.interim.stats.RunningMoments();
@@ -232,11 +232,11 @@ class ExperimentMonitorTest {
     void definitionsRefuseImpossibleSettingsNamingThem() {
         assertThatThrownBy(() -> rollout(List.of("stable"), errorRate(100, StopAction.NONE)))
                 .hasMessageContaining("listed twice");
-        assertThatThrownBy(() -> new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, 2,
+        assertThatThrownBy(() -> new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.TWO,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(100), null, StopAction.NONE))
                 .hasMessageContaining("sides must be 1 for a guardrail");
         assertThatThrownBy(() -> new Horizon.MaxPerArm(1)).hasMessageContaining("max_per_arm");
-        assertThatThrownBy(() -> new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, 1,
+        assertThatThrownBy(() -> new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.ONE,
                 SpendingFunction.parse("obf"), null, new Horizon.Powered(0.8, -0.01, 10), null, StopAction.NONE))
                 .hasMessageContaining("harmful way");
         assertThatThrownBy(() -> MetricKind.parse("p99")).hasMessageContaining("event-rate");

@@ -25,10 +25,10 @@ class RelativeChangeTest {
     private static final Instant T = Instant.parse("2026-03-01T00:00:00Z");
 
     private static Comparison comparison(Horizon horizon) {
-        MetricDefinition m = new MetricDefinition("latency", MetricKind.EVENT_MEAN, Role.PRIMARY, Worse.HIGHER, 0.05, 2,
+        MetricDefinition m = new MetricDefinition("latency", MetricKind.EVENT_MEAN, Role.PRIMARY, Worse.HIGHER, 0.05, Sides.TWO,
                 SpendingFunction.parse("pocock"), null, horizon, null, StopAction.NONE);
         ExperimentDefinition e = new ExperimentDefinition("ember-canary", "stable", List.of("candidate"),
-                Map.of("stable", 1.0, "candidate", 1.0), Duration.ofMinutes(1), 2, true, 0.001, List.of(m));
+                Map.of("stable", 1.0, "candidate", 1.0), Duration.ofMinutes(1), 2, RunMode.DRY_RUN, 0.001, List.of(m));
         return new Comparison(e, m, "candidate");
     }
 

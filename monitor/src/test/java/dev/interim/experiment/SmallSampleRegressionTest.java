@@ -23,13 +23,13 @@ class SmallSampleRegressionTest {
     private static final Instant T = Instant.parse("2026-03-01T00:00:00Z");
 
     private static MetricDefinition metric(String name, MetricKind kind, SpendingFunction spending, Horizon horizon) {
-        return new MetricDefinition(name, kind, Role.GUARDRAIL, Worse.HIGHER, 0.05, 1, spending, null, horizon, null,
+        return new MetricDefinition(name, kind, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.ONE, spending, null, horizon, null,
                 StopAction.NONE);
     }
 
     private static Comparison comparison(MetricDefinition m, long minPerArm) {
         ExperimentDefinition e = new ExperimentDefinition("tiny-canary", "stable", List.of("candidate"),
-                Map.of("stable", 99.0, "candidate", 1.0), Duration.ofMinutes(1), minPerArm, true, 0.001, List.of(m));
+                Map.of("stable", 99.0, "candidate", 1.0), Duration.ofMinutes(1), minPerArm, RunMode.DRY_RUN, 0.001, List.of(m));
         return new Comparison(e, m, "candidate");
     }
 

@@ -36,7 +36,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
- * The replay over the invented Lantern rollout (LanternTraffic): encoder-b fails about 9% of
+ * The replay over the invented Mossglint rollout (MossglintTraffic): encoder-b fails about 9% of
  * uploads against 3%, and must be stopped for harm at a look on the configured schedule of event
  * time; and everything the replay decides must be what an {@link ExperimentMonitor} decides when it
  * is given, at the same instants, tallies computed here from the file by other code (a JSON tree
@@ -45,7 +45,7 @@ import org.junit.jupiter.api.io.TempDir;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class ReplayScenarioTest {
-    private static final String ID = LanternTraffic.EXPERIMENT;
+    private static final String ID = MossglintTraffic.EXPERIMENT;
     private static final long MINUTE = 60_000;
     private static final ObjectMapper JSON = new ObjectMapper();
 
@@ -231,7 +231,7 @@ class ReplayScenarioTest {
             Map<String, Tally> failed = new HashMap<>();
             Map<String, Tally> ms = new HashMap<>();
             Map<String, Tally> shared = new HashMap<>();
-            for (String arm : LanternTraffic.ARMS) {
+            for (String arm : MossglintTraffic.ARMS) {
                 long users = armOfUser.values().stream().filter(arm::equals).count();
                 long sharing = armOfUser.entrySet().stream()
                         .filter(u -> u.getValue().equals(arm) && sharers.contains(u.getKey())).count();
@@ -272,8 +272,8 @@ class ReplayScenarioTest {
 
     @Test
     void gzipInputIsRecognisedByNameOrByItsMagicBytesAndGivesTheSameReplay() throws IOException {
-        Path named = Scenario.gzip(Scenario.events(), dir.resolve("lantern.ndjson.gz"));
-        Path unnamed = Scenario.gzip(Scenario.events(), dir.resolve("lantern-events"));
+        Path named = Scenario.gzip(Scenario.events(), dir.resolve("mossglint.ndjson.gz"));
+        Path unnamed = Scenario.gzip(Scenario.events(), dir.resolve("mossglint-events"));
         assertThat(Files.size(named)).isLessThan(Files.size(Scenario.events()) / 3);
 
         for (Path gz : List.of(named, unnamed)) {
@@ -286,9 +286,9 @@ class ReplayScenarioTest {
 
     @Test
     void aFileNamedGzThatIsNotGzipIsBadInput() throws IOException {
-        Path fake = Files.copy(Scenario.events(), dir.resolve("lantern.ndjson.gz"));
+        Path fake = Files.copy(Scenario.events(), dir.resolve("mossglint.ndjson.gz"));
         assertThatThrownBy(() -> replay(config, fake)).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("lantern.ndjson.gz").hasMessageContaining("not gzip");
+                .hasMessageContaining("mossglint.ndjson.gz").hasMessageContaining("not gzip");
     }
 
     @Test

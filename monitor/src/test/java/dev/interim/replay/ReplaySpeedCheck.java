@@ -17,7 +17,7 @@ import org.junit.jupiter.api.io.TempDir;
  * Measures the replay's speed on a large invented file; never part of the ordinary test run, and it
  * asserts no time (speed is reported, not tested). Run it with
  * {@code mvn -o -pl monitor test -Dtest=ReplaySpeedCheck -Dinterim.replay.speed=true}: it writes
- * about 1.1 million Lantern events (1,000,000 uploads by 250,000 users over 11 hours, gzip), replays
+ * about 1.1 million Mossglint events (1,000,000 uploads by 250,000 users over 11 hours, gzip), replays
  * them twice (the first run warms the JIT) under two designs, and prints events per second.
  */
 @EnabledIfSystemProperty(named = "interim.replay.speed", matches = "true")
@@ -27,8 +27,8 @@ class ReplaySpeedCheck {
 
     @Test
     void replaysAMillionEvents() throws IOException {
-        Path events = dir.resolve("lantern-1m.ndjson.gz");
-        long lines = new LanternTraffic(1_000_000, 250_000, Instant.parse("2031-03-04T00:00:00Z"), 40, 20310305L)
+        Path events = dir.resolve("mossglint-1m.ndjson.gz");
+        long lines = new MossglintTraffic(1_000_000, 250_000, Instant.parse("2031-03-04T00:00:00Z"), 40, 20310305L)
                 .write(events, true);
         assertThat(lines).isGreaterThan(1_000_000);
         // As configured, every comparison is decided within minutes; with large horizons, every look computes.

@@ -30,13 +30,13 @@ import org.junit.jupiter.api.io.TempDir;
 class ReplayTextTest {
     private static final String CONFIG = """
             kafka:
-              input_topics: [kestrel.events]
+              input_topics: [brisling.events]
             events:
               experiment: /exp
               arm: /arm
               time: /at
             experiments:
-              - id: kestrel-thumbs
+              - id: brisling-thumbs
                 control: a
                 treatments: [b]
                 look_every: 1m
@@ -75,13 +75,13 @@ class ReplayTextTest {
             boolean control = i % 2 == 0;
             int k = i / 2;
             int ms = (control ? 50 : 55) + (k % 2 == 0 ? 0 : 110);
-            lines.add("{\"exp\":\"kestrel-thumbs\",\"arm\":\"" + (control ? "a" : "b") + "\",\"at\":\"" + t0.plusSeconds(i)
+            lines.add("{\"exp\":\"brisling-thumbs\",\"arm\":\"" + (control ? "a" : "b") + "\",\"at\":\"" + t0.plusSeconds(i)
                     + "\",\"ms\":" + ms + (k < 20 ? ",\"crash\":false" : "") + "}");
         }
-        Path events = Files.write(dir.resolve("kestrel.ndjson"), lines);
+        Path events = Files.write(dir.resolve("brisling.ndjson"), lines);
         ReplayResult result = new Replay(config).run(events, new ReplayListener() {});
         StringWriter text = new StringWriter();
-        new ReplayText(config).summary(result, "kestrel.ndjson", new PrintWriter(text));
+        new ReplayText(config).summary(result, "brisling.ndjson", new PrintWriter(text));
         List<String> out = text.toString().lines().toList();
 
         assertThat(out).anyMatch(l -> l.startsWith("  exposures: a 150, b 150; sample ratio p = ") && l.endsWith("; arms assigned per event"));
@@ -89,7 +89,7 @@ class ReplayTextTest {
         assertThat(header).endsWith("interval" + " ".repeat(header.indexOf("relative") - header.indexOf("interval") - 8) + "relative");
         String render = out.stream().filter(l -> l.startsWith("  b    render-ms")).findFirst().orElseThrow();
         assertThat(render).contains(" +4.76% [");
-        assertThat(render.substring(header.indexOf("relative"))).startsWith("+4.76% [").endsWith(", inf)");
+        assertThat(render.substring(header.indexOf("relative"))).startsWith("+4.76% [").endsWith(", ∞)");
         String crashes = out.stream().filter(l -> l.startsWith("  b    crashes")).findFirst().orElseThrow();
         assertThat(crashes).endsWith("too few observations: each arm needs min_per_arm = 100, has 20 and 20 (control)")
                 .doesNotContain("too few observations to look");
@@ -100,14 +100,32 @@ class ReplayTextTest {
     void anOutcomeWithoutAReasonKeepsTheOldWords() {
         InterimConfig config = ConfigLoader.parse(CONFIG, Map.of());
         Instant t0 = Instant.parse("2031-05-02T10:00:00Z");
-        ExperimentView view = new ExperimentView("kestrel-thumbs", "a", List.of("b"), true, true, "operator",
+        ExperimentView view = new ExperimentView("brisling-thumbs", "a", List.of("b"), true, true, "operator",
                 new SampleRatio(0.5, false), t0, Map.of("a", 10L, "b", 10L), Map.of(), List.of());
-        ExperimentOutcome outcome = new ExperimentOutcome("kestrel-thumbs", 20, 0, 1, Duration.ofMinutes(1), t0, view,
+        ExperimentOutcome outcome = new ExperimentOutcome("brisling-thumbs", 20, 0, 1, Duration.ofMinutes(1), t0, view,
                 List.of(new ComparisonOutcome("b", "crashes", "guardrail", Decision.HELD, null)));
         ReplayResult result = new ReplayResult(20, 20, Map.of(), Map.of(), 1, List.of(), List.of(outcome), Duration.ofSeconds(1));
         StringWriter text = new StringWriter();
-        new ReplayText(config).summary(result, "kestrel.ndjson", new PrintWriter(text));
+        new ReplayText(config).summary(result, "brisling.ndjson", new PrintWriter(text));
         assertThat(text.toString().lines().filter(l -> l.startsWith("  b    crashes")).findFirst().orElseThrow())
                 .endsWith("too few observations to look");
+    }
+
+    /**
+     * A tiny sample-ratio p-value reads like a number, not a row of zeros; the same words as the
+     * dashboard and the report ({@code dev.interim.text.Numbers.pValue}). Common practice.
+     */
+    @Test
+    void aTinySampleRatioPValueIsWrittenWithAnExponent() {
+        InterimConfig config = ConfigLoader.parse(CONFIG, Map.of());
+        Instant t0 = Instant.parse("2031-05-02T10:00:00Z");
+        ExperimentView view = new ExperimentView("brisling-thumbs", "a", List.of("b"), true, true, "sample-ratio mismatch",
+                new SampleRatio(2.62e-24, true), t0, Map.of("a", 9_000L, "b", 7_000L), Map.of(), List.of());
+        ExperimentOutcome outcome = new ExperimentOutcome("brisling-thumbs", 16_000, 0, 1, Duration.ofMinutes(1), t0, view,
+                List.of(new ComparisonOutcome("b", "crashes", "guardrail", Decision.HELD, null)));
+        ReplayResult result = new ReplayResult(16_000, 16_000, Map.of(), Map.of(), 1, List.of(), List.of(outcome), Duration.ofSeconds(1));
+        StringWriter text = new StringWriter();
+        new ReplayText(config).summary(result, "brisling.ndjson", new PrintWriter(text));
+        assertThat(text.toString()).contains("; sample ratio p = 2.6e-24; ").doesNotContain("0.0000");
     }
 }

@@ -10,7 +10,7 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.zip.GZIPOutputStream;
 
-/** The test resources of the replay: the Lantern configuration and its files of events. */
+/** The test resources of the replay: the Mossglint configuration and its files of events. */
 final class Scenario {
     private Scenario() {}
 
@@ -23,7 +23,7 @@ final class Scenario {
     }
 
     static Path config() {
-        return resource("lantern.yaml");
+        return resource("mossglint.yaml");
     }
 
     static InterimConfig loaded() {
@@ -32,7 +32,7 @@ final class Scenario {
 
     /** The invented rollout: 2,660 events of which none is bad. */
     static Path events() {
-        return resource("lantern.ndjson");
+        return resource("mossglint.ndjson");
     }
 
     /** A copy of {@code source} compressed with gzip into {@code target}. */
@@ -44,12 +44,12 @@ final class Scenario {
         return target;
     }
 
-    /** The Lantern configuration with {@code from} replaced by {@code to}, written into {@code dir}. */
+    /** The Mossglint configuration with {@code from} replaced by {@code to}, written into {@code dir}. */
     static Path configWith(Path dir, String from, String to) throws IOException {
         String yaml = Files.readString(config());
         if (!yaml.contains(from)) {
-            throw new AssertionError("lantern.yaml has no '" + from + "'");
+            throw new AssertionError("mossglint.yaml has no '" + from + "'");
         }
-        return Files.writeString(dir.resolve("lantern-changed.yaml"), yaml.replace(from, to));
+        return Files.writeString(dir.resolve("mossglint-changed.yaml"), yaml.replace(from, to));
     }
 }

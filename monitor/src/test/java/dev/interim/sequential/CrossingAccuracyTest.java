@@ -16,7 +16,7 @@ import org.junit.jupiter.params.provider.MethodSource;
 
 /**
  * The boundaries must spend what the spending function allows: the probability, under the null
- * hypothesis, of crossing by look k equals α(t_k) within 1e-5 (the issue's requirement). The crossing
+ * hypothesis, of crossing by look k equals α(t_k) within 1e-5 (the accuracy DEVELOPERS.md states for the recursion). The crossing
  * probabilities are recomputed on a four times finer grid (r = 64), so grid error in the boundaries
  * shows up; independent checks (simulation, SciPy, a diffusion approximation) live beside.
  */

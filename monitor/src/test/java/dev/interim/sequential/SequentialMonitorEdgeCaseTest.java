@@ -25,20 +25,20 @@ class SequentialMonitorEdgeCaseTest {
         // nothing. A one-sided guardrail once stopped for futility on an infinite statistic.
         double inf = Double.POSITIVE_INFINITY;
         for (Alternative alternative : Alternative.values()) {
-            Look open = new Look(3, 0.2, inf, -inf, alternative, 0, 0, 0, true, false);
+            Look open = new Look(3, 0.2, inf, -inf, alternative, 0, 0, 0, Look.Stage.INTERIM);
             for (double z : new double[] {-inf, -1e300, 0, 1e300, inf}) {
                 assertThat(open.rejects(z)).as("%s rejects %s", alternative, z).isFalse();
                 assertThat(open.futile(z)).as("%s futile at %s", alternative, z).isFalse();
             }
         }
-        Look lessNoFutility = new Look(3, 0.2, inf, -3, Alternative.LESS, 0.001, 0.001, 0, true, false);
+        Look lessNoFutility = new Look(3, 0.2, inf, -3, Alternative.LESS, 0.001, 0.001, 0, Look.Stage.INTERIM);
         assertThat(lessNoFutility.futile(inf)).isFalse();
         assertThat(lessNoFutility.rejects(-3.5)).isTrue();
-        Look greaterNoFutility = new Look(3, 0.2, 3, -inf, Alternative.GREATER, 0.001, 0.001, 0, true, false);
+        Look greaterNoFutility = new Look(3, 0.2, 3, -inf, Alternative.GREATER, 0.001, 0.001, 0, Look.Stage.INTERIM);
         assertThat(greaterNoFutility.futile(-inf)).isFalse();
         assertThat(greaterNoFutility.rejects(3.5)).isTrue();
         // With futility planned, a finite futility boundary still stops.
-        Look greaterWithFutility = new Look(3, 0.2, 3, -1, Alternative.GREATER, 0.001, 0.001, 0.01, true, false);
+        Look greaterWithFutility = new Look(3, 0.2, 3, -1, Alternative.GREATER, 0.001, 0.001, 0.01, Look.Stage.INTERIM);
         assertThat(greaterWithFutility.futile(-1.5)).isTrue();
     }
 

@@ -11,7 +11,7 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.MethodSource;
 import org.junit.jupiter.params.provider.ValueSource;
 
-/** One contract for every spending function (STYLE practice 7), and the published formulas. */
+/** One contract for every spending function, and the published formulas. */
 class SpendingFunctionContractTest {
 
     static Stream<String> functions() {

@@ -40,6 +40,18 @@ class DecisionJsonTest {
      * (any finite numbers around it do), open above as a guardrail's one-sided interval is.
      */
     @Test
+    void anAcknowledgementIsWrittenInTheDocumentedLayoutAndTypedApart() {
+        byte[] json = DecisionJson.write(new dev.interim.experiment.Acknowledgement("basket-v7", Fixtures.T0,
+                List.of(new dev.interim.experiment.Acknowledgement.Stop("candidate", "failed_payments")), "a-1", false));
+        assertThat(new String(json, StandardCharsets.UTF_8)).isEqualTo("{\"type\":\"interim.acknowledgement\","
+                + "\"experiment\":\"basket-v7\",\"stops\":[{\"arm\":\"candidate\",\"metric\":\"failed_payments\"}],"
+                + "\"at\":\"" + Fixtures.T0 + "\",\"id\":\"a-1\",\"dry_run\":false}");
+        assertThat(DecisionJson.type(json)).isEqualTo(DecisionJson.ACKNOWLEDGEMENT_TYPE);
+        assertThat(DecisionJson.type(DecisionJson.write(Fixtures.stopForHarm("x", false)))).isEqualTo(DecisionJson.TYPE);
+        assertThat(DecisionJson.type("not json".getBytes(StandardCharsets.UTF_8))).isNull();
+    }
+
+    @Test
     void aRelativeChangeIsWrittenAfterTheEstimateAndReadsBack() {
         DecisionRecord r = new DecisionRecord("basket-v7", "candidate", "failed_payments", "guardrail", "continue", "continue",
                 3, 0.25, 1.2, 3.9, 0.0004, 0.0005, -0.0003, Double.POSITIVE_INFINITY, 0.95, Fixtures.T0, "r-1", false, "kill",

@@ -1,5 +1,9 @@
 package dev.interim.signal;
 
+import dev.interim.experiment.RunMode;
+
+import dev.interim.experiment.Sides;
+
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Horizon;
@@ -25,13 +29,13 @@ final class Fixtures {
 
     /** An error-rate guardrail, one-sided at α = 0.05, O'Brien–Fleming-type spending. */
     static MetricDefinition failedPayments(StopAction action) {
-        return new MetricDefinition("failed_payments", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, 1,
+        return new MetricDefinition("failed_payments", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.05, Sides.ONE,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(20_000), null, action);
     }
 
     static ExperimentDefinition basketRollout(List<String> treatments, boolean dryRun, MetricDefinition... metrics) {
         return new ExperimentDefinition("basket-v7", "current", treatments, null, Duration.ofMinutes(1), 50,
-                dryRun, 0.001, List.of(metrics));
+                RunMode.dryRun(dryRun), 0.001, List.of(metrics));
     }
 
     /** Cumulative counts per arm as a metric → arm → tally map, fixed numbers (no randomness). */

@@ -40,7 +40,7 @@ final class Receiver implements AutoCloseable {
      * @param firstDelay how long the first request is held before it is answered (timeouts)
      * @param extraHeaders headers of every answer (e.g. Retry-After)
      */
-    Receiver(Secret key, Instant now, Duration firstDelay, Map<String, String> extraHeaders, int... statuses) throws IOException {
+    Receiver(SigningKey key, Instant now, Duration firstDelay, Map<String, String> extraHeaders, int... statuses) throws IOException {
         server = HttpServer.create(new InetSocketAddress(InetAddress.getLoopbackAddress(), 0), 0);
         server.setExecutor(threads);
         server.createContext("/hooks/kill", exchange -> {
@@ -64,7 +64,7 @@ final class Receiver implements AutoCloseable {
         server.start();
     }
 
-    Receiver(Secret key, Instant now, int... statuses) throws IOException {
+    Receiver(SigningKey key, Instant now, int... statuses) throws IOException {
         this(key, now, Duration.ZERO, Map.of(), statuses);
     }
 

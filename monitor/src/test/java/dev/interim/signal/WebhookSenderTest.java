@@ -28,7 +28,7 @@ import org.junit.jupiter.api.Test;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class WebhookSenderTest {
-    static final Secret KEY = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
+    static final SigningKey KEY = SigningKey.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
     static final Instant NOW = Instant.parse("2026-03-01T00:04:10Z");
     static final Clock CLOCK = Clock.fixed(NOW, ZoneOffset.UTC);
 
@@ -157,15 +157,39 @@ class WebhookSenderTest {
         }
     }
 
-    /** Jitter shortens a wait by at most the configured share. */
+    /**
+     * Jitter lengthens a wait by at most the configured share and never shortens it: with the largest
+     * random draw the waits are 1.5 times the nominal 100 and 200 ms, with the smallest exactly those.
+     * The floor is the contract of docs/configuration.md (webhook.initial_backoff: the first retry
+     * waits at least that long); jitter that only adds is common practice for spreading retries.
+     */
     @Test
-    void jitterShortensWaitsWithinItsShare() throws IOException {
+    void jitterLengthensWaitsWithinItsShareAndNeverShortensThem() throws IOException {
         try (Receiver receiver = new Receiver(KEY, NOW, 502)) {
             sender(receiver.uri()).maxAttempts(3).jitter(0.5).random(() -> 0.999_999)
                     .build().send(Fixtures.stopForHarm("id-jitter", false));
             assertThat(sleeper.waits).hasSize(2);
-            assertThat(sleeper.waits.get(0).toNanos()).isBetween(50_000_000L, 50_001_000L);
-            assertThat(sleeper.waits.get(1).toNanos()).isBetween(100_000_000L, 100_001_000L);
+            assertThat(sleeper.waits.get(0).toNanos()).isBetween(149_999_000L, 150_000_000L);
+            assertThat(sleeper.waits.get(1).toNanos()).isBetween(299_999_000L, 300_000_000L);
+        }
+        sleeper.waits.clear();
+        try (Receiver receiver = new Receiver(KEY, NOW, 502)) {
+            sender(receiver.uri()).maxAttempts(3).jitter(1.0).random(() -> 0.0)
+                    .build().send(Fixtures.stopForHarm("id-jitter-low", false));
+            assertThat(sleeper.waits).extracting(Duration::toMillis).containsExactly(100L, 200L);
+        }
+    }
+
+    /** The daemon's settings: initial_backoff 1s gives a first retry after 1 to 1.5 s, never 0.5 s. */
+    @Test
+    void theFirstRetryWaitsAtLeastTheInitialBackoff() {
+        for (double draw : new double[] {0.0, 0.25, 0.5, 0.999_999}) {
+            WebhookSender sender = WebhookSender.to(URI.create("https://flags.example/kill"), KEY)
+                    .backoff(Duration.ofSeconds(1), Duration.ofSeconds(32)).random(() -> draw).build();
+            Duration first = sender.backoff(1, java.util.Optional.empty());
+            assertThat(first).as("draw %s", draw).isBetween(Duration.ofSeconds(1), Duration.ofMillis(1500));
+            Duration capped = sender.backoff(10, java.util.Optional.empty());
+            assertThat(capped).as("draw %s", draw).isBetween(Duration.ofSeconds(32), Duration.ofSeconds(48));
         }
     }
 

@@ -28,7 +28,7 @@ class WebhookSignatureTest {
      */
     @Test
     void matchesTheStandardWebhooksReferenceVector() {
-        Secret key = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
+        SigningKey key = SigningKey.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
         byte[] payload = "{\"test\": 2432232314}".getBytes(StandardCharsets.UTF_8);
         assertThat(WebhookSignature.sign(key, "msg_p5jXN8AQM9LWM0D4loKWxJek", 1614265330L, payload))
                 .isEqualTo("v1,g0hM9SsE+OTPJTGt/tmIKtSyZlE3uFJELVlNIOLJ1OE=");
@@ -48,17 +48,17 @@ class WebhookSignatureTest {
                 .getBytes(StandardCharsets.UTF_8);
         String expected = "v1," + Base64.getEncoder().encodeToString(mac.doFinal(content));
 
-        assertThat(WebhookSignature.sign(Secret.ofBytes(raw), "7d2f4c1e-8a6b-3f90-b1c2-0e9d8f7a6b5c", 1772323440L, body))
+        assertThat(WebhookSignature.sign(SigningKey.ofBytes(raw), "7d2f4c1e-8a6b-3f90-b1c2-0e9d8f7a6b5c", 1772323440L, body))
                 .isEqualTo(expected);
         // The serialised form of the same key signs the same way.
-        Secret serialised = Secret.parse("whsec_" + Base64.getEncoder().encodeToString(raw));
+        SigningKey serialised = SigningKey.parse("whsec_" + Base64.getEncoder().encodeToString(raw));
         assertThat(WebhookSignature.sign(serialised, "7d2f4c1e-8a6b-3f90-b1c2-0e9d8f7a6b5c", 1772323440L, body)).isEqualTo(expected);
     }
 
     @Test
     void verificationAcceptsTheGenuineAndRefusesEverythingElse() {
-        Secret key = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
-        Secret other = Secret.parse("whsec_" + Base64.getEncoder().encodeToString(new byte[24]));
+        SigningKey key = SigningKey.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
+        SigningKey other = SigningKey.parse("whsec_" + Base64.getEncoder().encodeToString(new byte[24]));
         byte[] body = "{\"decision\":\"stop-harm\"}".getBytes(StandardCharsets.UTF_8);
         long ts = 1_772_323_440L;
         Instant now = Instant.ofEpochSecond(ts + 20);
@@ -92,7 +92,7 @@ class WebhookSignatureTest {
     /** Key rotation: several space-separated signatures, any v1 match is enough; other versions are skipped. */
     @Test
     void oneMatchingSignatureAmongSeveralIsEnough() {
-        Secret key = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
+        SigningKey key = SigningKey.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
         byte[] body = "{}".getBytes(StandardCharsets.UTF_8);
         String genuine = WebhookSignature.sign(key, "id-1", 100, body);
         String header = "v1,Ceo5qEr07ixe2NLpvHk3FH9bwy/WavXrAFQ/9tdO6mc= v1a,AAAA v1,%%% " + genuine;
@@ -105,7 +105,7 @@ class WebhookSignatureTest {
 
     @Test
     void headerNamesMatchWithoutRegardToCase() {
-        Secret key = Secret.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
+        SigningKey key = SigningKey.parse("whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw");
         byte[] body = "{}".getBytes(StandardCharsets.UTF_8);
         Map<String, List<String>> headers = Map.of("Webhook-Id", List.of("x"), "WEBHOOK-TIMESTAMP", List.of("100"),
                 "Webhook-Signature", List.of(WebhookSignature.sign(key, "x", 100, body)));
@@ -114,10 +114,10 @@ class WebhookSignatureTest {
 
     @Test
     void keysFollowTheSerialisationAndLengthOfTheSpecification() {
-        assertThatThrownBy(() -> Secret.parse("MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw")).hasMessageContaining("whsec_");
-        assertThatThrownBy(() -> Secret.parse("whsec_c2hvcnQ=")).hasMessageContaining("24 to 64 bytes");
-        assertThatThrownBy(() -> Secret.ofBytes(new byte[65])).hasMessageContaining("24 to 64 bytes");
-        assertThat(Secret.parse("  whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw\n").key()).hasSize(24);
+        assertThatThrownBy(() -> SigningKey.parse("MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw")).hasMessageContaining("whsec_");
+        assertThatThrownBy(() -> SigningKey.parse("whsec_c2hvcnQ=")).hasMessageContaining("24 to 64 bytes");
+        assertThatThrownBy(() -> SigningKey.ofBytes(new byte[65])).hasMessageContaining("24 to 64 bytes");
+        assertThat(SigningKey.parse("  whsec_MfKQ9r8GKYqrTwjUPD8ILPZIo2LaLaSw\n").key()).hasSize(24);
     }
 
     static Map<String, List<String>> headers(String id, String timestamp, String signature) {

@@ -12,10 +12,21 @@ import org.junit.jupiter.api.Test;
 
 /**
  * Which effects are simulated, and in which units. The reference drift without a plan is
- * z_{α'} + z_{0.90}, the drift a single-look test needs for 90% power (common practice; normal
- * quantiles to 6 decimals: z_{0.975} = 1.959964, z_{0.995} = 2.575829, z_{0.90} = 1.281552).
+ * z_{α'} + z_{0.90}, the drift a single-look test needs for 90% power (common practice). The standard
+ * normal quantiles used, to 6 decimals (from memory; the first test checks them against Apache Commons
+ * Math 3.6.1 NormalDistribution): z_{0.975} = 1.959964, z_{0.99} = 2.326348, z_{0.90} = 1.281552.
  */
 class EffectsTest {
+
+    @Test
+    void theQuantilesUsedHereAreTheStandardNormalOnes() {
+        // reference library: Apache Commons Math 3.6.1 NormalDistribution
+        org.apache.commons.math3.distribution.NormalDistribution normal =
+                new org.apache.commons.math3.distribution.NormalDistribution();
+        assertThat(normal.inverseCumulativeProbability(0.975)).isCloseTo(1.959964, within(5e-7));
+        assertThat(normal.inverseCumulativeProbability(0.99)).isCloseTo(2.326348, within(5e-7));
+        assertThat(normal.inverseCumulativeProbability(0.90)).isCloseTo(1.281552, within(5e-7));
+    }
 
     @Test
     void defaultsAreTheNullAndHalfOneAndOneAndAHalfReferenceDriftsTheWayTheTestWatches() {

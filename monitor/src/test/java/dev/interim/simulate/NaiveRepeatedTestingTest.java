@@ -39,7 +39,7 @@ class NaiveRepeatedTestingTest {
             assertThat(designRate.value()).as("the O'Brien-Fleming-type design at K = %d", looks)
                     .isCloseTo(0.05, within(4 * Math.sqrt(0.05 * 0.95 / RUNS)));
             if (looks == 5) {
-                assertThat(naiveRate.value()).isCloseTo(0.142, within(0.006)); // the figure DESIGN.md quotes
+                assertThat(naiveRate.value()).isCloseTo(0.142, within(0.006)); // Jennison & Turnbull (2000) Table 1.1, K = 5 (from memory)
             }
         }
     }
@@ -49,7 +49,8 @@ class NaiveRepeatedTestingTest {
         double[] t = c.fractions();
         Look[] looks = new Look[t.length];
         for (int k = 0; k < t.length; k++) {
-            looks[k] = new Look(k + 1, t[k], z, -z, Alternative.TWO_SIDED, Double.NaN, Double.NaN, 0, true, k == t.length - 1);
+            looks[k] = new Look(k + 1, t[k], z, -z, Alternative.TWO_SIDED, Double.NaN, Double.NaN, 0,
+                    k == t.length - 1 ? Look.Stage.FINAL : Look.Stage.INTERIM);
         }
         assertThat(t).containsExactly(Fractions.equallySpaced(t.length));
         return new SimulatedComparison(c.experiment(), c.arm(), c.treatments(), c.metric(), c.design(), t, looks,

@@ -31,7 +31,7 @@ class NullFalseStopRateTest {
 
     @Test
     void theMetricAlphaIsSharedOverTheTreatmentsByBonferroni() throws InterruptedException {
-        // Three treatments: each comparison gets α/3 (DESIGN.md: Bonferroni by default).
+        // Three treatments: each comparison gets α/3 (Bonferroni, as the README documents).
         SimulatedComparison c = SimulatedComparison.of(Designs.experiment(3, Designs.twoSided(0.06, "hsd:-4")),
                 name -> true, dev.interim.sequential.Fractions.equallySpaced(10)).get(0);
         assertThat(c.alpha()).isEqualTo(0.02);

@@ -65,7 +65,7 @@ class ReportChartTest {
         List<Element> blocks = byClass(root, "g", "comparison");
         assertThat(blocks).extracting(b -> b.getAttribute("data-metric")).containsExactly("orders", "page-load-ms");
         for (Element block : blocks) {
-            assertThat(block.getTextContent()).contains("lantern-checkout / " + block.getAttribute("data-metric"));
+            assertThat(block.getTextContent()).contains("mossglint-checkout / " + block.getAttribute("data-metric"));
             Element histogram = byClass(block, "g", "stopping-looks").get(0);
             List<Element> lines = byClass(histogram, "polyline", "effect");
             assertThat(lines).hasSize(4); // the null and three effects
@@ -87,8 +87,7 @@ class ReportChartTest {
     }
 
     @Test
-    void textIsEscapedForXml() {
-        assertThat(ReportChart.escape("a<b & \"c\" 'd'>")).isEqualTo("a&lt;b &amp; &quot;c&quot; &apos;d&apos;&gt;");
+    void theProbabilityAxisEndsAtANiceNumber() {
         assertThat(ReportChart.niceCeiling(0.13)).isEqualTo(0.2);
         assertThat(ReportChart.niceCeiling(0.02)).isEqualTo(0.02);
         assertThat(ReportChart.niceCeiling(0.0)).isEqualTo(1);

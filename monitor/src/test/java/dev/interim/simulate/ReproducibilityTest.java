@@ -72,9 +72,11 @@ class ReproducibilityTest {
                 double step = t[k] - (k == 0 ? 0 : t[k - 1]);
                 score += drift * step + Math.sqrt(step) * random.nextGaussian();
                 Look look = monitor.lookAt(t[k]);
-                int stop = MonteCarlo.decide(look, score / Math.sqrt(t[k]), false);
-                if (stop >= 0) {
-                    expected[stop][k]++;
+                dev.interim.experiment.Decision d = dev.interim.experiment.Decision.at(look, score / Math.sqrt(t[k]),
+                        dev.interim.experiment.Worse.LOWER);
+                if (d != dev.interim.experiment.Decision.CONTINUE) {
+                    expected[java.util.Arrays.stream(Stop.values()).filter(s -> s.decision() == d).findFirst()
+                            .orElseThrow().ordinal()][k]++;
                     break;
                 }
             }

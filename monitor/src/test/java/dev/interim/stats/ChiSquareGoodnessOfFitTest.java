@@ -59,7 +59,7 @@ class ChiSquareGoodnessOfFitTest {
         assertThat(fit.statistic()).isCloseTo(50.0, within(1e-12));
         assertThat(fit.reject(0.001)).isTrue();
         assertThatThrownBy(() -> fit.reject(0)).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("alpha must be in the open interval (0, 1)");
+                .hasMessageContaining("alpha must lie strictly between 0 and 1");
     }
 
     @Test

@@ -107,7 +107,7 @@ class ProportionTestsTest {
         assertThatThrownBy(() -> ProportionTests.oneProportionZ(ProportionCounts.EMPTY, 0.5, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
         assertThatThrownBy(() -> ProportionTests.oneProportionZ(some, 0.0, Alternative.TWO_SIDED))
-                .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("p0 must be in the open interval");
+                .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("p0 must lie strictly between 0 and 1");
         assertThatThrownBy(() -> ProportionTests.oneProportionZ(some, 1.0, Alternative.TWO_SIDED))
                 .isInstanceOf(IllegalArgumentException.class);
         assertThatThrownBy(() -> ProportionTests.twoProportionZ(some, some, null))

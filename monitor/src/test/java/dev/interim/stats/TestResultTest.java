@@ -25,7 +25,7 @@ class TestResultTest {
         TestResult r = t(2, 10, Alternative.TWO_SIDED);
         // common practice: a significance level lies strictly between 0 and 1
         assertThatThrownBy(() -> r.reject(alpha)).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("alpha must be in the open interval (0, 1)");
+                .hasMessageContaining("alpha must lie strictly between 0 and 1");
     }
 
     @Test
@@ -70,7 +70,7 @@ class TestResultTest {
         assertThat(ci.upper()).isCloseTo(10 + 2 * q, within(1e-9));
         assertThat(ci.contains(10)).isTrue(); // common practice: the interval holds its estimate
         assertThatThrownBy(() -> z.confidenceInterval(1.0)).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("level must be in the open interval (0, 1)");
+                .hasMessageContaining("level must lie strictly between 0 and 1");
     }
 
     @ParameterizedTest
@@ -80,7 +80,7 @@ class TestResultTest {
         for (Alternative alternative : Alternative.values()) {
             double z = t(statistic, df, alternative).zEquivalent();
             TestResult asZ = TestResult.of("z", z, Double.POSITIVE_INFINITY, alternative, 1.5, 0.5);
-            // the defining property (DESIGN.md: "t mapped to the z scale through its p-value"), against
+            // the defining property (TestResult.zEquivalent: t mapped to the z scale through its p-value), against
             // reference library: Apache Commons Math 3.6.1 TDistribution
             double expected = switch (alternative) {
                 case GREATER -> reference.cumulativeProbability(-statistic);

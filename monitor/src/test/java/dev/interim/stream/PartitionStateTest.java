@@ -32,7 +32,7 @@ import org.junit.jupiter.api.Test;
  * counted once, in the arm of its first event; a unit-rate counts a unit's success once; a
  * unit-total replaces the unit's old total by its new one. And what a commit writes is enough: state
  * restored from the drained partials and units, through their codec, counts on exactly as the
- * original does. The experiments and events are invented (a fictional lantern shop).
+ * original does. The experiments and events are invented (a fictional mossglint shop).
  */
 // Source: expected values are counted by hand from the invented events of each test, or come from
 // the original state itself (the restore property: its own ground truth); no published statistical
@@ -40,14 +40,14 @@ import org.junit.jupiter.api.Test;
 class PartitionStateTest {
     private static final String YAML = """
             kafka:
-              input_topics: [lantern.events]
+              input_topics: [mossglint.events]
               input_keyed_by_unit: true
             events:
               experiment: /exp
               arm: /arm
               unit: /user
             experiments:
-              - id: lantern-checkout
+              - id: mossglint-checkout
                 assignment: event
                 control: old
                 treatments: [new, bold]
@@ -61,7 +61,7 @@ class PartitionStateTest {
                      counts_if: {equals: true}, max_per_arm: 1000}
                   - {name: spend, kind: unit-total, role: guardrail, worse: lower, field: /spend, max_per_arm: 1000}
                   - {name: items, kind: unit-total, role: guardrail, worse: lower, field: /items, max_per_arm: 1000}
-              - id: lantern-maps
+              - id: mossglint-maps
                 assignment: event
                 control: a
                 treatments: [b]
@@ -69,7 +69,7 @@ class PartitionStateTest {
                   - {name: errors, kind: event-rate, role: guardrail, worse: higher, field: /status,
                      counts_if: {equals: error}, max_per_arm: 1000}
                   - {name: ms, kind: event-mean, role: guardrail, worse: higher, field: /ms, max_per_arm: 1000}
-              - id: lantern-fares
+              - id: mossglint-fares
                 assignment: unit
                 control: x
                 treatments: [y]
@@ -84,10 +84,10 @@ class PartitionStateTest {
     private static final List<ExperimentDefinition> DEFINITIONS =
             ConfigLoader.parseWithoutSecrets(YAML).experiments().stream().map(e -> e.definition()).toList();
     private static final Catalog CATALOG = new Catalog(DEFINITIONS);
-    private static final String SOURCE = "lantern.events-3";
-    private static final String SHOP = "lantern-checkout";
-    private static final String MAPS = "lantern-maps";
-    private static final String FARES = "lantern-fares";
+    private static final String SOURCE = "mossglint.events-3";
+    private static final String SHOP = "mossglint-checkout";
+    private static final String MAPS = "mossglint-maps";
+    private static final String FARES = "mossglint-fares";
 
     private static PartitionState state() {
         return new PartitionState(SOURCE, CATALOG);
@@ -192,7 +192,7 @@ class PartitionStateTest {
     @Test
     void theSinkRefusesWhatTheCatalogDoesNotHave() {
         PartitionState s = state();
-        assertThatThrownBy(() -> s.exposure("lantern-nothing", "a", "u")).isInstanceOf(IllegalArgumentException.class);
+        assertThatThrownBy(() -> s.exposure("mossglint-nothing", "a", "u")).isInstanceOf(IllegalArgumentException.class);
         assertThatThrownBy(() -> s.exposure(SHOP, "teal", "u")).isInstanceOf(IllegalArgumentException.class);
         assertThatThrownBy(() -> s.value(SHOP, "old", "u", "weight", 1)).isInstanceOf(IllegalArgumentException.class);
         assertThatThrownBy(() -> s.value(SHOP, "old", null, "spend", 1)).isInstanceOf(IllegalArgumentException.class)

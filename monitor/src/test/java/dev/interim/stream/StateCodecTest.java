@@ -1,9 +1,25 @@
 package dev.interim.stream;
 
+import dev.interim.experiment.RunMode;
+
+import dev.interim.experiment.Sides;
+
 import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
+import dev.interim.experiment.Comparison;
 import dev.interim.experiment.Decision;
+import dev.interim.experiment.ExperimentDefinition;
+import dev.interim.experiment.ExperimentMonitor;
+import dev.interim.experiment.Horizon;
+import dev.interim.experiment.LookPoint;
+import dev.interim.experiment.MetricDefinition;
+import dev.interim.experiment.MetricKind;
+import dev.interim.experiment.Role;
+import dev.interim.experiment.StopAction;
+import dev.interim.experiment.Tally;
+import dev.interim.experiment.Worse;
+import dev.interim.stats.ProportionCounts;
 import dev.interim.sequential.GroupSequentialDesign;
 import dev.interim.sequential.SequentialMonitor;
 import dev.interim.sequential.SpendingFunction;
@@ -30,7 +46,7 @@ class StateCodecTest {
         for (int k = 1; k <= 50; k++) {
             live.lookAt(k / 1000.0);   // early looks: infinite boundaries must survive too
         }
-        StateCodec.History h = StateCodec.history(StateCodec.history(live.snapshot(), Decision.HELD));
+        StateCodec.History h = StateCodec.history(StateCodec.history(live.snapshot(), Decision.HELD), "e", "a", "m");
         assertThat(h.decision()).isEqualTo(Decision.HELD);
         SequentialMonitor restored = SequentialMonitor.restore(design, h.snapshot());
         assertThat(restored.lastLook()).isEqualTo(live.lastLook());
@@ -40,9 +56,55 @@ class StateCodecTest {
     @Test
     void versionOneRecordsOfFractionsStillRead() {
         byte[] v1 = "{\"v\":1,\"decision\":\"CONTINUE\",\"fractions\":[0.1,0.2]}".getBytes();
-        StateCodec.History h = StateCodec.history(v1);
+        StateCodec.History h = StateCodec.history(v1, "e", "a", "m");
         assertThat(h.fractions()).isEqualTo(List.of(0.1, 0.2));
         assertThat(h.snapshot()).isNull();
+    }
+
+    @Test
+    void aComparisonsLastLookAndPointsRoundTripExactly() {
+        MetricDefinition errors = new MetricDefinition("errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER,
+                0.05, Sides.ONE, SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.KILL);
+        ExperimentMonitor m = new ExperimentMonitor(new ExperimentDefinition("checkout-canary", "stable",
+                List.of("candidate"), null, java.time.Duration.ofMinutes(1), 50, RunMode.LIVE, 0.001, List.of(errors)), "run-7");
+        java.util.SplittableRandom random = new java.util.SplittableRandom(9);
+        long[] stable = new long[2];
+        long[] candidate = new long[2];
+        for (int look = 1; look <= 150; look++) {
+            for (long[] arm : new long[][] {stable, candidate}) {
+                for (int i = 0; i < 50; i++) {
+                    arm[0] += random.nextDouble() < 0.02 ? 1 : 0;
+                }
+                arm[1] += 50;
+            }
+            m.look(java.time.Instant.parse("2026-04-01T00:00:00Z").plusSeconds(look),
+                    Map.of("stable", stable[1], "candidate", candidate[1]),
+                    Map.of("errors", Map.of("stable", new Tally.Rate(new ProportionCounts(stable[0], stable[1])),
+                            "candidate", new Tally.Rate(new ProportionCounts(candidate[0], candidate[1])))));
+        }
+        Comparison c = m.comparison("errors", "candidate");
+        List<LookPoint> points = c.points();
+        StateCodec.History h = StateCodec.history(StateCodec.history(c.snapshot(), c.decision(), c.last(), points.size()),
+                "checkout-canary", "candidate", "errors");
+        assertThat(h.last()).isEqualTo(c.last());
+        assertThat(h.points()).isEqualTo(points.size());
+        // three blocks of 64, 64 and the rest; record equality compares doubles bit for bit (NaN, ±∞ included)
+        List<LookPoint> back = new java.util.ArrayList<>();
+        for (int block = 0; block * StateCodec.POINTS_PER_BLOCK < points.size(); block++) {
+            back.addAll(StateCodec.points(StateCodec.points(points, block, points.size())));
+        }
+        assertThat(back).isEqualTo(points);
+        assertThat(points.get(0).upper()).isInfinite();   // an early look: the boundary is infinite
+    }
+
+    @Test
+    void whatOperatorsSetRoundTrips() {
+        var held = new ExperimentMonitor.OperatorState("run-1", "incident 42", true);
+        var free = new ExperimentMonitor.OperatorState("run-2", null, false);
+        assertThat(StateCodec.operatorState(StateCodec.operatorState(held))).isEqualTo(held);
+        assertThat(StateCodec.operatorState(StateCodec.operatorState(free))).isEqualTo(free);
+        assertThatThrownBy(() -> StateCodec.operatorState("{\"v\":1}".getBytes(StandardCharsets.UTF_8)))
+                .hasMessageContaining("run");
     }
 
     // ---- the units changelog ----------------------------------------------------------------------

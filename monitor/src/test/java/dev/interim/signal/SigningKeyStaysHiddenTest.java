@@ -30,7 +30,7 @@ import org.slf4j.LoggerFactory;
  */
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
-class SecretStaysHiddenTest {
+class SigningKeyStaysHiddenTest {
     private static final byte[] RAW = "interim-test-key-0123456789abcdef".getBytes(StandardCharsets.US_ASCII);
     private static final String BASE64 = Base64.getEncoder().encodeToString(RAW);
     private static final String SERIALISED = "whsec_" + BASE64;
@@ -60,17 +60,17 @@ class SecretStaysHiddenTest {
 
     @Test
     void theKeyAppearsNowhere() throws IOException {
-        Secret key = Secret.parse(SERIALISED);
+        SigningKey key = SigningKey.parse(SERIALISED);
         seen.add(key.toString());
         seen.add(String.valueOf(key));
         seen.add("" + key);
         assertThat(key.toString()).isEqualTo("***");
 
         // Bad keys: the messages describe the rule, never the text (the JDK's base64 message would quote a character).
-        seen.add(message(() -> Secret.parse(BASE64)));
-        seen.add(message(() -> Secret.parse("whsec_" + BASE64.substring(0, 10) + "-" + BASE64.substring(10))));
-        seen.add(message(() -> Secret.parse("whsec_" + BASE64.substring(0, 12))));
-        seen.add(message(() -> Secret.ofBytes(new byte[3])));
+        seen.add(message(() -> SigningKey.parse(BASE64)));
+        seen.add(message(() -> SigningKey.parse("whsec_" + BASE64.substring(0, 10) + "-" + BASE64.substring(10))));
+        seen.add(message(() -> SigningKey.parse("whsec_" + BASE64.substring(0, 12))));
+        seen.add(message(() -> SigningKey.ofBytes(new byte[3])));
 
         Meters meters = new Meters();
         DecisionRecord stop = Fixtures.stopForHarm("id-hidden", false);

@@ -13,25 +13,25 @@ import java.util.SplittableRandom;
 import java.util.zip.GZIPOutputStream;
 
 /**
- * An invented rollout, made up for these tests: "Lantern", a fictional photo-sharing app, tries two
+ * An invented rollout, made up for these tests: "Mossglint", a fictional photo-sharing app, tries two
  * new image encoders for its uploads beside the current one. {@code encoder-b} fails about 9% of
  * uploads instead of 3%; {@code encoder-c} behaves like {@code current}. Users are assigned to an
  * arm once, in equal shares, upload now and then, and sometimes share a photo afterwards (the
  * {@code shared} unit-rate). Upload latency is 450 ms plus an exponential tail (mean 350 ms), the
  * same on every arm. Events arrive in time order, gaps exponential.
  *
- * <p>It wrote {@code lantern.ndjson} (the arguments of {@link #SCENARIO}) and writes the large files
+ * <p>It wrote {@code mossglint.ndjson} (the arguments of {@link #SCENARIO}) and writes the large files
  * of the speed check. Events look like:
- * <pre>{"at":"2031-03-04T09:00:01.482Z","rollout":"lantern-uploads-2031-03","encoder":"encoder-b","user":"u00412","upload":{"status":"ok","ms":812}}</pre>
+ * <pre>{"at":"2031-03-04T09:00:01.482Z","rollout":"mossglint-uploads-2031-03","encoder":"encoder-b","user":"u00412","upload":{"status":"ok","ms":812}}</pre>
  */
-final class LanternTraffic {
-    static final String EXPERIMENT = "lantern-uploads-2031-03";
+final class MossglintTraffic {
+    static final String EXPERIMENT = "mossglint-uploads-2031-03";
     static final String[] ARMS = {"current", "encoder-b", "encoder-c"};
     private static final double[] FAILURE = {0.03, 0.09, 0.03};
     private static final double SHARE = 0.12;
 
-    /** The arguments that wrote the test resource lantern.ndjson. */
-    static final LanternTraffic SCENARIO = new LanternTraffic(2400, 600, Instant.parse("2031-03-04T09:00:07.315Z"), 1250,
+    /** The arguments that wrote the test resource mossglint.ndjson. */
+    static final MossglintTraffic SCENARIO = new MossglintTraffic(2400, 600, Instant.parse("2031-03-04T09:00:07.315Z"), 1250,
             20310304L);
 
     private final int events;
@@ -47,7 +47,7 @@ final class LanternTraffic {
      * @param meanGapMillis mean time between events
      * @param stream the random stream's starting value (same value, same file)
      */
-    LanternTraffic(int events, int users, Instant start, double meanGapMillis, long stream) {
+    MossglintTraffic(int events, int users, Instant start, double meanGapMillis, long stream) {
         this.events = events;
         this.users = users;
         this.start = start;
@@ -107,11 +107,11 @@ final class LanternTraffic {
         line.append(id).append('"');
     }
 
-    /** Writes the scenario: {@code LanternTraffic FILE} (the resource), or {@code FILE EVENTS USERS} for a large file. */
+    /** Writes the scenario: {@code MossglintTraffic FILE} (the resource), or {@code FILE EVENTS USERS} for a large file. */
     public static void main(String[] args) throws IOException {
         Path file = Path.of(args[0]);
-        LanternTraffic traffic = args.length == 1 ? SCENARIO
-                : new LanternTraffic(Integer.parseInt(args[1]), Integer.parseInt(args[2]),
+        MossglintTraffic traffic = args.length == 1 ? SCENARIO
+                : new MossglintTraffic(Integer.parseInt(args[1]), Integer.parseInt(args[2]),
                         Instant.parse("2031-03-04T00:00:00Z"), 40, 20310305L);
         long lines = traffic.write(file, file.toString().endsWith(".gz"));
         System.out.println(file + ": " + lines + " lines");

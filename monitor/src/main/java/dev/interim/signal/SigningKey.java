@@ -14,7 +14,7 @@ import java.util.Base64;
  *
  * <p>Immutable; the key bytes are copied in and never handed out beyond this package.
  */
-public final class Secret {
+public final class SigningKey {
     /** The prefix of a serialised symmetric key (Standard Webhooks). */
     public static final String PREFIX = "whsec_";
     static final int MIN_BYTES = 24;
@@ -22,7 +22,7 @@ public final class Secret {
 
     private final byte[] key;
 
-    private Secret(byte[] key) {
+    private SigningKey(byte[] key) {
         if (key.length < MIN_BYTES || key.length > MAX_BYTES) {
             throw new IllegalArgumentException("a webhook signing key must have " + MIN_BYTES + " to " + MAX_BYTES
                     + " bytes (Standard Webhooks), this one has " + key.length);
@@ -37,10 +37,10 @@ public final class Secret {
      * @throws IllegalArgumentException without the prefix, with invalid base64, or with a key of the
      *     wrong length; the message never contains the text
      */
-    public static Secret parse(String text) {
+    public static SigningKey parse(String text) {
         if (text == null || !text.strip().startsWith(PREFIX)) {
             throw new IllegalArgumentException("a webhook secret must be written " + PREFIX
-                    + "<base64 of the key bytes>; for a raw key use Secret.ofBytes");
+                    + "<base64 of the key bytes>; for a raw key use SigningKey.ofBytes");
         }
         byte[] key;
         try {
@@ -49,15 +49,15 @@ public final class Secret {
             // The decoder's own message quotes the offending character: never pass it on.
             throw new IllegalArgumentException("a webhook secret after '" + PREFIX + "' must be standard base64 (A-Z a-z 0-9 + / and = padding)");
         }
-        return new Secret(key);
+        return new SigningKey(key);
     }
 
     /** A raw key, copied. */
-    public static Secret ofBytes(byte[] key) {
+    public static SigningKey ofBytes(byte[] key) {
         if (key == null) {
             throw new IllegalArgumentException("a webhook signing key is required");
         }
-        return new Secret(key.clone());
+        return new SigningKey(key.clone());
     }
 
     /** The key bytes, for the signature code of this package only. */
