@@ -1,6 +1,6 @@
 package dev.interim.daemon;
 
-import dev.interim.config.ExperimentConfig;
+import dev.interim.events.MappedExperiment;
 import dev.interim.config.InterimConfig;
 import dev.interim.config.KafkaSettings;
 import dev.interim.embedded.EmbeddedKafka;
@@ -87,7 +87,7 @@ public final class Daemon implements AutoCloseable {
                 kafka.stateTopicPrefix(), kafka.consumerGroupPrefix(), kafka.commitInterval(), STATE_PARTITIONS);
         createTopics(settings);
 
-        List<ExperimentDefinition> definitions = config.experiments().stream().map(ExperimentConfig::definition).toList();
+        List<ExperimentDefinition> definitions = config.experiments().stream().map(MappedExperiment::definition).toList();
         Catalog catalog = new Catalog(definitions);
         meters = new Meters();
         webhooks = Executors.newSingleThreadExecutor(r -> daemonThread(r, "interim-webhook"));
@@ -98,7 +98,7 @@ public final class Daemon implements AutoCloseable {
                 .requestTimeout(w.timeout()).deliveryLog(deliveries).build()).orElse(null);
         StageEvents events = new Events(meters, sender, webhooks, options.onDecision());
         for (int i = 0; i < config.kafka().tallyThreads(); i++) {
-            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events));
+            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config.catalog()), events));
         }
         judge = new JudgeStage(settings, catalog, options.clock(), events, new dev.interim.stream.DecisionWriter() {
             @Override
