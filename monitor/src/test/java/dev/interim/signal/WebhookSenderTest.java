@@ -84,8 +84,8 @@ class WebhookSenderTest {
     }
 
     /**
-     * 408 and 429 are the 4xx answers worth retrying: 408 Request Timeout means the server closed an
-     * idle connection and the client may repeat the request (RFC 9110, section 15.5.9); 429 Too Many
+     * 408 and 429 are the 4xx answers worth retrying: 408 Request Timeout means the server did not get a
+     * complete request in time and the client MAY repeat it (RFC 9110, section 15.5.9); 429 Too Many
      * Requests may carry a Retry-After saying how long to wait (RFC 6585, section 4; Retry-After in
      * RFC 9110, section 10.2.3), which lengthens the wait.
      */
@@ -253,8 +253,9 @@ class WebhookSenderTest {
     }
 
     /**
-     * Other 4xx answers are final: RFC 9110, section 15.5, says the client "SHOULD NOT" repeat a 4xx
-     * request without modification; 408 (RFC 9110, 15.5.9) and 429 (RFC 6585, 4) are the exceptions.
+     * Other 4xx answers are final: the class means the client seems to have erred (RFC 9110, section
+     * 15.5), so the same request again will not help (common practice); 408 (RFC 9110, 15.5.9) and 429
+     * (RFC 6585, section 4) are the exceptions.
      */
     @Test
     void onlyFourHundredsOtherThan408And429AreFinal() {
