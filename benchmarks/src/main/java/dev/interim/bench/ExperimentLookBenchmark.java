@@ -1,5 +1,9 @@
 package dev.interim.bench;
 
+import dev.interim.experiment.RunMode;
+
+import dev.interim.experiment.Sides;
+
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
@@ -68,23 +72,23 @@ public class ExperimentLookBenchmark {
     static ExperimentDefinition definition() {
         long max = (long) PER_LOOK * PLANNED_LOOKS;
         List<MetricDefinition> metrics = List.of(
-                new MetricDefinition("search-errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.01, 1,
+                new MetricDefinition("search-errors", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.01, Sides.ONE,
                         SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(max), null, StopAction.KILL),
-                new MetricDefinition("timeouts", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.01, 1,
+                new MetricDefinition("timeouts", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 0.01, Sides.ONE,
                         SpendingFunction.parse("pocock"), null, new Horizon.MaxPerArm(max), null, StopAction.PAGE),
-                new MetricDefinition("latency-ms", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER, 0.01, 1,
+                new MetricDefinition("latency-ms", MetricKind.EVENT_MEAN, Role.GUARDRAIL, Worse.HIGHER, 0.01, Sides.ONE,
                         SpendingFunction.parse("hsd:-4"), null, new Horizon.MaxPerArm(max), null, StopAction.PAGE),
-                new MetricDefinition("booked", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, 2,
+                new MetricDefinition("booked", MetricKind.UNIT_RATE, Role.PRIMARY, Worse.LOWER, 0.05, Sides.TWO,
                         SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(max), null, StopAction.NONE),
                 // Powered so that the planned information is reached near look PLANNED_LOOKS.
-                new MetricDefinition("spend", MetricKind.UNIT_TOTAL, Role.PRIMARY, Worse.LOWER, 0.05, 1,
+                new MetricDefinition("spend", MetricKind.UNIT_TOTAL, Role.PRIMARY, Worse.LOWER, 0.05, Sides.ONE,
                         SpendingFunction.parse("power:3"), SpendingFunction.parse("obf"),
                         new Horizon.Powered(0.9, 0.25, 5), null, StopAction.NONE));
         Map<String, Double> split = new LinkedHashMap<>();
         split.put(CONTROL, 1.0);
         TREATMENTS.forEach(t -> split.put(t, 1.0));
         return new ExperimentDefinition("fare-search-pages", CONTROL, TREATMENTS, split, Duration.ofMinutes(1), 100,
-                true, 0.001, metrics);
+                RunMode.DRY_RUN, 0.001, metrics);
     }
 
     /** Everything tallied by look n: n·PER_LOOK observations per arm, the same small effects throughout. */

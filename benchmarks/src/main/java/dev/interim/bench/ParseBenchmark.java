@@ -119,7 +119,7 @@ public class ParseBenchmark {
     @Setup(Level.Trial)
     public void prepare(Blackhole blackhole) throws BadEventException {
         InterimConfig config = ConfigLoader.parseWithoutSecrets(CONFIG);
-        reader = new JsonEventReader(config);
+        reader = new JsonEventReader(config.catalog());
         // The reader's parser settings (JsonEventReader builds its factory the same way).
         bare = JsonFactory.builder()
                 .streamReadConstraints(StreamReadConstraints.builder()

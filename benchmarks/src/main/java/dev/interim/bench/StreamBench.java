@@ -284,7 +284,7 @@ public final class StreamBench implements Callable<Integer> {
 
         Drain a = drain("(a) plain consumer", n, null);
         CountingSink sink = new CountingSink();
-        Drain b = drain("(b) consumer + JsonEventReader", n, new Parsing(new JsonEventReader(loaded), sink));
+        Drain b = drain("(b) consumer + JsonEventReader", n, new Parsing(new JsonEventReader(loaded.catalog()), sink));
         checkParsed(sink, truth);
 
         DaemonRun c = runDaemon(config, n, truth);

@@ -1,5 +1,9 @@
 package dev.interim.bench;
 
+import dev.interim.experiment.RunMode;
+
+import dev.interim.experiment.Sides;
+
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
@@ -42,10 +46,10 @@ final class StreamMemory {
 
     /** Heap per unit with {@code units} distinct units of one unit-total metric. */
     static PerUnit perUnit(int units) {
-        MetricDefinition spend = new MetricDefinition("spend", MetricKind.UNIT_TOTAL, Role.PRIMARY, Worse.LOWER, 0.05, 2,
+        MetricDefinition spend = new MetricDefinition("spend", MetricKind.UNIT_TOTAL, Role.PRIMARY, Worse.LOWER, 0.05, Sides.TWO,
                 SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(100_000_000L), null, StopAction.NONE);
         ExperimentDefinition e = new ExperimentDefinition("basket-size", "current", List.of("bundled"),
-                Map.of("current", 1.0, "bundled", 1.0), Duration.ofMinutes(1), 100, true, 0.001, List.of(spend));
+                Map.of("current", 1.0, "bundled", 1.0), Duration.ofMinutes(1), 100, RunMode.DRY_RUN, 0.001, List.of(spend));
         // Unit ids like the bench's events carry; each is garbage once fed, so only the state counts.
         long before = settledHeap();
         OfflineTally tally = new OfflineTally(List.of(e));
@@ -75,7 +79,7 @@ final class StreamMemory {
         int comparisons = 0;
         for (int i = 0; i < experiments; i++) {
             ExperimentDefinition d = new ExperimentDefinition(template.id() + "-" + i, template.control(),
-                    template.treatments(), template.split(), template.lookEvery(), template.minPerArm(), true,
+                    template.treatments(), template.split(), template.lookEvery(), template.minPerArm(), RunMode.DRY_RUN,
                     template.sampleRatioThreshold(), template.metrics());
             ExperimentMonitor m = new ExperimentMonitor(d);
             for (int n = 1; n <= looks; n++) {

@@ -1,11 +1,11 @@
 package dev.interim.cli;
 
 import dev.interim.config.ConfigLoader;
-import dev.interim.config.Durations;
-import dev.interim.config.ExperimentConfig;
+import dev.interim.text.Durations;
+import dev.interim.events.MappedExperiment;
 import dev.interim.config.InterimConfig;
 import dev.interim.config.KafkaSettings;
-import dev.interim.config.MetricSource;
+import dev.interim.events.MetricSource;
 import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Horizon;
@@ -81,7 +81,7 @@ public final class CheckCommand implements Callable<Integer> {
                 + c.http().adminToken().map(t -> ", admin token from $" + t.variable()).orElse(", no admin token"));
         out.println("  webhook: " + c.webhook().map(w -> w.url() + ", signed with the key in $" + w.signingKey().variable()
                 + ", " + w.maxAttempts() + " attempts").orElse("none"));
-        for (ExperimentConfig e : c.experiments()) {
+        for (MappedExperiment e : c.experiments()) {
             experiment(out, e, c.events().unit().isPresent());
         }
         out.flush();
@@ -101,7 +101,7 @@ public final class CheckCommand implements Callable<Integer> {
     /** Below this, a look leans on a normal approximation a few skewed values do not support (common practice: 30). */
     static final long FEW_PER_ARM = 30;
 
-    private static void experiment(PrintWriter out, ExperimentConfig config, boolean unitMapped) {
+    private static void experiment(PrintWriter out, MappedExperiment config, boolean unitMapped) {
         ExperimentDefinition e = config.definition();
         double total = e.split().values().stream().mapToDouble(Double::doubleValue).sum();
         List<String> arms = new ArrayList<>();

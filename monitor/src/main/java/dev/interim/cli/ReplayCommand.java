@@ -89,9 +89,9 @@ public final class ReplayCommand implements Callable<Integer> {
         }
         PrintWriter out = spec.commandLine().getOut();
         PrintWriter err = spec.commandLine().getErr();
-        ReplayText text = new ReplayText(c);
+        ReplayText text = new ReplayText(c.catalog());
         ProgressBar bar = (terminal != null ? terminal : System.console() != null) ? new ProgressBar(err, "replay", "events", System::nanoTime) : null;
-        ReplayResult result = new Replay(c).run(events, new ReplayListener() {
+        ReplayResult result = new Replay(c.catalog()).run(events, new ReplayListener() {
             @Override
             public void decided(DecisionRecord d) {
                 if (bar != null) {

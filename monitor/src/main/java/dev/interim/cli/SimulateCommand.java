@@ -1,7 +1,7 @@
 package dev.interim.cli;
 
 import dev.interim.config.ConfigLoader;
-import dev.interim.config.ExperimentConfig;
+import dev.interim.events.MappedExperiment;
 import dev.interim.config.InterimConfig;
 import dev.interim.sequential.Fractions;
 import dev.interim.simulate.EffectUnit;
@@ -219,14 +219,14 @@ public final class SimulateCommand implements Callable<Integer> {
     private List<SimulatedComparison> comparisons(InterimConfig c, double[] fractions) {
         Set<String> knownExperiments = new LinkedHashSet<>();
         Set<String> knownMetrics = new LinkedHashSet<>();
-        for (ExperimentConfig e : c.experiments()) {
+        for (MappedExperiment e : c.experiments()) {
             knownExperiments.add(e.definition().id());
             e.definition().metrics().forEach(m -> knownMetrics.add(m.name()));
         }
         Set<String> wantedExperiments = names("--experiment", experiments, knownExperiments);
         Set<String> wantedMetrics = names("--metric", metrics, knownMetrics);
         List<SimulatedComparison> all = new ArrayList<>();
-        for (ExperimentConfig e : c.experiments()) {
+        for (MappedExperiment e : c.experiments()) {
             if (wantedExperiments == null || wantedExperiments.contains(e.definition().id())) {
                 all.addAll(SimulatedComparison.of(e.definition(),
                         name -> wantedMetrics == null || wantedMetrics.contains(name), fractions));

@@ -1,5 +1,8 @@
 package dev.interim.config;
 
+import dev.interim.events.EventMapping;
+import dev.interim.events.MappedExperiment;
+
 import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.core.JsonToken;
@@ -263,7 +266,7 @@ public final class ConfigLoader {
     }
 
     /** A configured experiment and its place in the list, for the messages of later checks. */
-    private record Indexed(int index, ExperimentConfig config) {
+    private record Indexed(int index, MappedExperiment config) {
     }
 
     /** The experiments read without a problem, each with its index; every problem is recorded. */
@@ -273,7 +276,7 @@ public final class ConfigLoader {
         List<ConfigNode> elements = list.elements("experiments");
         for (int i = 0; i < elements.size(); i++) {
             ConfigNode element = elements.get(i);
-            ExperimentConfig e = list.problems().attempt(() -> ExperimentReader.read(element, unitMapped));
+            MappedExperiment e = list.problems().attempt(() -> ExperimentReader.read(element, unitMapped));
             if (e == null) {
                 continue;
             }

@@ -1,5 +1,7 @@
 package dev.interim.config;
 
+import dev.interim.text.Durations;
+
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.interim.text.UserText;
 import java.math.BigDecimal;

@@ -1,5 +1,7 @@
 package dev.interim.config;
 
+import dev.interim.events.EventMapping;
+
 import com.fasterxml.jackson.core.JsonPointer;
 import dev.interim.text.UserText;
 import java.net.URI;

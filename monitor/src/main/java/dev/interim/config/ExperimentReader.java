@@ -1,5 +1,8 @@
 package dev.interim.config;
 
+import dev.interim.events.MetricSource;
+import dev.interim.events.MappedExperiment;
+
 import dev.interim.experiment.RunMode;
 
 import dev.interim.experiment.Assignment;
@@ -27,7 +30,7 @@ final class ExperimentReader {
      * @param unitMapped whether events carry a unit (events.unit): arms are then taken as assigned per
      *                   unit unless the experiment says {@code assignment: event}
      */
-    static ExperimentConfig read(ConfigNode e, boolean unitMapped) {
+    static MappedExperiment read(ConfigNode e, boolean unitMapped) {
         e.mapping(KEYS);
         Problems.Checkpoint start = e.checkpoint();
         String id = e.readRequired("id", "the experiment id as it appears in events", ConfigNode::text);
@@ -56,7 +59,7 @@ final class ExperimentReader {
         Map<String, Double> shares = split;
         ExperimentDefinition definition = Validated.at(e, KEYS, () -> new ExperimentDefinition(id, control, treatments,
                 shares, lookEvery, minPerArm, RunMode.dryRun(dryRun), sampleRatio, metrics, assignment));
-        return new ExperimentConfig(definition, sources);
+        return new MappedExperiment(definition, sources);
     }
 
     /** Reads every metric of the list into {@code metrics} and {@code sources}, recording the problems of each. */

@@ -1,5 +1,9 @@
 package dev.interim.config;
 
+import dev.interim.events.EventCatalog;
+import dev.interim.events.EventMapping;
+import dev.interim.events.MappedExperiment;
+
 import java.util.List;
 import java.util.Optional;
 
@@ -14,14 +18,19 @@ import java.util.Optional;
  * @param experiments the experiments watched, in file order
  */
 public record InterimConfig(KafkaSettings kafka, EventMapping events, HttpSettings http,
-                            Optional<WebhookSettings> webhook, List<ExperimentConfig> experiments) {
+                            Optional<WebhookSettings> webhook, List<MappedExperiment> experiments) {
 
     public InterimConfig {
         experiments = List.copyOf(experiments);
     }
 
+    /** The event mapping and the experiments, as the stream and replay read events with them. */
+    public EventCatalog catalog() {
+        return new EventCatalog(events, experiments);
+    }
+
     /** The experiment with this id, if configured. */
-    public Optional<ExperimentConfig> experiment(String id) {
+    public Optional<MappedExperiment> experiment(String id) {
         return experiments.stream().filter(e -> e.definition().id().equals(id)).findFirst();
     }
 }

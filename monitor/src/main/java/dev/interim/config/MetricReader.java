@@ -1,5 +1,10 @@
 package dev.interim.config;
 
+import dev.interim.events.Condition;
+
+import dev.interim.events.MetricSource;
+import dev.interim.events.ValueRange;
+
 import dev.interim.experiment.Sides;
 
 import com.fasterxml.jackson.core.JsonPointer;

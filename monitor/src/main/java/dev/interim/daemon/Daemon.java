@@ -1,8 +1,8 @@
 package dev.interim.daemon;
 
-import dev.interim.config.Durations;
-import dev.interim.config.ExperimentConfig;
 import dev.interim.config.HttpSettings;
+import dev.interim.events.MappedExperiment;
+import dev.interim.text.Durations;
 import dev.interim.config.InterimConfig;
 import dev.interim.config.KafkaSettings;
 import dev.interim.embedded.EmbeddedKafka;
@@ -121,7 +121,7 @@ public final class Daemon implements AutoCloseable {
         KafkaSettings kafka = config.kafka();
         Map<String, Object> client = new HashMap<>(kafka.properties().forClients());
         checkClientProperties(kafka, client);
-        List<ExperimentDefinition> definitions = config.experiments().stream().map(ExperimentConfig::definition).toList();
+        List<ExperimentDefinition> definitions = config.experiments().stream().map(MappedExperiment::definition).toList();
         catalog = new Catalog(definitions);
         configuredIds = java.util.Set.copyOf(definitions.stream().map(ExperimentDefinition::id).toList());
         meters = new Meters();
@@ -180,7 +180,7 @@ public final class Daemon implements AutoCloseable {
         // until its session expires.
         boolean leave = config.kafka().instanceId().isEmpty() && config.http().port() == 0;
         for (int i = 0; i < config.kafka().tallyThreads(); i++) {
-            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config), events, tallyMember(i))
+            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config.catalog()), events, tallyMember(i))
                     .leaveGroupOnClose(leave));
         }
         judge = new JudgeStage(settings, catalog, options.clock(), events, new dev.interim.stream.DecisionWriter() {

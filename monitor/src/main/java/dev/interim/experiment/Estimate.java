@@ -1,12 +1,12 @@
 package dev.interim.experiment;
 
 import dev.interim.stats.InsufficientDataException;
-import dev.interim.stats.MeanTests;
+import dev.interim.stats.MeanSignificance;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
-import dev.interim.stats.ProportionTests;
+import dev.interim.stats.ProportionSignificance;
 import dev.interim.stats.RatioMoments;
-import dev.interim.stats.RatioTests;
+import dev.interim.stats.RatioSignificance;
 import dev.interim.stats.TestResult;
 import org.apache.commons.statistics.distribution.BetaDistribution;
 import org.apache.commons.statistics.distribution.ChiSquaredDistribution;
@@ -21,8 +21,8 @@ import static dev.interim.stats.Alternative.TWO_SIDED;
  *
  * <p>Tests: a two-sample comparison has one standard error, for its statistic and its interval
  * alike: each arm's per-observation variance taken as at least the variance pooled over both arms
- * ({@link ProportionTests#twoProportionZAtLeastPooled} for rates per event,
- * {@link MeanTests#welchTAtLeastPooled} for means and totals, {@link RatioTests#twoSampleAtLeastPooled}
+ * ({@link ProportionSignificance#twoProportionZAtLeastPooled} for rates per event,
+ * {@link MeanSignificance#welchTAtLeastPooled} for means and totals, {@link RatioSignificance#twoSampleAtLeastPooled}
  * for ratios of per-unit sums: ratio metrics, and event metrics under per-unit assignment). It is
  * never below the pooled standard error, whose statistic approximates the permutation test and so
  * holds its level under an uneven split with skewed values; Welch's alone does not, as a small arm
@@ -99,7 +99,7 @@ public record Estimate(double effect, double standardError, double z, double deg
         if (treatment instanceof Tally.Rate t) {
             ProportionCounts a = t.counts();
             if (baseline != null) {
-                return from(shifted(ProportionTests.oneProportionZ(a, baseline, TWO_SIDED), baseline), a.rate(), baseline,
+                return from(shifted(ProportionSignificance.oneProportionZ(a, baseline, TWO_SIDED), baseline), a.rate(), baseline,
                         rateError(a), 0, upperRateVariance(a) / a.trials(), 0);
             }
             ProportionCounts b = ((Tally.Rate) control).counts();
@@ -107,31 +107,31 @@ public record Estimate(double effect, double standardError, double z, double deg
                 throw new InsufficientDataException("no variance yet: every event so far is "
                         + (a.successes() + b.successes() == 0 ? "a failure" : "a success") + " in both arms");
             }
-            return from(ProportionTests.twoProportionZAtLeastPooled(a, b, TWO_SIDED), a.rate(), b.rate(), rateError(a),
+            return from(ProportionSignificance.twoProportionZAtLeastPooled(a, b, TWO_SIDED), a.rate(), b.rate(), rateError(a),
                     rateError(b),
                     upperRateVariance(a) / a.trials(), upperRateVariance(b) / b.trials());
         }
         if (treatment instanceof Tally.Ratio t) {
             RatioMoments a = t.moments();
             if (baseline != null) {
-                TestResult r = RatioTests.oneSample(a, baseline, TWO_SIDED);
+                TestResult r = RatioSignificance.oneSample(a, baseline, TWO_SIDED);
                 return from(shifted(r, baseline), a.ratio(), baseline, r.standardError(), 0,
                         upperVariance(a.linearisedVariance(), a.count()) / a.count(), 0);
             }
             RatioMoments b = ((Tally.Ratio) control).moments();
-            TestResult r = RatioTests.twoSampleAtLeastPooled(a, b, TWO_SIDED);
+            TestResult r = RatioSignificance.twoSampleAtLeastPooled(a, b, TWO_SIDED);
             return from(r, a.ratio(), b.ratio(), Math.sqrt(a.ratioVariance()), Math.sqrt(b.ratioVariance()),
                     upperVariance(a.linearisedVariance(), a.count()) / a.count(),
                     upperVariance(b.linearisedVariance(), b.count()) / b.count());
         }
         Moments a = ((Tally.Mean) treatment).moments();
         if (baseline != null) {
-            TestResult r = MeanTests.oneSampleT(a, baseline, TWO_SIDED);
+            TestResult r = MeanSignificance.oneSampleT(a, baseline, TWO_SIDED);
             return from(shifted(r, baseline), a.mean(), baseline, a.standardErrorOfMean(), 0,
                     upperVariance(a.variance(), a.count()) / a.count(), 0);
         }
         Moments b = ((Tally.Mean) control).moments();
-        TestResult r = MeanTests.welchTAtLeastPooled(a, b, TWO_SIDED);
+        TestResult r = MeanSignificance.welchTAtLeastPooled(a, b, TWO_SIDED);
         return from(r, a.mean(), b.mean(), a.standardErrorOfMean(), b.standardErrorOfMean(),
                 upperVariance(a.variance(), a.count()) / a.count(), upperVariance(b.variance(), b.count()) / b.count());
     }

@@ -1,7 +1,7 @@
 package dev.interim.replay;
 
-import dev.interim.config.ExperimentConfig;
-import dev.interim.config.InterimConfig;
+import dev.interim.events.MappedExperiment;
+import dev.interim.events.EventCatalog;
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentDefinition;
@@ -43,14 +43,14 @@ public final class Replay {
     /** How often progress is reported, at most. */
     private static final long PROGRESS_NANOS = 250_000_000L;
 
-    private final InterimConfig config;
+    private final EventCatalog config;
 
     /**
      * @throws IllegalArgumentException when the configuration has no {@code events.time}: looks go
      *     by event time, so every event must carry one
      */
-    public Replay(InterimConfig config) {
-        if (config.events().time().isEmpty()) {
+    public Replay(EventCatalog config) {
+        if (config.mapping().time().isEmpty()) {
             throw new IllegalArgumentException(missingTime());
         }
         this.config = config;
@@ -84,7 +84,7 @@ public final class Replay {
     private final class Run {
         private final ReplayListener listener;
         private final JsonEventReader reader = new JsonEventReader(config);
-        private final EventTime time = new EventTime(config.events().time().orElseThrow());
+        private final EventTime time = new EventTime(config.mapping().time().orElseThrow());
         private final EventBuffer buffer = new EventBuffer();
         private final OfflineTally tally;
         private final Map<String, Experiment> experiments = new LinkedHashMap<>();
@@ -98,7 +98,7 @@ public final class Replay {
         Run(ReplayListener listener) {
             this.listener = listener;
             List<ExperimentDefinition> definitions = new ArrayList<>();
-            for (ExperimentConfig e : config.experiments()) {
+            for (MappedExperiment e : config.experiments()) {
                 definitions.add(e.definition());
                 experiments.put(e.definition().id(), new Experiment(e.definition()));
             }

@@ -6,9 +6,9 @@ import static dev.interim.text.Numbers.count;
 import static dev.interim.text.Numbers.fixed;
 import static dev.interim.text.Numbers.significant;
 
-import dev.interim.config.Durations;
-import dev.interim.config.ExperimentConfig;
-import dev.interim.config.InterimConfig;
+import dev.interim.text.Durations;
+import dev.interim.events.MappedExperiment;
+import dev.interim.events.EventCatalog;
 import dev.interim.experiment.DecisionRecord;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentView;
@@ -33,11 +33,11 @@ public final class ReplayText {
     private final int metricWidth;
 
     /** Columns sized to the names in {@code config}, so the timeline lines up as it streams. */
-    public ReplayText(InterimConfig config) {
+    public ReplayText(EventCatalog config) {
         int e = 0;
         int a = 0;
         int m = 0;
-        for (ExperimentConfig x : config.experiments()) {
+        for (MappedExperiment x : config.experiments()) {
             ExperimentDefinition d = x.definition();
             e = Math.max(e, d.id().length());
             for (String arm : d.treatments()) {

@@ -35,8 +35,8 @@ public record ChiSquareGoodnessOfFit(double statistic, int degreesOfFreedom, dou
      * @throws InsufficientDataException if all counts are 0
      */
     public static ChiSquareGoodnessOfFit test(long[] observed, double[] expectedShares) {
-        Checks.notNull("observed", observed);
-        Checks.notNull("expectedShares", expectedShares);
+        Arguments.notNull("observed", observed);
+        Arguments.notNull("expectedShares", expectedShares);
         if (observed.length != expectedShares.length || observed.length < 2) {
             throw new IllegalArgumentException("observed and expectedShares need the same length, at least 2;"
                     + " were " + observed.length + " and " + expectedShares.length);
@@ -47,11 +47,11 @@ public record ChiSquareGoodnessOfFit(double statistic, int degreesOfFreedom, dou
             if (observed[i] < 0) {
                 throw new IllegalArgumentException("observed counts must be >= 0, observed[" + i + "] was " + observed[i]);
             }
-            Checks.positive("expectedShares[" + i + "]", expectedShares[i]);
+            Arguments.positive("expectedShares[" + i + "]", expectedShares[i]);
             total = Math.addExact(total, observed[i]);
             shareSum += expectedShares[i];
         }
-        Checks.atLeast("chi-square goodness of fit", "observations in total", total, 1);
+        Arguments.atLeast("chi-square goodness of fit", "observations in total", total, 1);
         double statistic = 0;
         for (int i = 0; i < observed.length; i++) {
             double expected = total * (expectedShares[i] / shareSum);

@@ -51,7 +51,7 @@ public record Moments(long count, double mean, double sumSquaredDeviations, doub
                         + " (use Moments.EMPTY); was mean " + mean + ", sumSquaredDeviations " + sumSquaredDeviations);
             }
         } else {
-            Checks.finite("mean", mean);
+            Arguments.finite("mean", mean);
             if (!(sumSquaredDeviations >= 0.0 && sumSquaredDeviations < Double.POSITIVE_INFINITY)) {
                 throw new IllegalArgumentException(
                         "sumSquaredDeviations must be finite and >= 0, was " + sumSquaredDeviations);
@@ -74,7 +74,7 @@ public record Moments(long count, double mean, double sumSquaredDeviations, doub
         if (count < 0) {
             throw new IllegalArgumentException("count must be >= 0, was " + count);
         }
-        Checks.finite("mean", mean);
+        Arguments.finite("mean", mean);
         if (!(standardDeviation >= 0.0 && standardDeviation < Double.POSITIVE_INFINITY)) {
             throw new IllegalArgumentException("standard deviation must be finite and >= 0, was " + standardDeviation);
         }
@@ -87,7 +87,7 @@ public record Moments(long count, double mean, double sumSquaredDeviations, doub
     /** The moments of the given values, computed in one pass (Welford). */
     public static Moments ofValues(double... values) {
         RunningMoments running = new RunningMoments();
-        for (double value : Checks.notNull("values", values)) {
+        for (double value : Arguments.notNull("values", values)) {
             running.accept(value);
         }
         return running.snapshot();
@@ -120,7 +120,7 @@ public record Moments(long count, double mean, double sumSquaredDeviations, doub
      * @throws ArithmeticException if the merged count overflows a long
      */
     public Moments plus(Moments other) {
-        Checks.notNull("other", other);
+        Arguments.notNull("other", other);
         if (other.count == 0) {
             return this;
         }

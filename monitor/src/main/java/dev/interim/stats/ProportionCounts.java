@@ -35,7 +35,7 @@ public record ProportionCounts(long successes, long trials) {
      * @throws ArithmeticException if a count overflows a long
      */
     public ProportionCounts plus(ProportionCounts other) {
-        Checks.notNull("other", other);
+        Arguments.notNull("other", other);
         return new ProportionCounts(
                 Math.addExact(successes, other.successes), Math.addExact(trials, other.trials));
     }

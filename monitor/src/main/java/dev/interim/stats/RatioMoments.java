@@ -38,14 +38,14 @@ public record RatioMoments(long count, double meanX, double meanY, double sumSqu
                 throw new IllegalArgumentException("an empty sample has NaN means and zero sums (use RatioMoments.EMPTY)");
             }
         } else {
-            Checks.finite("meanX", meanX);
-            Checks.finite("meanY", meanY);
+            Arguments.finite("meanX", meanX);
+            Arguments.finite("meanY", meanY);
             if (!(sumSquaredDeviationsX >= 0) || !(sumSquaredDeviationsY >= 0)
                     || Double.isInfinite(sumSquaredDeviationsX) || Double.isInfinite(sumSquaredDeviationsY)) {
                 throw new IllegalArgumentException("sums of squared deviations must be finite and >= 0, were "
                         + sumSquaredDeviationsX + " and " + sumSquaredDeviationsY);
             }
-            Checks.finite("sumCrossDeviations", sumCrossDeviations);
+            Arguments.finite("sumCrossDeviations", sumCrossDeviations);
         }
     }
 
@@ -75,7 +75,7 @@ public record RatioMoments(long count, double meanX, double meanY, double sumSqu
 
     /** The moments of this sample and a disjoint {@code other} together (Chan et al. 1979). */
     public RatioMoments plus(RatioMoments other) {
-        Checks.notNull("other", other);
+        Arguments.notNull("other", other);
         if (other.count == 0) {
             return this;
         }

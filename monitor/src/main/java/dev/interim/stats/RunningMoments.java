@@ -96,7 +96,7 @@ public final class RunningMoments {
      * @return this
      */
     public RunningMoments combine(RunningMoments other) {
-        Moments merged = snapshot().plus(Checks.notNull("other", other).snapshot());
+        Moments merged = snapshot().plus(Arguments.notNull("other", other).snapshot());
         count = merged.count();
         mean = merged.mean();
         meanResidual = merged.meanResidual();
@@ -107,7 +107,7 @@ public final class RunningMoments {
     /** A running tally that starts from {@code moments} (restored state). */
     public static RunningMoments from(Moments moments) {
         RunningMoments r = new RunningMoments();
-        Checks.notNull("moments", moments);
+        Arguments.notNull("moments", moments);
         r.count = moments.count();
         r.mean = moments.mean();
         r.meanResidual = moments.meanResidual();

@@ -25,7 +25,7 @@ public final class RunningProportion {
      * @return this
      */
     public RunningProportion combine(RunningProportion other) {
-        Checks.notNull("other", other);
+        Arguments.notNull("other", other);
         long newTrials = Math.addExact(trials, other.trials);
         successes += other.successes;
         trials = newTrials;

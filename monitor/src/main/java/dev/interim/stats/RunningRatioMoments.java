@@ -95,7 +95,7 @@ public final class RunningRatioMoments {
 
     /** A running tally that starts from restored moments. */
     public static RunningRatioMoments from(RatioMoments m) {
-        Checks.notNull("moments", m);
+        Arguments.notNull("moments", m);
         RunningRatioMoments r = new RunningRatioMoments();
         if (m.count() > 0) {
             r.count = m.count();

@@ -25,7 +25,7 @@ public record TestResult(String name, double statistic, double degreesOfFreedom,
         if (name == null || name.isBlank()) {
             throw new IllegalArgumentException("name must be a non-blank test name");
         }
-        Checks.notNull("alternative", alternative);
+        Arguments.notNull("alternative", alternative);
         if (Double.isNaN(statistic)) {
             throw new IllegalArgumentException("statistic must not be NaN");
         }
@@ -34,7 +34,7 @@ public record TestResult(String name, double statistic, double degreesOfFreedom,
                     "degreesOfFreedom must be > 0 (or +Infinity for a z test), was " + degreesOfFreedom);
         }
         Probabilities.requireClosed(pValue, "pValue");
-        Checks.finite("estimate", estimate);
+        Arguments.finite("estimate", estimate);
         if (!(standardError >= 0.0 && standardError < Double.POSITIVE_INFINITY)) {
             throw new IllegalArgumentException("standardError must be finite and >= 0, was " + standardError);
         }

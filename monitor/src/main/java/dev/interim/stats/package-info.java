@@ -4,7 +4,7 @@
  * <p>Running tallies ({@link dev.interim.stats.RunningMoments}, {@link dev.interim.stats.RunningProportion})
  * are mutable and not thread-safe; what leaves them is an immutable snapshot
  * ({@link dev.interim.stats.Moments}, {@link dev.interim.stats.ProportionCounts}) that the tests in
- * {@link dev.interim.stats.MeanTests}, {@link dev.interim.stats.ProportionTests} and
+ * {@link dev.interim.stats.MeanSignificance}, {@link dev.interim.stats.ProportionSignificance} and
  * {@link dev.interim.stats.ChiSquareGoodnessOfFit} take directly.
  *
  * <p>Distribution functions come from Apache Commons Statistics; nothing here is hand-rolled. The

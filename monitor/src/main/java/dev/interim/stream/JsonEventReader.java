@@ -7,11 +7,11 @@ import com.fasterxml.jackson.core.JsonToken;
 import com.fasterxml.jackson.core.StreamReadConstraints;
 import com.fasterxml.jackson.core.StreamReadFeature;
 import com.fasterxml.jackson.databind.JsonNode;
-import dev.interim.config.EventMapping;
-import dev.interim.config.ExperimentConfig;
-import dev.interim.config.InterimConfig;
-import dev.interim.config.MetricSource;
-import dev.interim.config.ValueRange;
+import dev.interim.events.EventMapping;
+import dev.interim.events.MappedExperiment;
+import dev.interim.events.EventCatalog;
+import dev.interim.events.MetricSource;
+import dev.interim.events.ValueRange;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.stream.BadEventException.Reason;
@@ -81,8 +81,8 @@ public final class JsonEventReader implements EventReader {
 
     private record Experiment(ExperimentDefinition definition, List<Metric> metrics, boolean needsUnit) {}
 
-    public JsonEventReader(InterimConfig config) {
-        this.mapping = config.events();
+    public JsonEventReader(EventCatalog config) {
+        this.mapping = config.mapping();
         this.json = JsonFactory.builder()
                 .streamReadConstraints(StreamReadConstraints.builder()
                         .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
@@ -91,7 +91,7 @@ public final class JsonEventReader implements EventReader {
         this.experimentSlot = pointers.add(mapping.experiment());
         this.armSlot = pointers.add(mapping.arm());
         this.unitSlot = mapping.unit().map(pointers::add).orElse(-1);
-        for (ExperimentConfig e : config.experiments()) {
+        for (MappedExperiment e : config.experiments()) {
             List<Metric> metrics = new ArrayList<>();
             for (MetricDefinition m : e.definition().metrics()) {
                 MetricSource source = e.source(m);

@@ -9,10 +9,11 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /**
- * The layering of DESIGN.md, kept by the build: the statistics ({@code stats}, {@code sequential})
- * know nothing of Kafka, HTTP, files, the network, serialisation or the clock, and each layer
- * depends only on the ones before it. Source: the layering of the shared design notes (DESIGN.md,
- * "Shape"); no statistical values here.
+ * The layering DEVELOPERS.md describes, kept by the build: the statistics ({@code stats},
+ * {@code sequential}) know nothing of Kafka, HTTP, files, the network, serialisation or the clock;
+ * every package of {@code dev.interim} is a layer whose users are written down below (the edges do
+ * not import each other freely), and no two packages depend on each other in a cycle. No
+ * statistical values here.
  */
 class LayeringTest {
     private static final String[] PURE = {"dev.interim.stats..", "dev.interim.sequential.."};
@@ -77,10 +78,67 @@ class LayeringTest {
     void theTextLayerIsPureAndBelowEverything() {
         noClasses().that().resideInAPackage("dev.interim.text..")
                 .should().dependOnClassesThat().resideOutsideOfPackages("dev.interim.text..", "java.lang..", "java.math..",
-                        "java.util..")
+                        "java.util..", "java.time..")
                 .orShould().callMethod(System.class, "currentTimeMillis")
                 .orShould().callMethod(System.class, "nanoTime")
-                .because("every layer writes its numbers with it, so it may depend on none of them, nor on I/O or the clock")
+                .orShould().callMethod(java.time.Instant.class, "now")
+                .orShould().dependOnClassesThat().areAssignableTo(java.time.Clock.class)
+                .because("every layer writes its numbers with it, so it may depend on none of them, nor on I/O or the clock (durations are values)")
+                .check(classes);
+    }
+
+    /**
+     * Every package and who may use it. Read a line as "this layer may only be used by these": the
+     * pure core ({@code text}, {@code stats}, {@code sequential}, {@code experiment}) is used widely;
+     * each edge is used only by what wires it ({@code daemon}, {@code cli}) or by the one edge built
+     * on it (the dashboard on the HTTP endpoint and the charts, replay on the stream's reader).
+     */
+    @Test
+    void everyPackageIsALayerWithItsUsersWrittenDown() {
+        com.tngtech.archunit.library.Architectures.layeredArchitecture().consideringOnlyDependenciesInLayers()
+                .layer("text").definedBy("dev.interim.text..")
+                .layer("stats").definedBy("dev.interim.stats..")
+                .layer("sequential").definedBy("dev.interim.sequential..")
+                .layer("experiment").definedBy("dev.interim.experiment..")
+                .layer("events").definedBy("dev.interim.events..")
+                .layer("config").definedBy("dev.interim.config..")
+                .layer("stream").definedBy("dev.interim.stream..")
+                .layer("signal").definedBy("dev.interim.signal..")
+                .layer("http").definedBy("dev.interim.http..")
+                .layer("embedded").definedBy("dev.interim.embedded..")
+                .layer("chart").definedBy("dev.interim.chart..")
+                .layer("dashboard").definedBy("dev.interim.dashboard..")
+                .layer("replay").definedBy("dev.interim.replay..")
+                .layer("simulate").definedBy("dev.interim.simulate..")
+                .layer("daemon").definedBy("dev.interim.daemon..")
+                .layer("demo").definedBy("dev.interim.demo..")
+                .layer("cli").definedBy("dev.interim.cli..")
+                .whereLayer("stats").mayOnlyBeAccessedByLayers("sequential", "experiment", "stream", "signal", "http",
+                        "dashboard", "replay", "simulate", "cli")
+                .whereLayer("sequential").mayOnlyBeAccessedByLayers("experiment", "config", "stream", "signal", "chart",
+                        "replay", "simulate", "demo", "cli")
+                .whereLayer("experiment").mayOnlyBeAccessedByLayers("events", "config", "stream", "signal", "http", "chart",
+                        "dashboard", "replay", "simulate", "daemon", "demo", "cli")
+                .whereLayer("events").mayOnlyBeAccessedByLayers("config", "stream", "replay", "daemon", "cli")
+                .whereLayer("config").mayOnlyBeAccessedByLayers("daemon", "demo", "cli")
+                .whereLayer("stream").mayOnlyBeAccessedByLayers("replay", "daemon")
+                .whereLayer("signal").mayOnlyBeAccessedByLayers("http", "daemon", "demo", "cli")
+                .whereLayer("http").mayOnlyBeAccessedByLayers("dashboard", "daemon")
+                .whereLayer("embedded").mayOnlyBeAccessedByLayers("daemon")
+                .whereLayer("chart").mayOnlyBeAccessedByLayers("dashboard")
+                .whereLayer("dashboard").mayOnlyBeAccessedByLayers("daemon", "cli")
+                .whereLayer("replay").mayOnlyBeAccessedByLayers("cli")
+                .whereLayer("simulate").mayOnlyBeAccessedByLayers("cli")
+                .whereLayer("daemon").mayOnlyBeAccessedByLayers("demo", "cli")
+                .whereLayer("demo").mayOnlyBeAccessedByLayers("cli")
+                .whereLayer("cli").mayNotBeAccessedByAnyLayer()
+                .check(classes);
+    }
+
+    @Test
+    void noPackagesDependOnEachOtherInACycle() {
+        com.tngtech.archunit.library.dependencies.SlicesRuleDefinition.slices().matching("dev.interim.(*)..")
+                .should().beFreeOfCycles()
                 .check(classes);
     }
 

@@ -1,5 +1,10 @@
 package dev.interim.config;
 
+import dev.interim.events.MappedExperiment;
+import dev.interim.events.MetricSource;
+
+import dev.interim.events.Condition;
+
 import static org.assertj.core.api.Assertions.assertThat;
 
 import com.fasterxml.jackson.databind.JsonNode;
@@ -18,7 +23,7 @@ class ConditionTest {
 
     private static Condition condition(String countsIf) {
         String yaml = Configs.valid("{at_least: 500}", countsIf);
-        ExperimentConfig e = ConfigLoader.parse(yaml, Configs.ENV).experiments().get(0);
+        MappedExperiment e = ConfigLoader.parse(yaml, Configs.ENV).experiments().get(0);
         MetricDefinition errors = e.definition().metrics().get(0);
         return ((MetricSource.Counted) e.source(errors)).countsIf();
     }

@@ -1,5 +1,7 @@
 package dev.interim.config;
 
+import dev.interim.text.Durations;
+
 import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 

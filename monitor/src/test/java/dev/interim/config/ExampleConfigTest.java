@@ -1,5 +1,8 @@
 package dev.interim.config;
 
+import dev.interim.events.MappedExperiment;
+import dev.interim.events.MetricSource;
+
 import static org.assertj.core.api.Assertions.assertThat;
 
 import dev.interim.experiment.ExperimentDefinition;
@@ -75,7 +78,7 @@ class ExampleConfigTest {
 
     @Test
     void theMetricsCarryTheirDesignsAndSources() {
-        ExperimentConfig experiment = config.experiments().get(0);
+        MappedExperiment experiment = config.experiments().get(0);
         List<MetricDefinition> metrics = experiment.definition().metrics();
         assertThat(metrics).extracting(MetricDefinition::name)
                 .containsExactly("quote-errors", "quote-latency-ms", "quoted-value-per-quote", "label-purchase");

@@ -1,5 +1,10 @@
 package dev.interim.config;
 
+import dev.interim.events.MappedExperiment;
+import dev.interim.events.ValueRange;
+
+import dev.interim.events.MetricSource;
+
 import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 import static org.assertj.core.api.Assertions.catchThrowableOfType;
@@ -31,7 +36,7 @@ class ValueRangeConfigTest {
     }
 
     private static MetricSource.Value latencySource(String extra) {
-        ExperimentConfig e = ConfigLoader.parse(withLatency(extra), Configs.ENV).experiments().get(0);
+        MappedExperiment e = ConfigLoader.parse(withLatency(extra), Configs.ENV).experiments().get(0);
         return (MetricSource.Value) e.source(e.definition().metrics().get(0));
     }
 
@@ -55,7 +60,7 @@ class ValueRangeConfigTest {
         assertThat(start).as("the range example in docs/configuration.md").isNotNegative();
         String example = doc.substring(start + "```yaml\n".length(), doc.indexOf("```", start + 7));
         String metrics = example.lines().map(l -> "      " + l + "\n").collect(Collectors.joining());
-        ExperimentConfig e = ConfigLoader.parse(Configs.valid("    metrics:\n", "    metrics:\n" + metrics), Configs.ENV)
+        MappedExperiment e = ConfigLoader.parse(Configs.valid("    metrics:\n", "    metrics:\n" + metrics), Configs.ENV)
                 .experiments().get(0);
         assertThat(((MetricSource.Value) e.source(e.definition().metrics().get(0))).range()).isEqualTo(new ValueRange(0, 60000));
         assertThat(((MetricSource.Value) e.source(e.definition().metrics().get(1))).range())

@@ -53,7 +53,7 @@ class DemoTest {
         assertThat(out.toString()).contains("Summary");
 
         // The same events replayed offline, looks by event time: the same verdict.
-        var result = new dev.interim.replay.Replay(DemoScenario.configuration()).run(saved, new dev.interim.replay.ReplayListener() { });
+        var result = new dev.interim.replay.Replay(DemoScenario.configuration().catalog()).run(saved, new dev.interim.replay.ReplayListener() { });
         var view = result.views().get(DemoTraffic.EXPERIMENT);
         assertThat(result.rejectedTotal()).isZero();
         assertThat(view.comparisons()).anySatisfy(c -> {

@@ -61,7 +61,7 @@ class ReplayScenarioTest {
     static Recorded replay(InterimConfig config, Path events) throws IOException {
         List<LookReport> looks = new ArrayList<>();
         List<DecisionRecord> decisions = new ArrayList<>();
-        ReplayResult result = new Replay(config).run(events, new ReplayListener() {
+        ReplayResult result = new Replay(config.catalog()).run(events, new ReplayListener() {
             @Override
             public void looked(LookReport report) {
                 looks.add(report);
@@ -393,7 +393,7 @@ class ReplayScenarioTest {
     void aConfigurationWithoutEventTimeIsRefusedWithAClearMessage() throws IOException {
         Path without = Scenario.configWith(dir, "  time: /at\n", "");
         InterimConfig c = ConfigLoader.loadWithoutSecrets(without);
-        assertThatThrownBy(() -> new Replay(c)).isInstanceOf(IllegalArgumentException.class)
+        assertThatThrownBy(() -> new Replay(c.catalog())).isInstanceOf(IllegalArgumentException.class)
                 .hasMessageContaining("events.time").hasMessageContaining("JSON Pointer");
     }
 

@@ -36,7 +36,7 @@ class ReplaySpeedCheck {
         for (Path config : new Path[] {Scenario.config(), longer}) {
             InterimConfig c = ConfigLoader.loadWithoutSecrets(config);
             for (int run = 1; run <= 2; run++) {
-                ReplayResult r = new Replay(c).run(events, ReplayListener.NONE);
+                ReplayResult r = new Replay(c.catalog()).run(events, ReplayListener.NONE);
                 assertThat(r.accepted()).isEqualTo(lines);
                 double seconds = r.elapsed().toNanos() / 1e9;
                 System.out.printf(Locale.ROOT, "replay speed: %s run %d: %,d events, %,d looks in %.2f s: %,.0f events/s "

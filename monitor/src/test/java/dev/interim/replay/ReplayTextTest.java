@@ -79,9 +79,9 @@ class ReplayTextTest {
                     + "\",\"ms\":" + ms + (k < 20 ? ",\"crash\":false" : "") + "}");
         }
         Path events = Files.write(dir.resolve("brisling.ndjson"), lines);
-        ReplayResult result = new Replay(config).run(events, new ReplayListener() {});
+        ReplayResult result = new Replay(config.catalog()).run(events, new ReplayListener() {});
         StringWriter text = new StringWriter();
-        new ReplayText(config).summary(result, "brisling.ndjson", new PrintWriter(text));
+        new ReplayText(config.catalog()).summary(result, "brisling.ndjson", new PrintWriter(text));
         List<String> out = text.toString().lines().toList();
 
         assertThat(out).anyMatch(l -> l.startsWith("  exposures: a 150, b 150; sample ratio p = ") && l.endsWith("; arms assigned per event"));
@@ -106,7 +106,7 @@ class ReplayTextTest {
                 List.of(new ComparisonOutcome("b", "crashes", "guardrail", Decision.HELD, null)));
         ReplayResult result = new ReplayResult(20, 20, Map.of(), Map.of(), 1, List.of(), List.of(outcome), Duration.ofSeconds(1));
         StringWriter text = new StringWriter();
-        new ReplayText(config).summary(result, "brisling.ndjson", new PrintWriter(text));
+        new ReplayText(config.catalog()).summary(result, "brisling.ndjson", new PrintWriter(text));
         assertThat(text.toString().lines().filter(l -> l.startsWith("  b    crashes")).findFirst().orElseThrow())
                 .endsWith("too few observations to look");
     }
@@ -125,7 +125,7 @@ class ReplayTextTest {
                 List.of(new ComparisonOutcome("b", "crashes", "guardrail", Decision.HELD, null)));
         ReplayResult result = new ReplayResult(16_000, 16_000, Map.of(), Map.of(), 1, List.of(), List.of(outcome), Duration.ofSeconds(1));
         StringWriter text = new StringWriter();
-        new ReplayText(config).summary(result, "brisling.ndjson", new PrintWriter(text));
+        new ReplayText(config.catalog()).summary(result, "brisling.ndjson", new PrintWriter(text));
         assertThat(text.toString()).contains("; sample ratio p = 2.6e-24; ").doesNotContain("0.0000");
     }
 }

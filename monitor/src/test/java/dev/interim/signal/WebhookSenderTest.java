@@ -83,7 +83,12 @@ class WebhookSenderTest {
         }
     }
 
-    /** 408 and 429 are the 4xx answers worth retrying (timeout, rate limit); 429's Retry-After lengthens the wait. */
+    /**
+     * 408 and 429 are the 4xx answers worth retrying: 408 Request Timeout means the server did not get a
+     * complete request in time and the client MAY repeat it (RFC 9110, section 15.5.9); 429 Too Many
+     * Requests may carry a Retry-After saying how long to wait (RFC 6585, section 4; Retry-After in
+     * RFC 9110, section 10.2.3), which lengthens the wait.
+     */
     @Test
     void tooManyRequestsIsRetriedAfterTheWaitTheReceiverAsks() throws IOException {
         try (Receiver receiver = new Receiver(KEY, NOW, Duration.ZERO, Map.of("Retry-After", "3"), 429, 408, 204)) {
@@ -247,6 +252,11 @@ class WebhookSenderTest {
                 .send(Fixtures.stopForHarm("a.b", false))).hasMessageContaining("no '.'");
     }
 
+    /**
+     * Other 4xx answers are final: the class means the client seems to have erred (RFC 9110, section
+     * 15.5), so the same request again will not help (common practice); 408 (RFC 9110, 15.5.9) and 429
+     * (RFC 6585, section 4) are the exceptions.
+     */
     @Test
     void onlyFourHundredsOtherThan408And429AreFinal() {
         assertThat(WebhookSender.permanent(400)).isTrue();

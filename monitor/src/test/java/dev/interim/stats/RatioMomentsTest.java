@@ -23,7 +23,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
- * {@link RunningRatioMoments} and {@link RatioTests} against independent computations.
+ * {@link RunningRatioMoments} and {@link RatioSignificance} against independent computations.
  *
  * <p>Oracle of the moments: a direct two-pass computation in exact decimal arithmetic (BigDecimal,
  * 60 digits) of the means, Σ(x − x̄)², Σ(y − ȳ)² and Σ(x − x̄)(y − ȳ) of the pairs present, so the
@@ -230,7 +230,7 @@ class RatioMomentsTest {
             assertThat(both[i].ratioVariance()).as("arm %d Var(x̄/ȳ)", i)
                     .isCloseTo(arm.get("variance").asDouble(), within(1e-12 * arm.get("variance").asDouble()));
         }
-        TestResult t = RatioTests.twoSample(a, b, Alternative.TWO_SIDED);
+        TestResult t = RatioSignificance.twoSample(a, b, Alternative.TWO_SIDED);
         // Source: Welch (1947) t and Welch–Satterthwaite df on the delta-method variances (NumPy).
         assertThat(t.statistic()).as("Welch t").isCloseTo(out.get("t").asDouble(), within(1e-10));
         assertThat(t.degreesOfFreedom()).as("Welch–Satterthwaite df").isCloseTo(out.get("df").asDouble(), within(1e-9));
@@ -238,10 +238,10 @@ class RatioMomentsTest {
                 + out.get("arms").get(1).get("variance").asDouble()), within(1e-13));
         // The statistic under no change (residuals at the common ratio, pooled) and the interval's
         // standard error with each arm's variance at least the pooled one, as delta_ratio.py computes them.
-        TestResult pooled = RatioTests.twoSampleUnderNull(a, b, Alternative.TWO_SIDED);
+        TestResult pooled = RatioSignificance.twoSampleUnderNull(a, b, Alternative.TWO_SIDED);
         assertThat(pooled.statistic()).as("pooled t").isCloseTo(out.get("t_pooled").asDouble(), within(1e-10));
         assertThat(pooled.degreesOfFreedom()).isEqualTo(20.0);
-        TestResult floored = RatioTests.twoSampleAtLeastPooled(a, b, Alternative.TWO_SIDED);
+        TestResult floored = RatioSignificance.twoSampleAtLeastPooled(a, b, Alternative.TWO_SIDED);
         assertThat(floored.standardError()).isCloseTo(out.get("se_floored").asDouble(), within(1e-12));
         assertThat(floored.degreesOfFreedom()).isCloseTo(out.get("df_floored").asDouble(), within(1e-9));
         assertThat(floored.standardError()).as("never below the statistic's").isGreaterThanOrEqualTo(pooled.standardError());

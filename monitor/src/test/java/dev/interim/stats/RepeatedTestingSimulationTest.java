@@ -41,7 +41,7 @@ class RepeatedTestingSimulationTest {
                         control.accept(Draws.gaussian(random));
                         treatment.accept(Draws.gaussian(random));
                     }
-                    TestResult z = MeanTests.twoSampleZ(treatment.snapshot(), control.snapshot(), 1, 1, Alternative.TWO_SIDED);
+                    TestResult z = MeanSignificance.twoSampleZ(treatment.snapshot(), control.snapshot(), 1, 1, Alternative.TWO_SIDED);
                     if (z.reject(0.05)) {
                         falseAlarms++;
                         break;

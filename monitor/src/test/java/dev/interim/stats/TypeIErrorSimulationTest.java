@@ -29,10 +29,10 @@ class TypeIErrorSimulationTest {
                 a.accept(3.0 + 2.0 * random.nextGaussian()); // same normal distribution in both arms
                 b.accept(3.0 + 2.0 * random.nextGaussian());
             }
-            if (MeanTests.welchT(a.snapshot(), b.snapshot(), Alternative.TWO_SIDED).reject(ALPHA)) {
+            if (MeanSignificance.welchT(a.snapshot(), b.snapshot(), Alternative.TWO_SIDED).reject(ALPHA)) {
                 welchRejections++;
             }
-            if (MeanTests.pooledT(a.snapshot(), b.snapshot(), Alternative.TWO_SIDED).reject(ALPHA)) {
+            if (MeanSignificance.pooledT(a.snapshot(), b.snapshot(), Alternative.TWO_SIDED).reject(ALPHA)) {
                 pooledRejections++;
             }
         }

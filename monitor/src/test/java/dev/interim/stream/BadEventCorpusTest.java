@@ -19,7 +19,7 @@ import org.junit.jupiter.api.Test;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class BadEventCorpusTest {
-    private final JsonEventReader reader = new JsonEventReader(TileEvents.config());
+    private final JsonEventReader reader = new JsonEventReader(TileEvents.config().catalog());
 
     @Test
     void everyBadEventIsRefusedWithItsReasonAndLeavesNothingBehind() {

@@ -7,7 +7,7 @@ import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.node.MissingNode;
 import com.fasterxml.jackson.databind.node.NullNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
-import dev.interim.config.ExperimentConfig;
+import dev.interim.events.MappedExperiment;
 import dev.interim.stream.BadEventException.Reason;
 import dev.interim.stream.TileEvents.Outcome;
 import java.io.ByteArrayOutputStream;
@@ -46,9 +46,9 @@ import net.jqwik.api.constraints.Size;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class JsonEventReaderFuzzTest {
-    private static final JsonEventReader READER = new JsonEventReader(TileEvents.config());
+    private static final JsonEventReader READER = new JsonEventReader(TileEvents.config().catalog());
     private static final Catalog CATALOG = new Catalog(TileEvents.config().experiments().stream()
-            .map(ExperimentConfig::definition).toList());
+            .map(MappedExperiment::definition).toList());
     /** The longest detail a refusal may carry: it travels in a header of the dead letter. */
     private static final int MAX_DETAIL = 300;
     private static final List<String> POINTERS = List.of("/exp", "/arm", "/session", "/status", "/timing/ms",

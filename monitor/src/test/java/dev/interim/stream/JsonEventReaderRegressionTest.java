@@ -4,7 +4,7 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatCode;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
-import dev.interim.config.ExperimentConfig;
+import dev.interim.events.MappedExperiment;
 import dev.interim.stream.BadEventException.Reason;
 import java.io.ByteArrayOutputStream;
 import java.nio.charset.StandardCharsets;
@@ -20,9 +20,9 @@ import org.junit.jupiter.api.Test;
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
 // no published statistical values are checked here.
 class JsonEventReaderRegressionTest {
-    private final JsonEventReader reader = new JsonEventReader(TileEvents.config());
+    private final JsonEventReader reader = new JsonEventReader(TileEvents.config().catalog());
     private final Catalog catalog = new Catalog(TileEvents.config().experiments().stream()
-            .map(ExperimentConfig::definition).toList());
+            .map(MappedExperiment::definition).toList());
 
     private BadEventException refusal(byte[] event) {
         RecordingSink sink = new RecordingSink();

@@ -4,10 +4,10 @@ import static org.assertj.core.api.Assertions.assertThat;
 
 import com.fasterxml.jackson.core.JsonPointer;
 import dev.interim.config.ConfigLoader;
-import dev.interim.config.EventMapping;
-import dev.interim.config.ExperimentConfig;
+import dev.interim.events.EventMapping;
+import dev.interim.events.MappedExperiment;
 import dev.interim.config.InterimConfig;
-import dev.interim.config.MetricSource;
+import dev.interim.events.MetricSource;
 import dev.interim.stream.BadEventException.Reason;
 import java.io.ByteArrayOutputStream;
 import java.nio.charset.Charset;
@@ -53,7 +53,7 @@ class JsonEventReaderStreamingDifferentialTest {
     /** One configuration, read by both readers. */
     private record Pair(String name, JsonEventReader streaming, JsonEventReaderStreamingTreeOracle tree) {
         Pair(String name, InterimConfig config) {
-            this(name, new JsonEventReader(config), new JsonEventReaderStreamingTreeOracle(config));
+            this(name, new JsonEventReader(config.catalog()), new JsonEventReaderStreamingTreeOracle(config));
         }
     }
 
@@ -136,11 +136,11 @@ class JsonEventReaderStreamingDifferentialTest {
     }
 
     private static InterimConfig changed(InterimConfig c, EventMapping events, Map<String, Map<String, MetricSource>> sources) {
-        List<ExperimentConfig> experiments = new ArrayList<>();
-        for (ExperimentConfig e : c.experiments()) {
+        List<MappedExperiment> experiments = new ArrayList<>();
+        for (MappedExperiment e : c.experiments()) {
             Map<String, MetricSource> s = new HashMap<>(e.sources());
             s.putAll(sources.getOrDefault(e.definition().id(), Map.of()));
-            experiments.add(new ExperimentConfig(e.definition(), s));
+            experiments.add(new MappedExperiment(e.definition(), s));
         }
         return new InterimConfig(c.kafka(), events, c.http(), c.webhook(), experiments);
     }

@@ -8,11 +8,11 @@ import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.json.JsonMapper;
-import dev.interim.config.EventMapping;
-import dev.interim.config.ExperimentConfig;
+import dev.interim.events.EventMapping;
+import dev.interim.events.MappedExperiment;
 import dev.interim.config.InterimConfig;
-import dev.interim.config.MetricSource;
-import dev.interim.config.ValueRange;
+import dev.interim.events.MetricSource;
+import dev.interim.events.ValueRange;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.stream.BadEventException.Reason;
@@ -72,7 +72,7 @@ final class JsonEventReaderStreamingTreeOracle implements EventReader {
                 .enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION)
                 .build();
         this.json = JsonMapper.builder(factory).enable(DeserializationFeature.FAIL_ON_TRAILING_TOKENS).build();
-        for (ExperimentConfig e : config.experiments()) {
+        for (MappedExperiment e : config.experiments()) {
             List<Metric> metrics = new ArrayList<>();
             for (MetricDefinition m : e.definition().metrics()) {
                 metrics.add(new Metric(m.name(), e.source(m)));

@@ -69,7 +69,7 @@ class JsonEventReaderTest {
     }
 
     private final Catalog catalog = new Catalog(config().experiments().stream().map(e -> e.definition()).toList());
-    private final JsonEventReader reader = new JsonEventReader(config());
+    private final JsonEventReader reader = new JsonEventReader(config().catalog());
     private final PartitionState state = new PartitionState("routing.events-0", catalog);
 
     private void read(String json) throws BadEventException {

@@ -57,7 +57,7 @@ class OfflineTallyTest {
     }
 
     private static void feed(OfflineTally tally, String... events) throws BadEventException {
-        JsonEventReader reader = new JsonEventReader(CONFIG);
+        JsonEventReader reader = new JsonEventReader(CONFIG.catalog());
         for (String e : events) {
             reader.read(e.getBytes(StandardCharsets.UTF_8), tally);
         }

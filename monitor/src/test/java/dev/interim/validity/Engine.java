@@ -87,7 +87,7 @@ final class Engine {
             c.restore(List.of(), Decision.CONTINUE);
         }
         OfflineTally tally = new OfflineTally(List.of(definition));
-        JsonEventReader reader = new JsonEventReader(config);
+        JsonEventReader reader = new JsonEventReader(config.catalog());
         int k = Traffic.METRICS.length;
         boolean[] missed = new boolean[k];
         double[] stopEffects = new double[k];

@@ -17,11 +17,11 @@ package dev.interim.stats;
  * error is 0 and the estimate equals the null value the statistic is 0/0; the test is refused with an
  * {@link InsufficientDataException}, as it is when an arm has too few observations.
  */
-public final class MeanTests {
+public final class MeanSignificance {
 
     private static final double Z = Double.POSITIVE_INFINITY;
 
-    private MeanTests() {
+    private MeanSignificance() {
     }
 
     /**
@@ -32,11 +32,11 @@ public final class MeanTests {
      */
     public static TestResult oneSampleZ(Moments sample, double mu0, double sigma, Alternative alternative) {
         String test = "one-sample z";
-        Checks.notNull("sample", sample);
-        Checks.notNull("alternative", alternative);
-        Checks.finite("mu0", mu0);
-        Checks.positive("sigma", sigma);
-        Checks.atLeast(test, "observations", sample.count(), 1);
+        Arguments.notNull("sample", sample);
+        Arguments.notNull("alternative", alternative);
+        Arguments.finite("mu0", mu0);
+        Arguments.positive("sigma", sigma);
+        Arguments.atLeast(test, "observations", sample.count(), 1);
         double se = sigma / Math.sqrt(sample.count());
         return TestResult.of(test, (sample.mean() - mu0) / se, Z, alternative, sample.mean(), se);
     }
@@ -67,8 +67,8 @@ public final class MeanTests {
     public static TestResult twoSampleZ(Moments a, Moments b, double sigmaA, double sigmaB, Alternative alternative) {
         String test = "two-sample z (known variances)";
         checkTwo(test, a, b, alternative, 1);
-        Checks.positive("sigmaA", sigmaA);
-        Checks.positive("sigmaB", sigmaB);
+        Arguments.positive("sigmaA", sigmaA);
+        Arguments.positive("sigmaB", sigmaB);
         double se = Math.sqrt(sigmaA * sigmaA / a.count() + sigmaB * sigmaB / b.count());
         double difference = a.mean() - b.mean();
         return TestResult.of(test, difference / se, Z, alternative, difference, se);
@@ -86,7 +86,7 @@ public final class MeanTests {
         checkTwo(test, a, b, alternative, 2);
         double se = Math.sqrt(a.variance() / a.count() + b.variance() / b.count());
         double difference = a.mean() - b.mean();
-        return TestResult.of(test, Checks.ratio(test, difference, se), Z, alternative, difference, se);
+        return TestResult.of(test, Arguments.ratio(test, difference, se), Z, alternative, difference, se);
     }
 
     /**
@@ -99,12 +99,12 @@ public final class MeanTests {
     public static TestResult pooledT(Moments a, Moments b, Alternative alternative) {
         String test = "pooled t";
         checkTwo(test, a, b, alternative, 1);
-        Checks.atLeast(test, "observations in both samples together", a.count() + b.count(), 3);
+        Arguments.atLeast(test, "observations in both samples together", a.count() + b.count(), 3);
         double df = (double) a.count() + b.count() - 2;
         double pooledVariance = (a.sumSquaredDeviations() + b.sumSquaredDeviations()) / df;
         double se = Math.sqrt(pooledVariance * (1.0 / a.count() + 1.0 / b.count()));
         double difference = a.mean() - b.mean();
-        return TestResult.of(test, Checks.ratio(test, difference, se), df, alternative, difference, se);
+        return TestResult.of(test, Arguments.ratio(test, difference, se), df, alternative, difference, se);
     }
 
     /**
@@ -139,32 +139,32 @@ public final class MeanTests {
                 b.count(), a.mean() - b.mean(), alternative);
     }
 
-    /** Welch's t from the two per-observation variances and counts (shared with {@link RatioTests}). */
+    /** Welch's t from the two per-observation variances and counts (shared with {@link RatioSignificance}). */
     static TestResult welchFromVariances(String test, double varianceA, long na, double varianceB, long nb,
                                          double difference, Alternative alternative) {
         double va = varianceA / na;
         double vb = varianceB / nb;
         double se = Math.sqrt(va + vb);
-        double statistic = Checks.ratio(test, difference, se);
+        double statistic = Arguments.ratio(test, difference, se);
         double df = se > 0.0 ? (va + vb) * (va + vb) / (va * va / (na - 1) + vb * vb / (nb - 1)) : (double) na + nb - 2;
         return TestResult.of(test, statistic, df, alternative, difference, se);
     }
 
     private static TestResult oneSampleT(String test, Moments sample, double mu0, Alternative alternative) {
-        Checks.notNull("sample", sample);
-        Checks.notNull("alternative", alternative);
-        Checks.finite("mu0", mu0);
-        Checks.atLeast(test, "observations", sample.count(), 2);
+        Arguments.notNull("sample", sample);
+        Arguments.notNull("alternative", alternative);
+        Arguments.finite("mu0", mu0);
+        Arguments.atLeast(test, "observations", sample.count(), 2);
         double se = sample.standardErrorOfMean();
-        double statistic = Checks.ratio(test, sample.mean() - mu0, se);
+        double statistic = Arguments.ratio(test, sample.mean() - mu0, se);
         return TestResult.of(test, statistic, sample.count() - 1.0, alternative, sample.mean(), se);
     }
 
     private static void checkTwo(String test, Moments a, Moments b, Alternative alternative, long minimumPerArm) {
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "observations in the first sample", a.count(), minimumPerArm);
-        Checks.atLeast(test, "observations in the second sample", b.count(), minimumPerArm);
+        Arguments.notNull("a", a);
+        Arguments.notNull("b", b);
+        Arguments.notNull("alternative", alternative);
+        Arguments.atLeast(test, "observations in the first sample", a.count(), minimumPerArm);
+        Arguments.atLeast(test, "observations in the second sample", b.count(), minimumPerArm);
     }
 }

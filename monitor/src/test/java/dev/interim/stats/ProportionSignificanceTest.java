@@ -11,7 +11,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.ValueSource;
 
-class ProportionTestsTest {
+class ProportionSignificanceTest {
 
     private static final NormalDistribution REFERENCE_NORMAL = new NormalDistribution(0, 1);
     private static final ChiSquareTest REFERENCE_CHI_SQUARE = new ChiSquareTest();
@@ -26,7 +26,7 @@ class ProportionTestsTest {
         long sb = random.nextLong(1, nb);
         ProportionCounts a = new ProportionCounts(sa, na);
         ProportionCounts b = new ProportionCounts(sb, nb);
-        TestResult r = ProportionTests.twoProportionZ(a, b, Alternative.TWO_SIDED);
+        TestResult r = ProportionSignificance.twoProportionZ(a, b, Alternative.TWO_SIDED);
 
         double pa = (double) sa / na;
         double pb = (double) sb / nb;
@@ -36,9 +36,9 @@ class ProportionTestsTest {
         // NormalDistribution; 1e-9 agreement as elsewhere
         assertThat(r.statistic()).isCloseTo(z, within(1e-9 * Math.max(1, Math.abs(z))));
         assertThat(r.pValue()).isCloseTo(2 * REFERENCE_NORMAL.cumulativeProbability(-Math.abs(z)), within(1e-9));
-        assertThat(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).pValue())
+        assertThat(ProportionSignificance.twoProportionZ(a, b, Alternative.GREATER).pValue())
                 .isCloseTo(REFERENCE_NORMAL.cumulativeProbability(-z), within(1e-9));
-        assertThat(ProportionTests.twoProportionZ(a, b, Alternative.LESS).pValue())
+        assertThat(ProportionSignificance.twoProportionZ(a, b, Alternative.LESS).pValue())
                 .isCloseTo(REFERENCE_NORMAL.cumulativeProbability(z), within(1e-9));
 
         // reference library: Apache Commons Math 3.6.1 ChiSquareTest on the 2×2 table; the squared
@@ -61,7 +61,7 @@ class ProportionTestsTest {
         long n = 20 + random.nextInt(10_000);
         long s = random.nextLong(0, n + 1);
         double p0 = 0.05 + 0.9 * random.nextDouble();
-        TestResult r = ProportionTests.oneProportionZ(new ProportionCounts(s, n), p0, Alternative.TWO_SIDED);
+        TestResult r = ProportionSignificance.oneProportionZ(new ProportionCounts(s, n), p0, Alternative.TWO_SIDED);
 
         double rate = (double) s / n;
         double z = (rate - p0) / Math.sqrt(p0 * (1 - p0) / n);
@@ -80,18 +80,18 @@ class ProportionTestsTest {
 
     @Test
     void noSuccessesOrNoFailuresInEitherArmIsRefused() {
-        // documented convention (ProportionTests javadoc): pooled SE 0 and difference 0, 0/0
-        assertThatThrownBy(() -> ProportionTests.twoProportionZ(new ProportionCounts(0, 100),
+        // documented convention (ProportionSignificance javadoc): pooled SE 0 and difference 0, 0/0
+        assertThatThrownBy(() -> ProportionSignificance.twoProportionZ(new ProportionCounts(0, 100),
                 new ProportionCounts(0, 80), Alternative.GREATER))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("0/0");
-        assertThatThrownBy(() -> ProportionTests.twoProportionZ(new ProportionCounts(100, 100),
+        assertThatThrownBy(() -> ProportionSignificance.twoProportionZ(new ProportionCounts(100, 100),
                 new ProportionCounts(80, 80), Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
     }
 
     @Test
     void oneArmAtZeroStillHasAFiniteStatistic() {
-        TestResult r = ProportionTests.twoProportionZ(new ProportionCounts(0, 100), new ProportionCounts(5, 100),
+        TestResult r = ProportionSignificance.twoProportionZ(new ProportionCounts(0, 100), new ProportionCounts(5, 100),
                 Alternative.LESS);
         // common practice: the pooled rate 0.025 gives a positive null SE, z = -0.05 / sqrt(0.025·0.975·0.02)
         assertThat(r.statistic()).isCloseTo(-0.05 / Math.sqrt(0.025 * 0.975 * 0.02), within(1e-12));
@@ -102,15 +102,15 @@ class ProportionTestsTest {
     void refusesBadInput() {
         ProportionCounts some = new ProportionCounts(3, 10);
         // common practice: a rate needs trials; a null rate lies strictly inside (0, 1)
-        assertThatThrownBy(() -> ProportionTests.twoProportionZ(ProportionCounts.EMPTY, some, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> ProportionSignificance.twoProportionZ(ProportionCounts.EMPTY, some, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("first sample");
-        assertThatThrownBy(() -> ProportionTests.oneProportionZ(ProportionCounts.EMPTY, 0.5, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> ProportionSignificance.oneProportionZ(ProportionCounts.EMPTY, 0.5, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
-        assertThatThrownBy(() -> ProportionTests.oneProportionZ(some, 0.0, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> ProportionSignificance.oneProportionZ(some, 0.0, Alternative.TWO_SIDED))
                 .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("p0 must lie strictly between 0 and 1");
-        assertThatThrownBy(() -> ProportionTests.oneProportionZ(some, 1.0, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> ProportionSignificance.oneProportionZ(some, 1.0, Alternative.TWO_SIDED))
                 .isInstanceOf(IllegalArgumentException.class);
-        assertThatThrownBy(() -> ProportionTests.twoProportionZ(some, some, null))
+        assertThatThrownBy(() -> ProportionSignificance.twoProportionZ(some, some, null))
                 .isInstanceOf(IllegalArgumentException.class);
     }
 
@@ -118,7 +118,7 @@ class ProportionTestsTest {
     void atLeastPooledTakesEachArmsVarianceAsAtLeastThePooledOne() {
         ProportionCounts a = new ProportionCounts(12, 400);
         ProportionCounts b = new ProportionCounts(4, 380);
-        TestResult r = ProportionTests.twoProportionZAtLeastPooled(a, b, Alternative.GREATER);
+        TestResult r = ProportionSignificance.twoProportionZAtLeastPooled(a, b, Alternative.GREATER);
         // By hand: p̄ = 16/780; the second arm's p(1 − p) is below p̄(1 − p̄), so it takes the pooled one.
         double pooled = 16.0 / 780 * (1 - 16.0 / 780);
         double se = Math.sqrt(Math.max(0.03 * 0.97, pooled) / 400 + pooled / 380);
@@ -126,9 +126,9 @@ class ProportionTestsTest {
         org.assertj.core.api.Assertions.assertThat(r.statistic()).isCloseTo((0.03 - 4.0 / 380) / se,
                 org.assertj.core.api.Assertions.within(1e-12));
         org.assertj.core.api.Assertions.assertThat(r.standardError()).as("never below the score test's")
-                .isGreaterThanOrEqualTo(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).standardError()
-                        * Math.abs(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).estimate())
-                        / Math.abs(ProportionTests.twoProportionZ(a, b, Alternative.GREATER).statistic())
+                .isGreaterThanOrEqualTo(ProportionSignificance.twoProportionZ(a, b, Alternative.GREATER).standardError()
+                        * Math.abs(ProportionSignificance.twoProportionZ(a, b, Alternative.GREATER).estimate())
+                        / Math.abs(ProportionSignificance.twoProportionZ(a, b, Alternative.GREATER).statistic())
                         - 1e-15);
     }
 }

@@ -16,7 +16,7 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvFileSource;
 import org.junit.jupiter.params.provider.ValueSource;
 
-class MeanTestsTest {
+class MeanSignificanceTest {
 
     /** Statistics and p-values agree with the reference library to 1e-9 (both compute to ~1e-14). */
     private static final double AGREEMENT = 1e-9;
@@ -28,7 +28,7 @@ class MeanTestsTest {
     void reproducesTheHandbookTwoSampleExample(long n1, double mean1, double sd1, long n2, double mean2, double sd2,
                                                double pooledSd, double pooledSdTolerance, double t, double tTolerance,
                                                double df, double criticalValue, double criticalValueTolerance) {
-        TestResult result = MeanTests.pooledT(Moments.of(n1, mean1, sd1), Moments.of(n2, mean2, sd2),
+        TestResult result = MeanSignificance.pooledT(Moments.of(n1, mean1, sd1), Moments.of(n2, mean2, sd2),
                 Alternative.TWO_SIDED);
         double seFactor = Math.sqrt(1.0 / n1 + 1.0 / n2);
         // NIST/SEMATECH e-Handbook §1.3.5.3 (from memory); tolerances from the rounding of the inputs
@@ -54,7 +54,7 @@ class MeanTestsTest {
         double mu0 = 9.5;
 
         // reference library: Apache Commons Math 3.6.1 TTest
-        TestResult one = assertMatches(alt -> MeanTests.oneSampleT(Moments.ofValues(x), mu0, alt),
+        TestResult one = assertMatches(alt -> MeanSignificance.oneSampleT(Moments.ofValues(x), mu0, alt),
                 REFERENCE.t(mu0, x), REFERENCE.tTest(mu0, x), new TDistribution(x.length - 1.0));
         assertThat(one.degreesOfFreedom()).isEqualTo(x.length - 1.0); // common practice: n - 1 degrees of freedom
 
@@ -63,7 +63,7 @@ class MeanTestsTest {
             differences[i] = x[i] - y[i];
         }
         // reference library: Apache Commons Math 3.6.1 TTest
-        assertMatches(alt -> MeanTests.pairedT(Moments.ofValues(differences), alt),
+        assertMatches(alt -> MeanSignificance.pairedT(Moments.ofValues(differences), alt),
                 REFERENCE.pairedT(x, y), REFERENCE.pairedTTest(x, y), new TDistribution(x.length - 1.0));
     }
 
@@ -77,7 +77,7 @@ class MeanTestsTest {
         Moments mb = Moments.ofValues(b);
 
         // reference library: Apache Commons Math 3.6.1 TTest (homoscedastic)
-        TestResult pooled = assertMatches(alt -> MeanTests.pooledT(ma, mb, alt), REFERENCE.homoscedasticT(a, b),
+        TestResult pooled = assertMatches(alt -> MeanSignificance.pooledT(ma, mb, alt), REFERENCE.homoscedasticT(a, b),
                 REFERENCE.homoscedasticTTest(a, b), new TDistribution(a.length + b.length - 2.0));
         assertThat(pooled.degreesOfFreedom()).isEqualTo(a.length + b.length - 2.0); // common practice: n_a + n_b - 2
 
@@ -86,7 +86,7 @@ class MeanTestsTest {
         double vb = StatUtils.variance(b) / b.length;
         double df = (va + vb) * (va + vb) / (va * va / (a.length - 1) + vb * vb / (b.length - 1));
         // reference library: Apache Commons Math 3.6.1 TTest (Welch)
-        TestResult welch = assertMatches(alt -> MeanTests.welchT(ma, mb, alt), REFERENCE.t(a, b),
+        TestResult welch = assertMatches(alt -> MeanSignificance.welchT(ma, mb, alt), REFERENCE.t(a, b),
                 REFERENCE.tTest(a, b), new TDistribution(df));
         assertClose(welch.degreesOfFreedom(), df); // Welch–Satterthwaite formula, computed above
         // common practice: Welch's df lies between min(n) - 1 and n_a + n_b - 2
@@ -105,31 +105,31 @@ class MeanTestsTest {
         // one-sample z, known sigma: z = (mean - mu0) / (sigma / sqrt(n)) (common practice), p from
         // reference library: Apache Commons Math 3.6.1 NormalDistribution
         double z1 = (meanA - 0.1) / (2.0 / Math.sqrt(a.length));
-        assertMatches(alt -> MeanTests.oneSampleZ(Moments.ofValues(a), 0.1, 2.0, alt), z1,
+        assertMatches(alt -> MeanSignificance.oneSampleZ(Moments.ofValues(a), 0.1, 2.0, alt), z1,
                 2 * REFERENCE_NORMAL.cumulativeProbability(-Math.abs(z1)), REFERENCE_NORMAL);
 
         // two-sample z, known sigmas (common practice), same reference
         double z2 = (meanA - meanB) / Math.sqrt(4.0 / a.length + 2.25 / b.length);
-        assertMatches(alt -> MeanTests.twoSampleZ(Moments.ofValues(a), Moments.ofValues(b), 2.0, 1.5, alt), z2,
+        assertMatches(alt -> MeanSignificance.twoSampleZ(Moments.ofValues(a), Moments.ofValues(b), 2.0, 1.5, alt), z2,
                 2 * REFERENCE_NORMAL.cumulativeProbability(-Math.abs(z2)), REFERENCE_NORMAL);
 
         // two-sample z, estimated variances: the Welch statistic of the reference library
         // (Apache Commons Math 3.6.1 TTest.t) against its normal distribution
         double z3 = REFERENCE.t(a, b);
         TestResult estimated = assertMatches(
-                alt -> MeanTests.twoSampleZEstimated(Moments.ofValues(a), Moments.ofValues(b), alt), z3,
+                alt -> MeanSignificance.twoSampleZEstimated(Moments.ofValues(a), Moments.ofValues(b), alt), z3,
                 2 * REFERENCE_NORMAL.cumulativeProbability(-Math.abs(z3)), REFERENCE_NORMAL);
         assertThat(estimated.degreesOfFreedom()).isEqualTo(Double.POSITIVE_INFINITY); // documented: z tests
     }
 
     @Test
     void estimateIsFirstMinusSecond() {
-        TestResult r = MeanTests.welchT(Moments.of(40, 5.0, 1.0), Moments.of(40, 3.0, 1.0), Alternative.GREATER);
-        // documented direction (MeanTests javadoc): treatment minus control, positive when the first is higher
+        TestResult r = MeanSignificance.welchT(Moments.of(40, 5.0, 1.0), Moments.of(40, 3.0, 1.0), Alternative.GREATER);
+        // documented direction (MeanSignificance javadoc): treatment minus control, positive when the first is higher
         assertThat(r.estimate()).isEqualTo(2.0);
         assertThat(r.statistic()).isPositive();
         assertThat(r.pValue()).isLessThan(0.5);
-        assertThat(MeanTests.welchT(Moments.of(40, 5.0, 1.0), Moments.of(40, 3.0, 1.0), Alternative.LESS).pValue())
+        assertThat(MeanSignificance.welchT(Moments.of(40, 5.0, 1.0), Moments.of(40, 3.0, 1.0), Alternative.LESS).pValue())
                 .isGreaterThan(0.5);
     }
 
@@ -137,31 +137,31 @@ class MeanTestsTest {
     void zeroVarianceWithADifferenceIsInfinitelyStrongEvidence() {
         Moments low = Moments.ofValues(1, 1, 1);
         Moments high = Moments.ofValues(2, 2, 2, 2);
-        // documented convention (MeanTests javadoc) and the limit of the statistic as the SE tends to 0
+        // documented convention (MeanSignificance javadoc) and the limit of the statistic as the SE tends to 0
         // (common practice): ±∞, p-value 0, or 1 for the opposite one-sided alternative
         for (TestResult r : new TestResult[] {
-                MeanTests.welchT(low, high, Alternative.TWO_SIDED),
-                MeanTests.pooledT(low, high, Alternative.TWO_SIDED),
-                MeanTests.twoSampleZEstimated(low, high, Alternative.TWO_SIDED)}) {
+                MeanSignificance.welchT(low, high, Alternative.TWO_SIDED),
+                MeanSignificance.pooledT(low, high, Alternative.TWO_SIDED),
+                MeanSignificance.twoSampleZEstimated(low, high, Alternative.TWO_SIDED)}) {
             assertThat(r.statistic()).isEqualTo(Double.NEGATIVE_INFINITY);
             assertThat(r.pValue()).isZero();
             assertThat(r.zEquivalent()).isEqualTo(Double.NEGATIVE_INFINITY);
             assertThat(r.confidenceInterval(0.95)).isEqualTo(new ConfidenceInterval(-1, -1, 0.95));
         }
-        assertThat(MeanTests.welchT(low, high, Alternative.GREATER).pValue()).isEqualTo(1.0);
-        assertThat(MeanTests.welchT(low, high, Alternative.LESS).pValue()).isZero();
+        assertThat(MeanSignificance.welchT(low, high, Alternative.GREATER).pValue()).isEqualTo(1.0);
+        assertThat(MeanSignificance.welchT(low, high, Alternative.LESS).pValue()).isZero();
         // documented: with both variances 0 Welch reports n_a + n_b - 2 degrees of freedom
-        assertThat(MeanTests.welchT(low, high, Alternative.TWO_SIDED).degreesOfFreedom()).isEqualTo(5.0);
-        assertThat(MeanTests.oneSampleT(high, 1.5, Alternative.TWO_SIDED).statistic())
+        assertThat(MeanSignificance.welchT(low, high, Alternative.TWO_SIDED).degreesOfFreedom()).isEqualTo(5.0);
+        assertThat(MeanSignificance.oneSampleT(high, 1.5, Alternative.TWO_SIDED).statistic())
                 .isEqualTo(Double.POSITIVE_INFINITY);
-        assertThat(MeanTests.pairedT(high, Alternative.GREATER).pValue()).isZero();
+        assertThat(MeanSignificance.pairedT(high, Alternative.GREATER).pValue()).isZero();
     }
 
     @Test
     void welchWithOneConstantArmHasTheOtherArmsDegreesOfFreedom() {
         Moments constant = Moments.ofValues(4, 4, 4, 4, 4);
         Moments varying = Moments.ofValues(1, 2, 6, 3, 7, 2, 9);
-        TestResult r = MeanTests.welchT(varying, constant, Alternative.TWO_SIDED);
+        TestResult r = MeanSignificance.welchT(varying, constant, Alternative.TWO_SIDED);
         // Welch–Satterthwaite with v_b = 0 reduces to n_a - 1 (algebra of the formula)
         assertThat(r.degreesOfFreedom()).isCloseTo(6.0, within(1e-12));
         // reference library: Apache Commons Math 3.6.1 TTest
@@ -175,7 +175,7 @@ class MeanTestsTest {
         Moments ma = Moments.ofValues(a);
         Moments mb = Moments.ofValues(b);
         double pooled = (ma.sumSquaredDeviations() + mb.sumSquaredDeviations()) / (a.length + b.length - 2);
-        TestResult r = MeanTests.welchTAtLeastPooled(ma, mb, Alternative.TWO_SIDED);
+        TestResult r = MeanSignificance.welchTAtLeastPooled(ma, mb, Alternative.TWO_SIDED);
         // reference library: Apache Commons Math 3.6.1 TTest (Welch's t) on summaries carrying the floored variances
         org.apache.commons.math3.stat.descriptive.StatisticalSummaryValues sa =
                 new org.apache.commons.math3.stat.descriptive.StatisticalSummaryValues(ma.mean(),
@@ -186,23 +186,23 @@ class MeanTestsTest {
         assertThat(r.statistic()).isCloseTo(REFERENCE.t(sa, sb), within(1e-12));
         assertClose(r.pValue(), REFERENCE.tTest(sa, sb));
         assertThat(r.standardError()).as("never below the pooled test's")
-                .isGreaterThanOrEqualTo(MeanTests.pooledT(ma, mb, Alternative.TWO_SIDED).standardError());
+                .isGreaterThanOrEqualTo(MeanSignificance.pooledT(ma, mb, Alternative.TWO_SIDED).standardError());
     }
 
     @Test
     void zeroVarianceWithoutADifferenceIsRefused() {
         Moments same = Moments.ofValues(3, 3, 3);
-        // documented convention (MeanTests javadoc): 0/0 has no p-value; R's t.test also refuses
+        // documented convention (MeanSignificance javadoc): 0/0 has no p-value; R's t.test also refuses
         // "essentially constant" data (common practice)
-        assertThatThrownBy(() -> MeanTests.welchT(same, same, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.welchT(same, same, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("0/0");
-        assertThatThrownBy(() -> MeanTests.pooledT(same, same, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.pooledT(same, same, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
-        assertThatThrownBy(() -> MeanTests.twoSampleZEstimated(same, same, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.twoSampleZEstimated(same, same, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
-        assertThatThrownBy(() -> MeanTests.oneSampleT(same, 3.0, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.oneSampleT(same, 3.0, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
-        assertThatThrownBy(() -> MeanTests.pairedT(Moments.ofValues(0, 0), Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.pairedT(Moments.ofValues(0, 0), Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
     }
 
@@ -211,20 +211,20 @@ class MeanTestsTest {
         Moments one = Moments.ofValues(1.0);
         Moments two = Moments.ofValues(1.0, 2.0);
         // common practice: a sample variance needs two observations; a mean needs one
-        assertThatThrownBy(() -> MeanTests.oneSampleT(one, 0, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.oneSampleT(one, 0, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("at least 2");
-        assertThatThrownBy(() -> MeanTests.welchT(one, two, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.welchT(one, two, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("first sample");
-        assertThatThrownBy(() -> MeanTests.twoSampleZEstimated(two, one, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.twoSampleZEstimated(two, one, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("second sample");
-        assertThatThrownBy(() -> MeanTests.pooledT(one, one, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.pooledT(one, one, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class).hasMessageContaining("at least 3");
-        assertThatThrownBy(() -> MeanTests.oneSampleZ(Moments.EMPTY, 0, 1, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.oneSampleZ(Moments.EMPTY, 0, 1, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
-        assertThatThrownBy(() -> MeanTests.twoSampleZ(one, Moments.EMPTY, 1, 1, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.twoSampleZ(one, Moments.EMPTY, 1, 1, Alternative.TWO_SIDED))
                 .isInstanceOf(InsufficientDataException.class);
         // common practice: pooled t with one observation in an arm still has n_a + n_b - 2 = 1 degree of freedom
-        assertThat(MeanTests.pooledT(one, Moments.ofValues(2.0, 4.0), Alternative.TWO_SIDED).degreesOfFreedom())
+        assertThat(MeanSignificance.pooledT(one, Moments.ofValues(2.0, 4.0), Alternative.TWO_SIDED).degreesOfFreedom())
                 .isEqualTo(1.0);
     }
 
@@ -232,18 +232,18 @@ class MeanTestsTest {
     void refusesBadParameters() {
         Moments m = Moments.ofValues(1, 2, 3);
         // common practice: a known sigma is finite and positive, the null value finite
-        assertThatThrownBy(() -> MeanTests.oneSampleZ(m, 0, 0, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.oneSampleZ(m, 0, 0, Alternative.TWO_SIDED))
                 .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("sigma must be finite and > 0");
-        assertThatThrownBy(() -> MeanTests.twoSampleZ(m, m, 1, -1, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.twoSampleZ(m, m, 1, -1, Alternative.TWO_SIDED))
                 .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("sigmaB");
-        assertThatThrownBy(() -> MeanTests.oneSampleT(m, Double.NaN, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.oneSampleT(m, Double.NaN, Alternative.TWO_SIDED))
                 .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("mu0");
-        assertThatThrownBy(() -> MeanTests.welchT(m, m, null))
+        assertThatThrownBy(() -> MeanSignificance.welchT(m, m, null))
                 .isInstanceOf(IllegalArgumentException.class).hasMessageContaining("alternative");
-        assertThatThrownBy(() -> MeanTests.welchT(null, m, Alternative.LESS))
+        assertThatThrownBy(() -> MeanSignificance.welchT(null, m, Alternative.LESS))
                 .isInstanceOf(IllegalArgumentException.class);
         // and these are bad arguments, not "wait for data"
-        assertThatThrownBy(() -> MeanTests.oneSampleZ(m, 0, Double.NaN, Alternative.TWO_SIDED))
+        assertThatThrownBy(() -> MeanSignificance.oneSampleZ(m, 0, Double.NaN, Alternative.TWO_SIDED))
                 .isNotInstanceOf(InsufficientDataException.class);
     }
 

@@ -1,9 +1,9 @@
 package dev.interim.stats;
 
 /** Argument checks shared by the tests, so every message states the rule it enforces. */
-final class Checks {
+final class Arguments {
 
-    private Checks() {
+    private Arguments() {
     }
 
     static double finite(String name, double value) {

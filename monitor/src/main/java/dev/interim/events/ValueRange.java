@@ -1,4 +1,4 @@
-package dev.interim.config;
+package dev.interim.events;
 
 /**
  * The values one event may carry for a mean or a total, both ends included ({@code min ≤ v ≤ max});

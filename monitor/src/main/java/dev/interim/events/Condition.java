@@ -1,4 +1,4 @@
-package dev.interim.config;
+package dev.interim.events;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import java.math.BigDecimal;
@@ -35,11 +35,11 @@ public record Condition(Comparison comparison, List<JsonNode> operands) {
             return key;
         }
 
-        boolean ordering() {
+        public boolean ordering() {
             return this == ABOVE || this == AT_LEAST || this == BELOW || this == AT_MOST;
         }
 
-        boolean takesList() {
+        public boolean takesList() {
             return this == IN || this == NOT_IN;
         }
     }

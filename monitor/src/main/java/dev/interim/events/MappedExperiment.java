@@ -1,4 +1,4 @@
-package dev.interim.config;
+package dev.interim.events;
 
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
@@ -10,9 +10,9 @@ import java.util.Map;
  * @param definition the experiment and its metrics
  * @param sources the source of each metric, by metric name
  */
-public record ExperimentConfig(ExperimentDefinition definition, Map<String, MetricSource> sources) {
+public record MappedExperiment(ExperimentDefinition definition, Map<String, MetricSource> sources) {
 
-    public ExperimentConfig {
+    public MappedExperiment {
         sources = Map.copyOf(sources);
         for (MetricDefinition m : definition.metrics()) {
             if (!sources.containsKey(m.name())) {

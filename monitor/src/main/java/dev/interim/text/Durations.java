@@ -1,4 +1,4 @@
-package dev.interim.config;
+package dev.interim.text;
 
 import dev.interim.text.UserText;
 import java.time.Duration;

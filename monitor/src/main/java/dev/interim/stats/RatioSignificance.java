@@ -12,8 +12,8 @@ package dev.interim.stats;
  * {@link #twoSampleAtLeastPooled}: the same with each arm's variance at least the one pooled under no
  * change ({@link #twoSampleUnderNull}).
  */
-public final class RatioTests {
-    private RatioTests() {
+public final class RatioSignificance {
+    private RatioSignificance() {
     }
 
     /**
@@ -31,7 +31,7 @@ public final class RatioTests {
             throw new InsufficientDataException(test + ": no unit differs from another in either arm yet, so the"
                     + " ratio has no variance; wait for data that vary");
         }
-        return MeanTests.welchFromVariances(test, sa, a.count(), sb, b.count(), a.ratio() - b.ratio(), alternative);
+        return MeanSignificance.welchFromVariances(test, sa, a.count(), sb, b.count(), a.ratio() - b.ratio(), alternative);
     }
 
     /**
@@ -61,7 +61,7 @@ public final class RatioTests {
         double meanY = sumY / (na + nb);
         double se = Math.sqrt(ss / df / (meanY * meanY) * (1 / na + 1 / nb));
         double difference = a.ratio() - b.ratio();
-        return TestResult.of(test, Checks.ratio(test, difference, se), df, alternative, difference, se);
+        return TestResult.of(test, Arguments.ratio(test, difference, se), df, alternative, difference, se);
     }
 
     /** Σ(d − d̄)² of d = x − r·y within one arm, from its moments. */
@@ -71,7 +71,7 @@ public final class RatioTests {
 
     /**
      * {@link #twoSample} with each arm's linearised variance taken as at least the pooled one of
-     * {@link #twoSampleUnderNull} (as {@link MeanTests#welchTAtLeastPooled} does for means): the
+     * {@link #twoSampleUnderNull} (as {@link MeanSignificance#welchTAtLeastPooled} does for means): the
      * standard error of the repeated confidence interval, never narrower than the statistic's.
      */
     public static TestResult twoSampleAtLeastPooled(RatioMoments a, RatioMoments b, Alternative alternative) {
@@ -83,7 +83,7 @@ public final class RatioTests {
         double perUnit = pooled.standardError() * pooled.standardError() / (1 / na + 1 / nb);
         double sa = Math.max(a.linearisedVariance(), perUnit);
         double sb = Math.max(b.linearisedVariance(), perUnit);
-        return MeanTests.welchFromVariances(test, sa, a.count(), sb, b.count(), a.ratio() - b.ratio(), alternative);
+        return MeanSignificance.welchFromVariances(test, sa, a.count(), sb, b.count(), a.ratio() - b.ratio(), alternative);
     }
 
     /**
@@ -93,23 +93,23 @@ public final class RatioTests {
      */
     public static TestResult oneSample(RatioMoments sample, double value, Alternative alternative) {
         String test = "delta-method t";
-        Checks.notNull("sample", sample);
-        Checks.notNull("alternative", alternative);
-        Checks.finite("value", value);
-        Checks.atLeast(test, "units", sample.count(), 2);
+        Arguments.notNull("sample", sample);
+        Arguments.notNull("alternative", alternative);
+        Arguments.finite("value", value);
+        Arguments.atLeast(test, "units", sample.count(), 2);
         requireDenominator(test, sample);
         double se = Math.sqrt(sample.ratioVariance());
         double difference = sample.ratio() - value;
-        return TestResult.of(test, Checks.ratio(test, difference, se), sample.count() - 1.0, alternative,
+        return TestResult.of(test, Arguments.ratio(test, difference, se), sample.count() - 1.0, alternative,
                 sample.ratio(), se);
     }
 
     private static void checkTwo(String test, RatioMoments a, RatioMoments b, Alternative alternative) {
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "units in the first sample", a.count(), 2);
-        Checks.atLeast(test, "units in the second sample", b.count(), 2);
+        Arguments.notNull("a", a);
+        Arguments.notNull("b", b);
+        Arguments.notNull("alternative", alternative);
+        Arguments.atLeast(test, "units in the first sample", a.count(), 2);
+        Arguments.atLeast(test, "units in the second sample", b.count(), 2);
         requireDenominator(test, a);
         requireDenominator(test, b);
     }

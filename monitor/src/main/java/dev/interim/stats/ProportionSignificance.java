@@ -10,11 +10,11 @@ package dev.interim.stats;
  * since it estimates the variance of the difference whether or not the null holds. The Wald interval is
  * poor for rates near 0 or 1 and collapses to a point when an arm has none or all successes.
  */
-public final class ProportionTests {
+public final class ProportionSignificance {
 
     private static final double Z = Double.POSITIVE_INFINITY;
 
-    private ProportionTests() {
+    private ProportionSignificance() {
     }
 
     /**
@@ -32,7 +32,7 @@ public final class ProportionTests {
         double pooled = pooledRate(a, b);
         double pooledSe = Math.sqrt(pooled * (1 - pooled) * (1.0 / a.trials() + 1.0 / b.trials()));
         double difference = pa - pb;
-        double statistic = Checks.ratio(test, difference, pooledSe);
+        double statistic = Arguments.ratio(test, difference, pooledSe);
         double se = Math.sqrt(pa * (1 - pa) / a.trials() + pb * (1 - pb) / b.trials());
         return TestResult.of(test, statistic, Z, alternative, difference, se);
     }
@@ -56,7 +56,7 @@ public final class ProportionTests {
         double vp = pooled * (1 - pooled);
         double se = Math.sqrt(Math.max(pa * (1 - pa), vp) / a.trials() + Math.max(pb * (1 - pb), vp) / b.trials());
         double difference = pa - pb;
-        return TestResult.of(test, Checks.ratio(test, difference, se), Z, alternative, difference, se);
+        return TestResult.of(test, Arguments.ratio(test, difference, se), Z, alternative, difference, se);
     }
 
     /**
@@ -68,10 +68,10 @@ public final class ProportionTests {
      */
     public static TestResult oneProportionZ(ProportionCounts sample, double p0, Alternative alternative) {
         String test = "one-proportion z";
-        Checks.notNull("sample", sample);
-        Checks.notNull("alternative", alternative);
+        Arguments.notNull("sample", sample);
+        Arguments.notNull("alternative", alternative);
         Probabilities.requireOpen(p0, "p0");
-        Checks.atLeast(test, "trials", sample.trials(), 1);
+        Arguments.atLeast(test, "trials", sample.trials(), 1);
         double rate = sample.rate();
         double nullSe = Math.sqrt(p0 * (1 - p0) / sample.trials());
         double se = Math.sqrt(rate * (1 - rate) / sample.trials());
@@ -79,11 +79,11 @@ public final class ProportionTests {
     }
 
     private static void checkTwo(String test, ProportionCounts a, ProportionCounts b, Alternative alternative) {
-        Checks.notNull("a", a);
-        Checks.notNull("b", b);
-        Checks.notNull("alternative", alternative);
-        Checks.atLeast(test, "trials in the first sample", a.trials(), 1);
-        Checks.atLeast(test, "trials in the second sample", b.trials(), 1);
+        Arguments.notNull("a", a);
+        Arguments.notNull("b", b);
+        Arguments.notNull("alternative", alternative);
+        Arguments.atLeast(test, "trials in the first sample", a.trials(), 1);
+        Arguments.atLeast(test, "trials in the second sample", b.trials(), 1);
     }
 
     private static double pooledRate(ProportionCounts a, ProportionCounts b) {

@@ -1,4 +1,4 @@
-package dev.interim.config;
+package dev.interim.events;
 
 import com.fasterxml.jackson.core.JsonPointer;
 import java.util.Optional;
