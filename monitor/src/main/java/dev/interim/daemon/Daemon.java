@@ -130,7 +130,7 @@ public final class Daemon implements AutoCloseable {
         http = startHttp(config.http(), meters);
         try {
             instanceId = kafka.instanceId().orElseGet(() -> defaultInstanceId(http.port()));
-            installRoutes();
+            installRoutes(options.clock());
             if (kafka.embedded()) {
                 Path dir = options.dataDir() != null ? options.dataDir() : Path.of("interim-data");
                 phase = new Phase(Phase.Kind.STARTING, "starting the embedded Kafka broker");
@@ -180,7 +180,7 @@ public final class Daemon implements AutoCloseable {
         // until its session expires.
         boolean leave = config.kafka().instanceId().isEmpty() && config.http().port() == 0;
         for (int i = 0; i < config.kafka().tallyThreads(); i++) {
-            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config.catalog()), events, tallyMember(i))
+            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config.catalog()), events, tallyMember(i), options.clock())
                     .leaveGroupOnClose(leave));
         }
         judge = new JudgeStage(settings, catalog, options.clock(), events, new dev.interim.stream.DecisionWriter() {
@@ -390,7 +390,7 @@ public final class Daemon implements AutoCloseable {
     }
 
     /** The HTTP routes: health, the JSON API and the dashboard; they answer 503 until the work is owned. */
-    private void installRoutes() {
+    private void installRoutes(java.time.Clock clock) {
         http.route("GET", "/health", request -> health());
         ExperimentApi.install(http, new ExperimentApi.Operations() {
             @Override
@@ -437,7 +437,7 @@ public final class Daemon implements AutoCloseable {
         dev.interim.dashboard.Dashboard.install(http, () -> {
             JudgeStage j = judge;
             return j == null ? Map.of() : j.views();
-        });
+        }, clock);
     }
 
     private ExperimentApi.Ownership ownership() {

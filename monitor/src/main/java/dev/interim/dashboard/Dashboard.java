@@ -19,12 +19,10 @@ public final class Dashboard {
 
     private Dashboard() {}
 
-    /** Adds the dashboard's routes to {@code endpoint}, showing {@code views} (e.g. {@code judge::views}). */
-    public static void install(HttpEndpoint endpoint, Supplier<Map<String, ExperimentView>> views) {
-        install(endpoint, views, Clock.systemUTC());
-    }
-
-    /** As {@link #install(HttpEndpoint, Supplier)}, with the clock that dates the page ("as of", "ago"). */
+    /**
+     * Adds the dashboard's routes to {@code endpoint}, showing {@code views} (e.g. {@code judge::views}),
+     * dated by {@code clock} ("as of", "ago"): the daemon passes the clock its judge looks by.
+     */
     public static void install(HttpEndpoint endpoint, Supplier<Map<String, ExperimentView>> views, Clock clock) {
         Objects.requireNonNull(views, "views");
         Objects.requireNonNull(clock, "clock");

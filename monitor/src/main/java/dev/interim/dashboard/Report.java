@@ -33,10 +33,6 @@ public final class Report {
 
     private Report() {}
 
-    /** Writes the report of {@code view} to {@code file} (UTF-8), dated now, naming no source. */
-    public static void write(ExperimentView view, Path file) throws IOException {
-        write(view, file, null, Instant.now());
-    }
 
     /**
      * Writes the report of {@code view} to {@code file} (UTF-8, replacing it).

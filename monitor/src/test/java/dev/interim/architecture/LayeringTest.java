@@ -135,6 +135,20 @@ class LayeringTest {
                 .check(classes);
     }
 
+    /** The dashboard and the report are dated by the clock they are given, so tests move time instead of sleeping. */
+    @Test
+    void theDashboardAndTheTallyStageTakeTheirClock() {
+        noClasses().that().resideInAPackage("dev.interim.dashboard..")
+                .or().haveFullyQualifiedName("dev.interim.stream.TallyStage")
+                .should().callMethod(System.class, "currentTimeMillis")
+                .orShould().callMethod(System.class, "nanoTime")
+                .orShould().callMethod(java.time.Instant.class, "now")
+                .orShould().callMethod(java.time.Clock.class, "systemUTC")
+                .orShould().callMethod(java.time.Clock.class, "systemDefaultZone")
+                .because("time is passed in, as the judge's clock is")
+                .check(classes);
+    }
+
     @Test
     void noPackagesDependOnEachOtherInACycle() {
         com.tngtech.archunit.library.dependencies.SlicesRuleDefinition.slices().matching("dev.interim.(*)..")

@@ -224,7 +224,7 @@ class DashboardBrowserTest {
         assumeBrowser();
         ExperimentView view = DaemonClient.at("http://127.0.0.1:" + daemon.httpPort()).experiment("ferry-booking");
         Path file = Path.of("target", "report-ferry-booking.html").toAbsolutePath();
-        Report.write(view, file);
+        Report.write(view, file, null, java.time.Instant.now());
         browser.open(file.toUri());
         assertThat(browser.problems()).as("console errors").isEmpty();
         assertThat(browser.evaluate("document.querySelectorAll('svg.boundary-chart path.statistic').length").asInt()).isEqualTo(4);
