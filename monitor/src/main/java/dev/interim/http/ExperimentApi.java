@@ -133,7 +133,7 @@ public final class ExperimentApi {
         Map<String, ExperimentView> views = operations.views();
         ArrayNode out = JSON.createArrayNode();
         views.values().stream().sorted(Comparator.comparing(ExperimentView::id))
-                .forEach(v -> out.add(summary(v, false)));
+                .forEach(v -> out.add(summary(v, Detail.LAST_LOOK)));
         long elsewhere = operations.configured().stream().filter(id -> !views.containsKey(id)).count();
         return Response.json(200, JSON.writeValueAsBytes(out)).withHeader(ELSEWHERE_HEADER, Long.toString(elsewhere));
     }
@@ -143,7 +143,7 @@ public final class ExperimentApi {
         if (v == null) {
             return notHere(request.param("id"), false);
         }
-        return Response.json(200, JSON.writeValueAsBytes(summary(v, true)));
+        return Response.json(200, JSON.writeValueAsBytes(summary(v, Detail.EVERY_LOOK)));
     }
 
     /** 503 with the reason and Retry-After: this instance owns nothing yet. */
@@ -231,7 +231,15 @@ public final class ExperimentApi {
         }
     }
 
-    private static ObjectNode summary(ExperimentView v, boolean withLooks) {
+    /** How much of each comparison's history an answer carries. */
+    private enum Detail {
+        /** The last look only (the list of experiments). */
+        LAST_LOOK,
+        /** Every kept look (one experiment). */
+        EVERY_LOOK
+    }
+
+    private static ObjectNode summary(ExperimentView v, Detail detail) {
         ObjectNode n = JSON.createObjectNode();
         n.put("id", v.id());
         n.put("control", v.control());
@@ -296,7 +304,7 @@ public final class ExperimentApi {
             if (!looks.isEmpty()) {
                 cn.set("last", point(looks.get(looks.size() - 1)));
             }
-            if (withLooks) {
+            if (detail == Detail.EVERY_LOOK) {
                 ArrayNode history = cn.putArray("looks");
                 looks.forEach(p -> history.add(point(p)));
             }

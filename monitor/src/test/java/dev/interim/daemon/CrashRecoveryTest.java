@@ -41,7 +41,7 @@ import org.junit.jupiter.api.io.TempDir;
 // no published statistical values are checked here.
 class CrashRecoveryTest {
     static final int EVENTS = 300_000;
-    static final String[] EXPERIMENTS = {"harbor-a", "harbor-b", "harbor-c"};
+    static final String[] EXPERIMENTS = {"varrow-a", "varrow-b", "varrow-c"};
     static final String[] ARMS = {"base", "trial"};
 
     private final ObjectMapper json = new ObjectMapper();
@@ -266,9 +266,9 @@ class CrashRecoveryTest {
             for (int i = from; i < to; i++) {
                 String e = EXPERIMENTS[i % 3];
                 String arm = ARMS[random.nextInt(2)];
-                boolean error = random.nextDouble() < (e.equals("harbor-b") && arm.equals("trial") ? 0.03 : 0.01);
+                boolean error = random.nextDouble() < (e.equals("varrow-b") && arm.equals("trial") ? 0.03 : 0.01);
                 double ms = Math.round((50 + 100 * random.nextDouble()) * 8) / 8.0;   // exact in binary
-                p.send(new ProducerRecord<>("harbor.events", "u" + i,
+                p.send(new ProducerRecord<>("varrow.events", "u" + i,
                         "{\"exp\":\"" + e + "\",\"arm\":\"" + arm + "\",\"status\":" + (error ? 500 : 200) + ",\"ms\":" + ms + "}"));
                 synchronized (truth) {
                     double[] er = truth.computeIfAbsent(e + "/" + arm + "/errors", k -> new double[2]);
@@ -335,7 +335,7 @@ class CrashRecoveryTest {
 
     /** Every decision once; each comparison's records form a chain (each one's previous is the last one's decision). */
     void checkDecisionChains(String bootstrap) throws Exception {
-        List<JsonNode> records = DaemonIntegrationTest.readAll(bootstrap, "harbor.decisions");
+        List<JsonNode> records = DaemonIntegrationTest.readAll(bootstrap, "varrow.decisions");
         Set<String> ids = new HashSet<>();
         Map<String, String> state = new HashMap<>();
         for (JsonNode r : records) {
@@ -344,7 +344,7 @@ class CrashRecoveryTest {
             assertThat(r.path("previous").asText()).as("chain of %s", key).isEqualTo(state.getOrDefault(key, "continue"));
             state.put(key, r.path("decision").asText());
         }
-        assertThat(state).as("the harmful trial arm of harbor-b is stopped").containsEntry("harbor-b/trial/errors", "stop-harm");
+        assertThat(state).as("the harmful trial arm of varrow-b is stopped").containsEntry("varrow-b/trial/errors", "stop-harm");
     }
 
     private static void sleep(long ms) {
@@ -407,11 +407,11 @@ class CrashRecoveryTest {
                     kafka:
                       bootstrap_servers: [%s]
                     """.formatted(bootstrap) + properties + """
-                      input_topics: [harbor.events]
-                      decisions_topic: harbor.decisions
-                      dead_letter_topic: harbor.dead
-                      state_topic_prefix: harbor.state
-                      consumer_group_prefix: harbor
+                      input_topics: [varrow.events]
+                      decisions_topic: varrow.decisions
+                      dead_letter_topic: varrow.dead
+                      state_topic_prefix: varrow.state
+                      consumer_group_prefix: varrow
                       commit_interval: 300ms
                       tally_threads: 2
                     events:

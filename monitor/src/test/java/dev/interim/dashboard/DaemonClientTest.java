@@ -56,7 +56,7 @@ class DaemonClientTest {
         try (HttpEndpoint endpoint = api(views)) {
             DaemonClient client = DaemonClient.at(endpoint.uri() + "/");
             assertThat(client.address()).isEqualTo(endpoint.uri().toString());
-            assertThat(client.experimentIds()).containsExactly("ember-basket", "harbor-search-ranking", "mossglint-onboarding",
+            assertThat(client.experimentIds()).containsExactly("ember-basket", "varrow-search-ranking", "mossglint-onboarding",
                     "tamsel-pricing");
             for (ExperimentView v : views.values()) {
                 ExperimentView read = client.experiment(v.id());

@@ -58,7 +58,7 @@ class DashboardPageTest {
             assertThat(Xhtml.text(card)).contains(look);
         }
         assertThat(page.byClass("experiment")).extracting(e -> e.getAttribute("data-experiment"))
-                .containsExactly("harbor-search-ranking", "mossglint-onboarding", "tamsel-pricing");
+                .containsExactly("varrow-search-ranking", "mossglint-onboarding", "tamsel-pricing");
     }
 
     @Test
@@ -164,7 +164,7 @@ class DashboardPageTest {
 
     @Test
     void aHeldExperimentSaysThatItIsHeldAndWhy() {
-        ExperimentView held = VIEWS.get("harbor-search-ranking");
+        ExperimentView held = VIEWS.get("varrow-search-ranking");
         assertThat(held.held()).isTrue();
         String text = Xhtml.text(Xhtml.parse(ExperimentSection.html(held, 0, NOW)).doc.getDocumentElement());
         assertThat(text).contains("HELD", "SAMPLE-RATIO MISMATCH", "MISMATCH: the split is not as configured; decisions held",

@@ -66,9 +66,9 @@ final class Scenarios {
         return run(d, arms, 14, 1500, Map.of(), 71);
     }
 
-    /** "harbor-search-ranking": the treatment gets a third of the traffic it should; decisions are held. */
+    /** "varrow-search-ranking": the treatment gets a third of the traffic it should; decisions are held. */
     static ExperimentView searchRanking() {
-        ExperimentDefinition d = new ExperimentDefinition("harbor-search-ranking", "bm25", List.of("learned"), null,
+        ExperimentDefinition d = new ExperimentDefinition("varrow-search-ranking", "bm25", List.of("learned"), null,
                 Duration.ofMinutes(1), 200, RunMode.LIVE, 0.001, List.of(
                         metric("zero-result-rate", MetricKind.EVENT_RATE, Role.GUARDRAIL, Worse.HIGHER, 1, "obf", 50_000, StopAction.KILL)));
         Map<String, double[]> arms = new LinkedHashMap<>();

@@ -23,14 +23,14 @@ import org.junit.jupiter.api.Test;
 class OfflineTallyTest {
     private static final String YAML = """
             kafka:
-              input_topics: [harbor.events]
+              input_topics: [varrow.events]
               input_keyed_by_unit: true
             events:
               experiment: /exp
               arm: /arm
               unit: /user
             experiments:
-              - id: harbor-search
+              - id: varrow-search
                 assignment: event
                 control: old
                 treatments: [new]
@@ -41,7 +41,7 @@ class OfflineTallyTest {
                   - {name: booked, kind: unit-rate, role: primary, worse: lower, field: /step,
                      counts_if: {equals: booked}, max_per_arm: 1000}
                   - {name: spend, kind: unit-total, role: guardrail, worse: lower, field: /spend, max_per_arm: 1000}
-              - id: harbor-maps
+              - id: varrow-maps
                 assignment: event
                 control: a
                 treatments: [b]
@@ -71,14 +71,14 @@ class OfflineTallyTest {
     void countsEventsAndUnitsAsTheDaemonDoes() throws BadEventException {
         OfflineTally tally = tally();
         feed(tally,
-                "{\"exp\":\"harbor-search\",\"arm\":\"old\",\"user\":\"ana\",\"status\":\"ok\",\"ms\":100}",
-                "{\"exp\":\"harbor-search\",\"arm\":\"old\",\"user\":\"ana\",\"status\":\"error\",\"ms\":300}",
-                "{\"exp\":\"harbor-search\",\"arm\":\"old\",\"user\":\"ben\",\"step\":\"booked\",\"spend\":40}",
-                "{\"exp\":\"harbor-search\",\"arm\":\"old\",\"user\":\"ben\",\"step\":\"booked\",\"spend\":2.5}",
-                "{\"exp\":\"harbor-search\",\"arm\":\"new\",\"user\":\"cem\",\"status\":\"ok\",\"ms\":200}",
-                "{\"exp\":\"harbor-maps\",\"arm\":\"b\",\"user\":\"dia\",\"status\":\"error\"}");
+                "{\"exp\":\"varrow-search\",\"arm\":\"old\",\"user\":\"ana\",\"status\":\"ok\",\"ms\":100}",
+                "{\"exp\":\"varrow-search\",\"arm\":\"old\",\"user\":\"ana\",\"status\":\"error\",\"ms\":300}",
+                "{\"exp\":\"varrow-search\",\"arm\":\"old\",\"user\":\"ben\",\"step\":\"booked\",\"spend\":40}",
+                "{\"exp\":\"varrow-search\",\"arm\":\"old\",\"user\":\"ben\",\"step\":\"booked\",\"spend\":2.5}",
+                "{\"exp\":\"varrow-search\",\"arm\":\"new\",\"user\":\"cem\",\"status\":\"ok\",\"ms\":200}",
+                "{\"exp\":\"varrow-maps\",\"arm\":\"b\",\"user\":\"dia\",\"status\":\"error\"}");
 
-        OfflineTally.Snapshot s = tally.snapshot("harbor-search");
+        OfflineTally.Snapshot s = tally.snapshot("varrow-search");
         assertThat(s.exposures()).containsOnly(java.util.Map.entry("old", 2L), java.util.Map.entry("new", 1L));
         assertThat(rate(s.tallies().get("errors").get("old"))).isEqualTo(new ProportionCounts(1, 2));
         assertThat(rate(s.tallies().get("errors").get("new"))).isEqualTo(new ProportionCounts(0, 1));
@@ -92,7 +92,7 @@ class OfflineTallyTest {
         assertThat(spend.moments().count()).as("one total per unit: ana 0, ben 42.5").isEqualTo(2);
         assertThat(spend.moments().mean()).isCloseTo(21.25, within(1e-12));
 
-        OfflineTally.Snapshot maps = tally.snapshot("harbor-maps");
+        OfflineTally.Snapshot maps = tally.snapshot("varrow-maps");
         assertThat(maps.exposures()).containsOnly(java.util.Map.entry("a", 0L), java.util.Map.entry("b", 1L));
         assertThat(maps.tallies().get("errors")).containsOnlyKeys("b");
         assertThat(tally.units()).isEqualTo(4);
@@ -101,13 +101,13 @@ class OfflineTallyTest {
     @Test
     void snapshotsAreCumulativeAndStayAsTheyWere() throws BadEventException {
         OfflineTally tally = tally();
-        feed(tally, "{\"exp\":\"harbor-search\",\"arm\":\"new\",\"user\":\"eda\",\"status\":\"error\"}");
-        OfflineTally.Snapshot first = tally.snapshot("harbor-search");
+        feed(tally, "{\"exp\":\"varrow-search\",\"arm\":\"new\",\"user\":\"eda\",\"status\":\"error\"}");
+        OfflineTally.Snapshot first = tally.snapshot("varrow-search");
         feed(tally,
-                "{\"exp\":\"harbor-search\",\"arm\":\"new\",\"user\":\"eda\",\"status\":\"ok\"}",
-                "{\"exp\":\"harbor-search\",\"arm\":\"old\",\"user\":\"fay\",\"status\":\"ok\"}");
-        OfflineTally.Snapshot second = tally.snapshot("harbor-search");
-        OfflineTally.Snapshot third = tally.snapshot("harbor-search");
+                "{\"exp\":\"varrow-search\",\"arm\":\"new\",\"user\":\"eda\",\"status\":\"ok\"}",
+                "{\"exp\":\"varrow-search\",\"arm\":\"old\",\"user\":\"fay\",\"status\":\"ok\"}");
+        OfflineTally.Snapshot second = tally.snapshot("varrow-search");
+        OfflineTally.Snapshot third = tally.snapshot("varrow-search");
 
         assertThat(rate(first.tallies().get("errors").get("new"))).isEqualTo(new ProportionCounts(1, 1));
         assertThat(first.tallies().get("errors")).doesNotContainKey("old");
@@ -119,13 +119,13 @@ class OfflineTallyTest {
 
     @Test
     void anUnknownExperimentIsRefused() {
-        assertThatThrownBy(() -> tally().snapshot("harbor-nothing")).isInstanceOf(IllegalArgumentException.class)
-                .hasMessageContaining("harbor-nothing");
+        assertThatThrownBy(() -> tally().snapshot("varrow-nothing")).isInstanceOf(IllegalArgumentException.class)
+                .hasMessageContaining("varrow-nothing");
     }
 
     @Test
     void theDefinitionsGivenAreTheOnesCounted() {
         List<ExperimentDefinition> one = List.of(CONFIG.experiments().get(1).definition());
-        assertThatThrownBy(() -> new OfflineTally(one).snapshot("harbor-search")).isInstanceOf(IllegalArgumentException.class);
+        assertThatThrownBy(() -> new OfflineTally(one).snapshot("varrow-search")).isInstanceOf(IllegalArgumentException.class);
     }
 }

@@ -135,26 +135,26 @@ class StateCodecTest {
     void aUnitKeyRoundTripsWhateverBytesItsHashHas() {
         // invented keys whose hash bytes are the separators themselves, and their complements
         for (PartitionState.UnitKey unit : List.of(
-                new PartitionState.UnitKey("harbor-search", 0x1e1f1e1f1e1f1e1fL, 0x1f1e1f1e),
-                new PartitionState.UnitKey("harbor-search", -1L, 0),
+                new PartitionState.UnitKey("varrow-search", 0x1e1f1e1f1e1f1e1fL, 0x1f1e1f1e),
+                new PartitionState.UnitKey("varrow-search", -1L, 0),
                 PartitionState.unitKey("h.maps_2", "ana"))) {
-            byte[] key = StateCodec.unitKey("harbor.events-11", unit);
+            byte[] key = StateCodec.unitKey("varrow.events-11", unit);
             byte[] value = StateCodec.unit(new PartitionState.UnitState("a", Set.of(), Map.of()));
-            assertThat(StateCodec.unitKey(key, value)).isEqualTo(new StateCodec.UnitRecordKey("harbor.events-11", unit));
+            assertThat(StateCodec.unitKey(key, value)).isEqualTo(new StateCodec.UnitRecordKey("varrow.events-11", unit));
             // the layout documented in StateCodec.unitKey: source, 0x1e, experiment, 0x1f, 12 bytes
-            assertThat(key).hasSize("harbor.events-11".length() + 1 + unit.experiment().length() + 1 + 12);
+            assertThat(key).hasSize("varrow.events-11".length() + 1 + unit.experiment().length() + 1 + 12);
         }
     }
 
     @Test
     void versionOneUnitRecordsStillReadAsTheSameUnit() {
         String unit = "ana\u001e\u001f🦊";
-        byte[] key = ("harbor.events-0\u001eharbor-search\u001f" + unit).getBytes(StandardCharsets.UTF_8);
+        byte[] key = ("varrow.events-0\u001evarrow-search\u001f" + unit).getBytes(StandardCharsets.UTF_8);
         byte[] value = "{\"v\":1,\"arm\":\"old\",\"totals\":{\"spend\":42.5},\"met\":[\"booked\"]}"
                 .getBytes(StandardCharsets.UTF_8);
         // the key of version 1 was the id as text: it is hashed to the key the unit has now
         assertThat(StateCodec.unitKey(key, value)).isEqualTo(
-                new StateCodec.UnitRecordKey("harbor.events-0", PartitionState.unitKey("harbor-search", unit)));
+                new StateCodec.UnitRecordKey("varrow.events-0", PartitionState.unitKey("varrow-search", unit)));
         assertThat(StateCodec.unit(value)).isEqualTo(
                 new PartitionState.UnitState("old", Set.of("booked"), Map.of("spend", 42.5)));
     }
@@ -170,7 +170,7 @@ class StateCodecTest {
         }
         byte[] longer = java.util.Arrays.copyOf(good, good.length + 1);
         assertThatThrownBy(() -> StateCodec.unit(longer)).isInstanceOf(IllegalArgumentException.class);
-        byte[] shortKey = "harbor.events-0\u001eharbor-search\u001fabc".getBytes(StandardCharsets.UTF_8);
+        byte[] shortKey = "varrow.events-0\u001evarrow-search\u001fabc".getBytes(StandardCharsets.UTF_8);
         assertThatThrownBy(() -> StateCodec.unitKey(shortKey, good)).isInstanceOf(IllegalArgumentException.class);
         assertThatThrownBy(() -> StateCodec.unitKey("no separators".getBytes(StandardCharsets.UTF_8), good))
                 .isInstanceOf(IllegalArgumentException.class);
