@@ -7,7 +7,6 @@ import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.interim.embedded.EmbeddedKafka;
 import java.io.IOException;
-import java.net.ServerSocket;
 import java.net.URI;
 import java.net.http.HttpClient;
 import java.net.http.HttpRequest;
@@ -397,13 +396,9 @@ class CrashRecoveryTest {
 
         void start() throws IOException {
             if (port == 0) {
-                try (ServerSocket s = new ServerSocket(0)) {
-                    port = s.getLocalPort();
-                }
+                port = InterimProcess.freePort();
             }
-            Files.createDirectories(dir);
-            Path config = dir.resolve("daemon-" + starts + ".yaml");
-            Files.writeString(config, """
+            process = InterimProcess.run(dir, "daemon-" + starts, """
                     kafka:
                       bootstrap_servers: [%s]
                     """.formatted(bootstrap) + properties + """
@@ -420,13 +415,7 @@ class CrashRecoveryTest {
                     http:
                       port: %d
                     experiments:
-                    """.formatted(port) + experiments());
-            String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
-            process = new ProcessBuilder(java, "-Xmx384m", "-cp", System.getProperty("java.class.path"),
-                    "dev.interim.cli.Interim", "run", "--config", config.toString(), "--data-dir", dir.resolve("unused").toString())
-                    .redirectErrorStream(true)
-                    .redirectOutput(dir.resolve("daemon-" + starts + ".log").toFile())
-                    .start();
+                    """.formatted(port) + experiments(), Map.of(), "-Xmx384m");
             starts++;
         }
 

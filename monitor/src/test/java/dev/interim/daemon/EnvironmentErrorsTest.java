@@ -15,6 +15,7 @@ import java.nio.file.Path;
 import java.time.Duration;
 import java.util.List;
 import java.util.concurrent.TimeUnit;
+import java.util.Map;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.Timeout;
 import org.junit.jupiter.api.io.TempDir;
@@ -35,7 +36,7 @@ class EnvironmentErrorsTest {
               experiment: /exp
               arm: /arm
             experiments:
-              - id: kiln-checkout
+              - id: kolvane-checkout
                 control: old
                 treatments: [new]
                 metrics:
@@ -217,14 +218,6 @@ class EnvironmentErrorsTest {
 
     /** `interim run` in a separate JVM with this configuration; stdout and stderr to dir/out.log. */
     private static Process start(Path dir, String config) throws IOException {
-        Files.createDirectories(dir);
-        Path file = dir.resolve("interim.yaml");
-        Files.writeString(file, config);
-        String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
-        return new ProcessBuilder(java, "-Xmx256m", "-cp", System.getProperty("java.class.path"), "dev.interim.cli.Interim",
-                "run", "--config", file.toString(), "--data-dir", dir.resolve("data").toString())
-                .redirectErrorStream(true)
-                .redirectOutput(dir.resolve("out.log").toFile())
-                .start();
+        return InterimProcess.run(dir, "out", config, Map.of(), "-Xmx256m");
     }
 }

@@ -8,7 +8,6 @@ import dev.interim.dashboard.DaemonClient;
 import dev.interim.embedded.EmbeddedKafka;
 import dev.interim.experiment.ExperimentView;
 import java.io.IOException;
-import java.net.ServerSocket;
 import java.net.URI;
 import java.net.http.HttpClient;
 import java.net.http.HttpRequest;
@@ -19,6 +18,7 @@ import java.time.Duration;
 import java.util.ArrayList;
 import java.util.HashSet;
 import java.util.List;
+import java.util.Map;
 import java.util.Set;
 import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
@@ -218,12 +218,8 @@ class OperatorStateRestartTest {
         }
 
         void start() throws IOException {
-            try (ServerSocket s = new ServerSocket(0)) {
-                port = s.getLocalPort();
-            }
-            Files.createDirectories(dir);
-            Path config = dir.resolve("daemon-" + starts + ".yaml");
-            Files.writeString(config, """
+            port = InterimProcess.freePort();
+            process = InterimProcess.run(dir, "daemon-" + starts, """
                     kafka:
                       bootstrap_servers: [%s]
                       properties:
@@ -256,15 +252,8 @@ class OperatorStateRestartTest {
                             counts_if: {at_least: 500}
                             max_per_arm: 200000
                             action: page
-                    """.formatted(bootstrap, decisionsTopic, statePrefix, groupPrefix, port, EXPERIMENT));
-            String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
-            ProcessBuilder b = new ProcessBuilder(java, "-Xmx384m", "-cp", System.getProperty("java.class.path"),
-                    "dev.interim.cli.Interim", "run", "--config", config.toString(), "--data-dir",
-                    dir.resolve("unused").toString())
-                    .redirectErrorStream(true)
-                    .redirectOutput(dir.resolve("daemon-" + starts + ".log").toFile());
-            b.environment().put("TAMSEL_ADMIN_TOKEN", TOKEN);
-            process = b.start();
+                    """.formatted(bootstrap, decisionsTopic, statePrefix, groupPrefix, port, EXPERIMENT),
+                    Map.of("TAMSEL_ADMIN_TOKEN", TOKEN), "-Xmx384m");
             starts++;
         }
 

@@ -17,6 +17,7 @@ import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Base64;
 import java.util.List;
+import java.util.Map;
 import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicInteger;
@@ -97,15 +98,10 @@ class SecretsInOutputTest {
                             max_per_arm: 20000
                             action: kill
                     """.formatted(broker.bootstrapServers(), port, receiver.getAddress().getPort()));
-            Path log = dir.resolve("daemon.log");
-            ProcessBuilder pb = new ProcessBuilder(Path.of(System.getProperty("java.home"), "bin", "java").toString(),
-                    "-Xmx384m", "-Dinterim.log.level=DEBUG", "-cp", System.getProperty("java.class.path"),
-                    "dev.interim.cli.Interim", "run", "--config", config.toString())
-                    .redirectErrorStream(true).redirectOutput(log.toFile());
-            pb.environment().put("INTERIM_WEBHOOK_KEY", webhookKey);
-            pb.environment().put("INTERIM_ADMIN_TOKEN", adminToken);
-            pb.environment().put("KAFKA_KEY_PASSWORD", kafkaPassword);
-            daemon = pb.start();
+            daemon = InterimProcess.run(dir, "daemon", Files.readString(config), Map.of("INTERIM_WEBHOOK_KEY", webhookKey,
+                    "INTERIM_ADMIN_TOKEN", adminToken, "KAFKA_KEY_PASSWORD", kafkaPassword), "-Xmx384m",
+                    "-Dinterim.log.level=DEBUG");
+            Path log = InterimProcess.log(dir, "daemon");
 
             try (KafkaProducer<String, String> producer = DaemonIntegrationTest.producer(broker.bootstrapServers())) {
                 SplittableRandom random = new SplittableRandom(12);
