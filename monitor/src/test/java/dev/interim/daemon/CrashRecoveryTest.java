@@ -78,8 +78,9 @@ class CrashRecoveryTest {
      * session settings here (30 s), not the short ones of the other tests: a dynamic member would
      * wait that long. Measured from the restarted process's start (JVM start-up included) until
      * GET /api/experiments lists all three experiments, and printed; the 10 s limit is the
-     * acceptance limit for "back in seconds" (common practice for a supervised restart). Meanwhile the API never answers 200 with fewer than the three experiments
-     * (it answers 503 with Retry-After until it owns them), and the tallies stay exact.
+     * acceptance limit for "back in seconds" (common practice for a supervised restart). Meanwhile
+     * the API never answers 200 with fewer than the three experiments (it answers 503 with
+     * Retry-After until it owns them), and the tallies stay exact.
      */
     @Test
     @Timeout(400)
