@@ -56,8 +56,8 @@ class DaemonClientTest {
         try (HttpEndpoint endpoint = api(views)) {
             DaemonClient client = DaemonClient.at(endpoint.uri() + "/");
             assertThat(client.address()).isEqualTo(endpoint.uri().toString());
-            assertThat(client.experimentIds()).containsExactly("ember-basket", "varrow-search-ranking", "mossglint-onboarding",
-                    "tamsel-pricing");
+            assertThat(client.experimentIds()).containsExactly("ember-basket", "mossglint-onboarding", "tamsel-pricing",
+                    "varrow-search-ranking");
             for (ExperimentView v : views.values()) {
                 ExperimentView read = client.experiment(v.id());
                 // Everything but the tallies comes back bit for bit; a mean's sum of squared

@@ -58,7 +58,7 @@ class DashboardPageTest {
             assertThat(Xhtml.text(card)).contains(look);
         }
         assertThat(page.byClass("experiment")).extracting(e -> e.getAttribute("data-experiment"))
-                .containsExactly("varrow-search-ranking", "mossglint-onboarding", "tamsel-pricing");
+                .containsExactly("mossglint-onboarding", "tamsel-pricing", "varrow-search-ranking");
     }
 
     @Test
