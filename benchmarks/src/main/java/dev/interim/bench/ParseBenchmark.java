@@ -95,22 +95,22 @@ public class ParseBenchmark {
         }
 
         @Override
-        public void exposure(String experiment, String arm, String unit) {
+        public void exposure(int experiment, int arm, String unit) {
             blackhole.consume(unit);
         }
 
         @Override
-        public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
+        public void outcome(int experiment, int arm, String unit, int metric, boolean success) {
             blackhole.consume(success);
         }
 
         @Override
-        public void value(String experiment, String arm, String unit, String metric, double value) {
+        public void value(int experiment, int arm, String unit, int metric, double value) {
             blackhole.consume(value);
         }
 
         @Override
-        public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        public void ratio(int experiment, int arm, String unit, int metric, double numerator, double denominator) {
             blackhole.consume(numerator);
             blackhole.consume(denominator);
         }

@@ -453,12 +453,12 @@ public final class StreamBench implements Callable<Integer> {
         String firstRefusal;
 
         @Override
-        public void exposure(String experiment, String arm, String unit) {
+        public void exposure(int experiment, int arm, String unit) {
             exposures++;
         }
 
         @Override
-        public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
+        public void outcome(int experiment, int arm, String unit, int metric, boolean success) {
             outcomes++;
             if (success) {
                 successes++;
@@ -466,13 +466,13 @@ public final class StreamBench implements Callable<Integer> {
         }
 
         @Override
-        public void value(String experiment, String arm, String unit, String metric, double value) {
+        public void value(int experiment, int arm, String unit, int metric, double value) {
             values++;
             valueSum += value;
         }
 
         @Override
-        public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        public void ratio(int experiment, int arm, String unit, int metric, double numerator, double denominator) {
             values++;
             valueSum += numerator;
         }

@@ -58,9 +58,9 @@ final class StreamMemory {
             id.setLength(10);
             id.append(u);
             String unit = id.toString();
-            String arm = (u & 1) == 0 ? "current" : "bundled";
-            tally.exposure("basket-size", arm, unit);
-            tally.value("basket-size", arm, unit, "spend", 0.25 * (u % 400));
+            int arm = u & 1;   // catalog indices: experiment 0, arms current (0) and bundled (1), metric spend (0)
+            tally.exposure(0, arm, unit);
+            tally.value(0, arm, unit, 0, 0.25 * (u % 400));
         }
         tally.snapshot("basket-size");   // drains the change sets, as a commit does
         long after = settledHeap();

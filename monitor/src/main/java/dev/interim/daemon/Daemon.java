@@ -18,7 +18,7 @@ import dev.interim.signal.DecisionJson;
 import dev.interim.signal.Meters;
 import dev.interim.signal.WebhookSender;
 import dev.interim.stream.BadEventException;
-import dev.interim.stream.Catalog;
+import dev.interim.events.Catalog;
 import dev.interim.stream.JsonEventReader;
 import dev.interim.stream.JudgeStage;
 import dev.interim.stream.StageEvents;
@@ -82,6 +82,8 @@ public final class Daemon implements AutoCloseable {
     private static final Duration OWNERS_TTL = Duration.ofSeconds(5);
 
     private final InterimConfig config;
+    /** The event mapping and the compiled catalog, made once: every reader, tally stage and the judge share it. */
+    private final dev.interim.events.EventCatalog eventCatalog;
     private final Catalog catalog;
     private final java.util.Set<String> configuredIds;
     private final Meters meters;
@@ -122,7 +124,8 @@ public final class Daemon implements AutoCloseable {
         Map<String, Object> client = new HashMap<>(kafka.properties().forClients());
         checkClientProperties(kafka, client);
         List<ExperimentDefinition> definitions = config.experiments().stream().map(MappedExperiment::definition).toList();
-        catalog = new Catalog(definitions);
+        eventCatalog = config.catalog();
+        catalog = eventCatalog.catalog();
         configuredIds = java.util.Set.copyOf(definitions.stream().map(ExperimentDefinition::id).toList());
         meters = new Meters();
         definitions.forEach(meters::expect);
@@ -180,7 +183,7 @@ public final class Daemon implements AutoCloseable {
         // until its session expires.
         boolean leave = config.kafka().instanceId().isEmpty() && config.http().port() == 0;
         for (int i = 0; i < config.kafka().tallyThreads(); i++) {
-            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(config.catalog()), events, tallyMember(i), options.clock())
+            tallies.add(new TallyStage(settings, catalog, new JsonEventReader(eventCatalog), events, tallyMember(i), options.clock())
                     .leaveGroupOnClose(leave));
         }
         judge = new JudgeStage(settings, catalog, options.clock(), events, new dev.interim.stream.DecisionWriter() {

@@ -17,10 +17,10 @@ final class EventBuffer implements ObservationSink {
     private static final byte RATIO = 3;
 
     private byte[] kinds = new byte[8];
-    private String[] experiments = new String[8];
-    private String[] arms = new String[8];
+    private int[] experiments = new int[8];
+    private int[] arms = new int[8];
     private String[] units = new String[8];
-    private String[] metrics = new String[8];
+    private int[] metrics = new int[8];
     private double[] numbers = new double[8];
     /** A ratio's denominator (0 for the other kinds). */
     private double[] denominators = new double[8];
@@ -31,8 +31,8 @@ final class EventBuffer implements ObservationSink {
         size = 0;
     }
 
-    /** The experiment of the event held (every call of one event names the same one). */
-    String experiment() {
+    /** The experiment of the event held, by catalog index (every call of one event names the same one). */
+    int experiment() {
         if (size == 0) {
             throw new IllegalStateException("no event held");
         }
@@ -40,22 +40,22 @@ final class EventBuffer implements ObservationSink {
     }
 
     @Override
-    public void exposure(String experiment, String arm, String unit) {
-        add(EXPOSURE, experiment, arm, unit, null, 0);
+    public void exposure(int experiment, int arm, String unit) {
+        add(EXPOSURE, experiment, arm, unit, -1, 0);
     }
 
     @Override
-    public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
+    public void outcome(int experiment, int arm, String unit, int metric, boolean success) {
         add(OUTCOME, experiment, arm, unit, metric, success ? 1 : 0);
     }
 
     @Override
-    public void value(String experiment, String arm, String unit, String metric, double value) {
+    public void value(int experiment, int arm, String unit, int metric, double value) {
         add(VALUE, experiment, arm, unit, metric, value);
     }
 
     @Override
-    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+    public void ratio(int experiment, int arm, String unit, int metric, double numerator, double denominator) {
         add(RATIO, experiment, arm, unit, metric, numerator);
         denominators[size - 1] = denominator;
     }
@@ -72,7 +72,7 @@ final class EventBuffer implements ObservationSink {
         }
     }
 
-    private void add(byte kind, String experiment, String arm, String unit, String metric, double number) {
+    private void add(byte kind, int experiment, int arm, String unit, int metric, double number) {
         if (size == kinds.length) {
             int n = size * 2;
             kinds = Arrays.copyOf(kinds, n);

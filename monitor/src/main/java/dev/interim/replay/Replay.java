@@ -88,6 +88,8 @@ public final class Replay {
         private final EventBuffer buffer = new EventBuffer();
         private final OfflineTally tally;
         private final Map<String, Experiment> experiments = new LinkedHashMap<>();
+        /** The same experiments by catalog index, as the reader names them. */
+        private final Experiment[] byIndex = new Experiment[config.catalog().size()];
         private final long[] rejected = new long[Reason.values().length];
         private final Map<Reason, String> firstRejections = new HashMap<>();
         private final List<DecisionRecord> decisions = new ArrayList<>();
@@ -97,12 +99,12 @@ public final class Replay {
 
         Run(ReplayListener listener) {
             this.listener = listener;
-            List<ExperimentDefinition> definitions = new ArrayList<>();
             for (MappedExperiment e : config.experiments()) {
-                definitions.add(e.definition());
-                experiments.put(e.definition().id(), new Experiment(e.definition()));
+                Experiment x = new Experiment(e.definition());
+                experiments.put(e.definition().id(), x);
+                byIndex[config.catalog().index(e.definition().id())] = x;
             }
-            this.tally = new OfflineTally(definitions);
+            this.tally = new OfflineTally(config.catalog());
         }
 
         ReplayResult over(Path file) throws IOException {
@@ -152,7 +154,7 @@ public final class Replay {
             try {
                 reader.read(line, buffer);
                 long at = time.millis(line);
-                Experiment e = experiments.get(buffer.experiment());
+                Experiment e = byIndex[buffer.experiment()];
                 long due = e.schedule.lookBefore(at);
                 if (due != LookSchedule.NONE) {
                     look(e, due);

@@ -9,6 +9,7 @@ import com.fasterxml.jackson.core.StreamReadFeature;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.interim.events.EventMapping;
 import dev.interim.events.MappedExperiment;
+import dev.interim.events.Catalog;
 import dev.interim.events.EventCatalog;
 import dev.interim.events.MetricSource;
 import dev.interim.events.ValueRange;
@@ -74,12 +75,14 @@ public final class JsonEventReader implements EventReader {
     private final int armSlot;
     /** The unit's slot, or -1 when no unit is mapped. */
     private final int unitSlot;
-    private final Map<String, Experiment> experiments = new HashMap<>();
+    /** The experiments by catalog index. */
+    private final Experiment[] experiments;
+    private final Catalog catalog;
 
     /** A metric's field slots; a ratio's denominator in {@code denominatorSlot} (else -1). */
     private record Metric(String name, MetricSource source, int slot, int denominatorSlot) {}
 
-    private record Experiment(ExperimentDefinition definition, List<Metric> metrics, boolean needsUnit) {}
+    private record Experiment(ExperimentDefinition definition, String[] arms, List<Metric> metrics, boolean needsUnit) {}
 
     public JsonEventReader(EventCatalog config) {
         this.mapping = config.mapping();
@@ -91,6 +94,8 @@ public final class JsonEventReader implements EventReader {
         this.experimentSlot = pointers.add(mapping.experiment());
         this.armSlot = pointers.add(mapping.arm());
         this.unitSlot = mapping.unit().map(pointers::add).orElse(-1);
+        this.catalog = config.catalog();
+        this.experiments = new Experiment[catalog.size()];
         for (MappedExperiment e : config.experiments()) {
             List<Metric> metrics = new ArrayList<>();
             for (MetricDefinition m : e.definition().metrics()) {
@@ -98,8 +103,14 @@ public final class JsonEventReader implements EventReader {
                 int denominator = source instanceof MetricSource.Ratio r ? pointers.add(r.denominator()) : -1;
                 metrics.add(new Metric(m.name(), source, pointers.add(source.field()), denominator));
             }
-            experiments.put(e.definition().id(), new Experiment(e.definition(), metrics, e.definition().needsUnits()));
+            experiments[catalog.index(e.definition().id())] = new Experiment(e.definition(),
+                    e.definition().arms().toArray(new String[0]), metrics, e.definition().needsUnits());
         }
+    }
+
+    /** The compiled catalog whose indices this reader's observations carry. */
+    public Catalog catalog() {
+        return catalog;
     }
 
     @Override
@@ -135,13 +146,20 @@ public final class JsonEventReader implements EventReader {
             throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
         }
         String experimentId = text(found, experimentSlot, mapping.experiment(), "experiment");
-        Experiment experiment = experiments.get(experimentId);
+        int experimentIndex = catalog.index(experimentId);
+        Experiment experiment = experimentIndex < 0 ? null : experiments[experimentIndex];
         if (experiment == null) {
             throw new BadEventException(Reason.UNKNOWN_EXPERIMENT, "unknown experiment '" + clip(experimentId) + "'");
         }
         String arm = text(found, armSlot, mapping.arm(), "arm");
-        ExperimentDefinition d = experiment.definition();
-        if (!d.control().equals(arm) && !d.treatments().contains(arm)) {
+        int armIndex = -1;
+        for (int i = 0; i < experiment.arms().length; i++) {
+            if (experiment.arms()[i].equals(arm)) {
+                armIndex = i;
+                break;
+            }
+        }
+        if (armIndex < 0) {
             throw new BadEventException(Reason.UNKNOWN_ARM, "experiment '" + experimentId + "' has no arm '" + clip(arm) + "'");
         }
         String unit = null;
@@ -209,18 +227,18 @@ public final class JsonEventReader implements EventReader {
                 numbers[i] = number(m, field, m.source().field(), ((MetricSource.Value) m.source()).range());
             }
         }
-        sink.exposure(experimentId, arm, unit);
+        sink.exposure(experimentIndex, armIndex, unit);
         for (int i = 0; i < n; i++) {
             if (!present[i]) {
                 continue;
             }
             Metric m = experiment.metrics().get(i);
             if (m.source() instanceof MetricSource.Counted) {
-                sink.outcome(experimentId, arm, unit, m.name(), success[i]);
+                sink.outcome(experimentIndex, armIndex, unit, i, success[i]);
             } else if (m.source() instanceof MetricSource.Ratio) {
-                sink.ratio(experimentId, arm, unit, m.name(), numbers[i], denominators[i]);
+                sink.ratio(experimentIndex, armIndex, unit, i, numbers[i], denominators[i]);
             } else {
-                sink.value(experimentId, arm, unit, m.name(), numbers[i]);
+                sink.value(experimentIndex, armIndex, unit, i, numbers[i]);
             }
         }
     }

@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
+
 import dev.interim.experiment.Acknowledgement;
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.DecisionRecord;

@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
+
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Tally;
 import java.util.Collections;
@@ -32,7 +34,12 @@ public final class OfflineTally implements ObservationSink {
     private final Map<PartialKey, Tally> latest = new HashMap<>();
 
     public OfflineTally(List<ExperimentDefinition> experiments) {
-        this.catalog = new Catalog(experiments);
+        this(new Catalog(experiments));
+    }
+
+    /** The tallies of the experiments of {@code catalog}, whose indices the observations name. */
+    public OfflineTally(Catalog catalog) {
+        this.catalog = catalog;
         this.state = new PartitionState(SOURCE, catalog);
     }
 
@@ -47,22 +54,22 @@ public final class OfflineTally implements ObservationSink {
     }
 
     @Override
-    public void exposure(String experiment, String arm, String unit) {
+    public void exposure(int experiment, int arm, String unit) {
         state.exposure(experiment, arm, unit);
     }
 
     @Override
-    public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
+    public void outcome(int experiment, int arm, String unit, int metric, boolean success) {
         state.outcome(experiment, arm, unit, metric, success);
     }
 
     @Override
-    public void value(String experiment, String arm, String unit, String metric, double value) {
+    public void value(int experiment, int arm, String unit, int metric, double value) {
         state.value(experiment, arm, unit, metric, value);
     }
 
     @Override
-    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+    public void ratio(int experiment, int arm, String unit, int metric, double numerator, double denominator) {
         state.ratio(experiment, arm, unit, metric, numerator, denominator);
     }
 

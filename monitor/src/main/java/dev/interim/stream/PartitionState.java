@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
+
 import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
@@ -39,7 +41,10 @@ import java.util.function.BiConsumer;
  */
 final class PartitionState implements ObservationSink {
     private final String source;
-    private final Map<String, Experiment> experiments = new HashMap<>();
+    /** The compiled experiments, by catalog index. */
+    private final Experiment[] experiments;
+    /** The same, by id (restores and drains name experiments). */
+    private final Map<String, Experiment> byId = new HashMap<>();
     /** Experiments with changed partials since the last drain, each once. */
     private final List<Experiment> changed = new ArrayList<>();
     /** Restored partials that the catalog no longer counts (an arm, a metric or a kind that changed). */
@@ -58,8 +63,10 @@ final class PartitionState implements ObservationSink {
 
     PartitionState(String source, Catalog catalog) {
         this.source = source;
-        for (ExperimentDefinition d : catalog.experiments()) {
-            experiments.put(d.id(), new Experiment(d, source));
+        this.experiments = new Experiment[catalog.size()];
+        for (int i = 0; i < experiments.length; i++) {
+            experiments[i] = new Experiment(catalog.definition(i), source);
+            byId.put(experiments[i].id, experiments[i]);
         }
     }
 
@@ -109,6 +116,8 @@ final class PartitionState implements ObservationSink {
         final String source;
         final String[] arms;
         final Map<String, Metric> metrics = new HashMap<>();
+        /** The metrics by catalog index (definition order). */
+        final Metric[] byIndex;
         /** Column 0 is the exposures; columns 1.. the metrics in definition order. */
         final String[] columnNames;
         final TallyForm[] form;
@@ -154,6 +163,7 @@ final class PartitionState implements ObservationSink {
             }
             List<MetricDefinition> defs = d.metrics();
             width = defs.size() + 1;
+            byIndex = new Metric[defs.size()];
             columnNames = new String[width];
             form = new TallyForm[width];
             columnNames[0] = PartialKey.EXPOSURES;
@@ -170,6 +180,7 @@ final class PartitionState implements ObservationSink {
                         : m.kind() == MetricKind.UNIT_TOTAL || unitRatio ? totalNames.size() : -1;
                 Metric metric = new Metric(m, f, i + 1, column);
                 metrics.put(m.name(), metric);
+                byIndex[i] = metric;
                 columnNames[i + 1] = m.name();
                 form[i + 1] = f;
                 if (m.kind() == MetricKind.UNIT_RATE) {
@@ -240,9 +251,8 @@ final class PartitionState implements ObservationSink {
     }
 
     @Override
-    public void exposure(String experiment, String arm, String unit) {
-        Experiment e = experiment(experiment);
-        int a = e.arm(arm);
+    public void exposure(int experiment, int a, String unit) {
+        Experiment e = experiments[experiment];
         e.accepted++;
         if (unit == null) {
             counts(e, a * e.width).trials++;
@@ -252,10 +262,9 @@ final class PartitionState implements ObservationSink {
     }
 
     @Override
-    public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
-        Experiment e = experiment(experiment);
-        Metric m = e.metric(metric);
-        int a = e.arm(arm);
+    public void outcome(int experiment, int a, String unit, int metric, boolean success) {
+        Experiment e = experiments[experiment];
+        Metric m = e.byIndex[metric];
         if (m.unitRatio) {
             addToUnit(e, m, a, unit, success ? 1 : 0, 1, false);
             return;
@@ -278,10 +287,9 @@ final class PartitionState implements ObservationSink {
     }
 
     @Override
-    public void value(String experiment, String arm, String unit, String metric, double value) {
-        Experiment e = experiment(experiment);
-        Metric m = e.metric(metric);
-        int a = e.arm(arm);
+    public void value(int experiment, int a, String unit, int metric, double value) {
+        Experiment e = experiments[experiment];
+        Metric m = e.byIndex[metric];
         if (m.unitRatio) {
             addToUnit(e, m, a, unit, m.definition.capped(value), 1, false);
             return;
@@ -302,10 +310,9 @@ final class PartitionState implements ObservationSink {
     }
 
     @Override
-    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
-        Experiment e = experiment(experiment);
-        Metric m = e.metric(metric);
-        int a = e.arm(arm);
+    public void ratio(int experiment, int a, String unit, int metric, double numerator, double denominator) {
+        Experiment e = experiments[experiment];
+        Metric m = e.byIndex[metric];
         if (m.unitRatio) {
             addToUnit(e, m, a, unit, numerator, denominator, true);
             return;
@@ -340,7 +347,7 @@ final class PartitionState implements ObservationSink {
     }
 
     private Experiment experiment(String id) {
-        Experiment e = experiments.get(id);
+        Experiment e = byId.get(id);
         if (e == null) {
             throw new IllegalArgumentException("no experiment '" + id + "' in the catalog");
         }
@@ -455,7 +462,7 @@ final class PartitionState implements ObservationSink {
     /** Every partial, for tests and dumps. */
     List<Partial> partials() {
         List<Partial> out = new ArrayList<>();
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             for (int i = 0; i < e.keys.length; i++) {
                 if (e.counts[i] != null || e.moments[i] != null || e.ratios[i] != null) {
                     out.add(partialOf(e, i));
@@ -481,7 +488,7 @@ final class PartitionState implements ObservationSink {
     /** Events accepted per experiment since the last call; the counts are cleared. */
     Map<String, Long> drainAccepted() {
         Map<String, Long> out = new HashMap<>();
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             if (e.accepted != 0) {
                 out.put(e.id, e.accepted);
                 e.accepted = 0;
@@ -496,7 +503,7 @@ final class PartitionState implements ObservationSink {
      * the call and left to the caller.
      */
     void drainChangedUnits(BiConsumer<UnitKey, UnitState> out) {
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             UnitTable t = e.units;
             if (t == null || t.changedCount() == 0) {
                 continue;
@@ -510,7 +517,7 @@ final class PartitionState implements ObservationSink {
      * value bytes, see {@link StateCodec}), and clears the change set. What a commit writes.
      */
     void drainChangedUnitRecords(BiConsumer<byte[], byte[]> out) {
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             UnitTable t = e.units;
             if (t == null || t.changedCount() == 0) {
                 continue;
@@ -558,7 +565,7 @@ final class PartitionState implements ObservationSink {
 
     /** Forgets which units changed, when no one writes them (offline). */
     void clearChangedUnits() {
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             if (e.units != null) {
                 e.units.clearChanged();
             }
@@ -590,7 +597,7 @@ final class PartitionState implements ObservationSink {
      */
     void restore(Partial partial) {
         PartialKey k = partial.key();
-        Experiment e = experiments.get(k.experiment());
+        Experiment e = byId.get(k.experiment());
         int a = e == null ? -1 : e.armIndex(k.arm());
         int column = -1;
         if (a >= 0) {
@@ -626,7 +633,7 @@ final class PartitionState implements ObservationSink {
      * longer has is left out, and would count as new if it came again.
      */
     void restoreUnit(UnitKey key, UnitState state) {
-        Experiment e = experiments.get(key.experiment());
+        Experiment e = byId.get(key.experiment());
         int a = e == null ? -1 : e.armIndex(state.arm());
         if (a < 0) {
             unitsLeftOut++;
@@ -647,7 +654,7 @@ final class PartitionState implements ObservationSink {
     /** Units held, over every experiment. */
     int unitCount() {
         int n = 0;
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             if (e.units != null) {
                 n += e.units.size();
             }
@@ -658,7 +665,7 @@ final class PartitionState implements ObservationSink {
     /** The bytes of the unit tables' columns, over every experiment. */
     long unitBytes() {
         long n = 0;
-        for (Experiment e : experiments.values()) {
+        for (Experiment e : experiments) {
             if (e.units != null) {
                 n += e.units.bytes();
             }

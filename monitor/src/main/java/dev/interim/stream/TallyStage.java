@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
+
 import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.Duration;

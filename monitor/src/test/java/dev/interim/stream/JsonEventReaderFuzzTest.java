@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
+
 import static dev.interim.stream.TileEvents.NODES;
 import static org.assertj.core.api.Assertions.assertThat;
 

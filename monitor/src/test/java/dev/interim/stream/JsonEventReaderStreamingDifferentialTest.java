@@ -146,7 +146,12 @@ class JsonEventReaderStreamingDifferentialTest {
     }
 
     private static Result result(EventReader reader, byte[] bytes) {
-        RecordingSink sink = new RecordingSink();
+        return result(reader, reader instanceof JsonEventReader j ? j.catalog() : ((JsonEventReaderStreamingTreeOracle) reader).catalog(),
+                bytes);
+    }
+
+    private static Result result(EventReader reader, dev.interim.events.Catalog catalog, byte[] bytes) {
+        RecordingSink sink = new RecordingSink(catalog);
         try {
             reader.read(bytes, sink);
             return new Result(null, null, List.copyOf(sink.calls));

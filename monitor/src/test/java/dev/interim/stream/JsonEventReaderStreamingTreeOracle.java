@@ -59,6 +59,7 @@ final class JsonEventReaderStreamingTreeOracle implements EventReader {
     private final ObjectMapper json;
     private final EventMapping mapping;
     private final Map<String, Experiment> experiments = new HashMap<>();
+    private final dev.interim.events.Catalog catalog;
 
     private record Metric(String name, MetricSource source) {}
 
@@ -66,6 +67,7 @@ final class JsonEventReaderStreamingTreeOracle implements EventReader {
 
     JsonEventReaderStreamingTreeOracle(InterimConfig config) {
         this.mapping = config.events();
+        this.catalog = config.catalog().catalog();
         JsonFactory factory = JsonFactory.builder()
                 .streamReadConstraints(StreamReadConstraints.builder()
                         .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
@@ -79,6 +81,10 @@ final class JsonEventReaderStreamingTreeOracle implements EventReader {
             }
             experiments.put(e.definition().id(), new Experiment(e.definition(), metrics, e.definition().needsUnits()));
         }
+    }
+
+    dev.interim.events.Catalog catalog() {
+        return catalog;
     }
 
     @Override
@@ -173,16 +179,18 @@ final class JsonEventReaderStreamingTreeOracle implements EventReader {
                 numbers[i] = v;
             }
         }
-        sink.exposure(experimentId, arm, unit);
+        int e = catalog.index(experimentId);
+        int a = catalog.arm(e, arm);
+        sink.exposure(e, a, unit);
         for (int i = 0; i < n; i++) {
             if (!present[i]) {
                 continue;
             }
             Metric m = experiment.metrics().get(i);
             if (m.source() instanceof MetricSource.Counted) {
-                sink.outcome(experimentId, arm, unit, m.name(), success[i]);
+                sink.outcome(e, a, unit, i, success[i]);
             } else {
-                sink.value(experimentId, arm, unit, m.name(), numbers[i]);
+                sink.value(e, a, unit, i, numbers[i]);
             }
         }
     }

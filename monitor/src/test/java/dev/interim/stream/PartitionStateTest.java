@@ -1,5 +1,7 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
+
 import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 import static org.assertj.core.api.Assertions.within;
@@ -93,6 +95,29 @@ class PartitionStateTest {
         return new PartitionState(SOURCE, CATALOG);
     }
 
+    // The sink takes catalog indices; these name them, as the reader resolves them.
+    private static void exposure(ObservationSink s, String experiment, String arm, String unit) {
+        int e = CATALOG.index(experiment);
+        s.exposure(e, CATALOG.arm(e, arm), unit);
+    }
+
+    private static void outcome(ObservationSink s, String experiment, String arm, String unit, String metric,
+                                boolean success) {
+        int e = CATALOG.index(experiment);
+        s.outcome(e, CATALOG.arm(e, arm), unit, CATALOG.metric(e, metric), success);
+    }
+
+    private static void value(ObservationSink s, String experiment, String arm, String unit, String metric, double value) {
+        int e = CATALOG.index(experiment);
+        s.value(e, CATALOG.arm(e, arm), unit, CATALOG.metric(e, metric), value);
+    }
+
+    private static void ratio(ObservationSink s, String experiment, String arm, String unit, String metric, double x,
+                              double y) {
+        int e = CATALOG.index(experiment);
+        s.ratio(e, CATALOG.arm(e, arm), unit, CATALOG.metric(e, metric), x, y);
+    }
+
     private static Map<PartialKey, Tally> byKey(List<PartitionState.Partial> partials) {
         Map<PartialKey, Tally> out = new HashMap<>();
         for (PartitionState.Partial p : partials) {
@@ -120,13 +145,13 @@ class PartitionStateTest {
     @Test
     void aUnitIsCountedOnceInTheArmOfItsFirstEvent() {
         PartitionState s = state();
-        s.exposure(SHOP, "old", "ana");
-        s.exposure(SHOP, "old", "ana");
-        s.exposure(SHOP, "new", "ana");
-        s.outcome(SHOP, "new", "ana", "booked", true);
-        s.value(SHOP, "new", "ana", "spend", 12.0);
-        s.outcome(SHOP, "new", "ana", "errors", true);
-        s.exposure(SHOP, "new", "ben");
+        exposure(s, SHOP, "old", "ana");
+        exposure(s, SHOP, "old", "ana");
+        exposure(s, SHOP, "new", "ana");
+        outcome(s, SHOP, "new", "ana", "booked", true);
+        value(s, SHOP, "new", "ana", "spend", 12.0);
+        outcome(s, SHOP, "new", "ana", "errors", true);
+        exposure(s, SHOP, "new", "ben");
 
         assertThat(rate(s, "old", PartialKey.EXPOSURES)).as("ana: one unit, in old").isEqualTo(new ProportionCounts(0, 1));
         assertThat(rate(s, "new", PartialKey.EXPOSURES)).as("ben only").isEqualTo(new ProportionCounts(0, 1));
@@ -144,13 +169,13 @@ class PartitionStateTest {
     void aUnitRateCountsEveryUnitOnceAndItsSuccessOnce() {
         PartitionState s = state();
         for (int i = 0; i < 3; i++) {
-            s.exposure(SHOP, "old", "cem");
-            s.outcome(SHOP, "old", "cem", "booked", true);
+            exposure(s, SHOP, "old", "cem");
+            outcome(s, SHOP, "old", "cem", "booked", true);
         }
-        s.exposure(SHOP, "old", "dia");
-        s.outcome(SHOP, "old", "dia", "booked", false);
-        s.outcome(SHOP, "old", "dia", "returned", true);
-        s.outcome(SHOP, "old", "dia", "booked", true);
+        exposure(s, SHOP, "old", "dia");
+        outcome(s, SHOP, "old", "dia", "booked", false);
+        outcome(s, SHOP, "old", "dia", "returned", true);
+        outcome(s, SHOP, "old", "dia", "booked", true);
 
         assertThat(rate(s, "old", "booked")).as("cem (3 successes) and dia (1): 2 of 2 units").isEqualTo(new ProportionCounts(2, 2));
         assertThat(rate(s, "old", "returned")).as("dia only").isEqualTo(new ProportionCounts(1, 2));
@@ -160,11 +185,11 @@ class PartitionStateTest {
     @Test
     void aUnitTotalRemovesTheUnitsOldTotalAndAcceptsItsNewOne() {
         PartitionState s = state();
-        s.exposure(SHOP, "new", "eda");
-        s.value(SHOP, "new", "eda", "spend", 40.0);
-        s.value(SHOP, "new", "eda", "spend", 2.5);
-        s.exposure(SHOP, "new", "fay");
-        s.value(SHOP, "new", "fay", "items", 3);
+        exposure(s, SHOP, "new", "eda");
+        value(s, SHOP, "new", "eda", "spend", 40.0);
+        value(s, SHOP, "new", "eda", "spend", 2.5);
+        exposure(s, SHOP, "new", "fay");
+        value(s, SHOP, "new", "fay", "items", 3);
 
         Moments spend = mean(s, "new", "spend");
         assertThat(spend.count()).as("one total per unit: eda 42.5, fay 0").isEqualTo(2);
@@ -178,10 +203,10 @@ class PartitionStateTest {
     @Test
     void eventsWithoutAUnitCountAsEvents() {
         PartitionState s = state();
-        s.exposure(MAPS, "a", null);
-        s.outcome(MAPS, "a", null, "errors", true);
-        s.exposure(MAPS, "a", null);
-        s.value(MAPS, "a", null, "ms", 80);
+        exposure(s, MAPS, "a", null);
+        outcome(s, MAPS, "a", null, "errors", true);
+        exposure(s, MAPS, "a", null);
+        value(s, MAPS, "a", null, "ms", 80);
         assertThat(((Tally.Rate) tally(s, MAPS, "a", PartialKey.EXPOSURES)).counts()).isEqualTo(new ProportionCounts(0, 2));
         assertThat(((Tally.Rate) tally(s, MAPS, "a", "errors")).counts()).isEqualTo(new ProportionCounts(1, 1));
         assertThat(s.unitCount()).isZero();
@@ -190,12 +215,16 @@ class PartitionStateTest {
     }
 
     @Test
-    void theSinkRefusesWhatTheCatalogDoesNotHave() {
+    void theCatalogKnowsNoOtherNamesAndThePerUnitSinkNeedsAUnit() {
+        // Names are resolved once, by the reader through the catalog: what it does not have is -1
+        // there (the reader refuses such events); the sink sees only indices of the catalog.
+        int shop = CATALOG.index(SHOP);
+        assertThat(CATALOG.index("mossglint-nothing")).isEqualTo(-1);
+        assertThat(CATALOG.arm(shop, "teal")).isEqualTo(-1);
+        assertThat(CATALOG.metric(shop, "weight")).isEqualTo(-1);
+        assertThat(CATALOG.definition(shop).metrics().get(CATALOG.metric(shop, "spend")).name()).isEqualTo("spend");
         PartitionState s = state();
-        assertThatThrownBy(() -> s.exposure("mossglint-nothing", "a", "u")).isInstanceOf(IllegalArgumentException.class);
-        assertThatThrownBy(() -> s.exposure(SHOP, "teal", "u")).isInstanceOf(IllegalArgumentException.class);
-        assertThatThrownBy(() -> s.value(SHOP, "old", "u", "weight", 1)).isInstanceOf(IllegalArgumentException.class);
-        assertThatThrownBy(() -> s.value(SHOP, "old", null, "spend", 1)).isInstanceOf(IllegalArgumentException.class)
+        assertThatThrownBy(() -> value(s, SHOP, "old", null, "spend", 1)).isInstanceOf(IllegalArgumentException.class)
                 .hasMessageContaining("unit");
         assertThat(s.partials()).isEmpty();
     }
@@ -205,18 +234,18 @@ class PartitionStateTest {
         // Counted by hand: ana (x) 2 requests, 1 error, 100 and 900 ms (900 capped at 600); ben (x) one
         // request, no error, 200 ms, then a fare of 450 (capped at 400) over 4 seats; cy (x) exposed only.
         PartitionState s = state();
-        s.exposure(FARES, "x", "ana");
-        s.outcome(FARES, "x", "ana", "errors", true);
-        s.value(FARES, "x", "ana", "ms", 100);
-        s.exposure(FARES, "x", "ana");
-        s.outcome(FARES, "x", "ana", "errors", false);
-        s.value(FARES, "x", "ana", "ms", 900);
-        s.exposure(FARES, "x", "ben");
-        s.outcome(FARES, "x", "ben", "errors", false);
-        s.value(FARES, "x", "ben", "ms", 200);
-        s.exposure(FARES, "y", "ben");                 // ben keeps x, the arm of his first event
-        s.ratio(FARES, "y", "ben", "fare", 450, 4);
-        s.exposure(FARES, "x", "cy");
+        exposure(s, FARES, "x", "ana");
+        outcome(s, FARES, "x", "ana", "errors", true);
+        value(s, FARES, "x", "ana", "ms", 100);
+        exposure(s, FARES, "x", "ana");
+        outcome(s, FARES, "x", "ana", "errors", false);
+        value(s, FARES, "x", "ana", "ms", 900);
+        exposure(s, FARES, "x", "ben");
+        outcome(s, FARES, "x", "ben", "errors", false);
+        value(s, FARES, "x", "ben", "ms", 200);
+        exposure(s, FARES, "y", "ben");                 // ben keeps x, the arm of his first event
+        ratio(s, FARES, "y", "ben", "fare", 450, 4);
+        exposure(s, FARES, "x", "cy");
         RatioMoments errors = ((Tally.Ratio) tally(s, FARES, "x", "errors")).moments();
         assertThat(errors).isEqualTo(RatioMoments.of(new double[] {1, 0, 0}, new double[] {2, 1, 0}));
         RatioMoments ms = ((Tally.Ratio) tally(s, FARES, "x", "ms")).moments();
@@ -235,12 +264,12 @@ class PartitionStateTest {
     void aUnitTotalsCapAppliesToTheUnitsTotalNotToEachValue() {
         // By hand: ana tips 20 then 25 (total 45, capped at 30); ben tips 10; cy nothing (0).
         PartitionState s = state();
-        s.exposure(FARES, "x", "ana");
-        s.value(FARES, "x", "ana", "tips", 20);
-        s.value(FARES, "x", "ana", "tips", 25);
-        s.exposure(FARES, "x", "ben");
-        s.value(FARES, "x", "ben", "tips", 10);
-        s.exposure(FARES, "x", "cy");
+        exposure(s, FARES, "x", "ana");
+        value(s, FARES, "x", "ana", "tips", 20);
+        value(s, FARES, "x", "ana", "tips", 25);
+        exposure(s, FARES, "x", "ben");
+        value(s, FARES, "x", "ben", "tips", 10);
+        exposure(s, FARES, "x", "cy");
         Moments tips = ((Tally.Mean) tally(s, FARES, "x", "tips")).moments();
         assertThat(tips.count()).isEqualTo(3);
         assertThat(tips.mean()).isCloseTo((30 + 10 + 0) / 3.0, within(1e-12));
@@ -266,12 +295,12 @@ class PartitionStateTest {
                 .containsEntry(changedKind, new Tally.Mean(Moments.ofValues(1, 2)));
         assertThat(s.unitsLeftOut()).as("gil's arm is gone").isEqualTo(1);
         assertThat(s.unitCount()).isEqualTo(1);
-        s.outcome(SHOP, "old", "x", "errors", true);
+        outcome(s, SHOP, "old", "x", "errors", true);
         assertThat(rate(s, "old", "errors")).as("an event starts the metric anew, replacing the one kept apart")
                 .isEqualTo(new ProportionCounts(1, 1));
         Map<PartitionState.UnitKey, PartitionState.UnitState> none = s.drainChangedUnits();
-        s.outcome(SHOP, "old", "hal", "booked", true);
-        s.value(SHOP, "old", "hal", "spend", 1.0);
+        outcome(s, SHOP, "old", "hal", "booked", true);
+        value(s, SHOP, "old", "hal", "spend", 1.0);
         Map<PartitionState.UnitKey, PartitionState.UnitState> hal = s.drainChangedUnits();
         assertThat(none).as("restored units are not changed, and an event-level outcome keeps no unit").isEmpty();
         assertThat(hal).as("hal kept his arm, his success and his total; unknown names dropped")
@@ -283,10 +312,10 @@ class PartitionStateTest {
     record Call(int kind, String experiment, String arm, String unit, String metric, double number) {
         void applyTo(ObservationSink sink) {
             switch (kind) {
-                case 0 -> sink.exposure(experiment, arm, unit);
-                case 1 -> sink.outcome(experiment, arm, unit, metric, number != 0);
-                case 3 -> sink.ratio(experiment, arm, unit, metric, number, Math.floor(number / 100));
-                default -> sink.value(experiment, arm, unit, metric, number);
+                case 0 -> exposure(sink, experiment, arm, unit);
+                case 1 -> outcome(sink, experiment, arm, unit, metric, number != 0);
+                case 3 -> ratio(sink, experiment, arm, unit, metric, number, Math.floor(number / 100));
+                default -> value(sink, experiment, arm, unit, metric, number);
             }
         }
     }
@@ -474,11 +503,11 @@ class PartitionStateTest {
         String unit = "ivo";
         Runnable events = () -> {
             for (int i = 0; i < 20_000; i++) {
-                s.exposure(MAPS, (i & 1) == 0 ? "a" : "b", null);
-                s.outcome(MAPS, (i & 1) == 0 ? "a" : "b", null, "errors", (i % 7) == 0);
-                s.exposure(SHOP, "new", unit);
-                s.outcome(SHOP, "new", unit, "errors", (i % 3) == 0);
-                s.outcome(SHOP, "new", unit, "booked", true);
+                exposure(s, MAPS, (i & 1) == 0 ? "a" : "b", null);
+                outcome(s, MAPS, (i & 1) == 0 ? "a" : "b", null, "errors", (i % 7) == 0);
+                exposure(s, SHOP, "new", unit);
+                outcome(s, SHOP, "new", unit, "errors", (i % 3) == 0);
+                outcome(s, SHOP, "new", unit, "booked", true);
             }
         };
         events.run();
@@ -495,18 +524,18 @@ class PartitionStateTest {
     @Test
     void theChangedUnitsAreDrainedOnceWithTheirState() {
         PartitionState s = state();
-        s.exposure(SHOP, "bold", "jo");
-        s.value(SHOP, "bold", "jo", "spend", 7.25);
-        s.exposure(MAPS, "b", "jo");
+        exposure(s, SHOP, "bold", "jo");
+        value(s, SHOP, "bold", "jo", "spend", 7.25);
+        exposure(s, MAPS, "b", "jo");
         Map<PartitionState.UnitKey, PartitionState.UnitState> first = s.drainChangedUnits();
         Map<PartitionState.UnitKey, PartitionState.UnitState> expected = new LinkedHashMap<>();
         expected.put(PartitionState.unitKey(SHOP, "jo"), new PartitionState.UnitState("bold", Set.of(), Map.of("spend", 7.25)));
         expected.put(PartitionState.unitKey(MAPS, "jo"), new PartitionState.UnitState("b", Set.of(), Map.of()));
         assertThat(first).as("one unit per experiment").isEqualTo(expected);
         assertThat(s.drainChangedUnits()).isEmpty();
-        s.exposure(SHOP, "bold", "jo");
+        exposure(s, SHOP, "bold", "jo");
         assertThat(s.drainChangedUnits()).as("an exposure of a known unit changes nothing of it").isEmpty();
-        s.outcome(SHOP, "bold", "jo", "returned", true);
+        outcome(s, SHOP, "bold", "jo", "returned", true);
         assertThat(s.drainChangedUnits()).containsOnlyKeys(PartitionState.unitKey(SHOP, "jo"));
     }
 }

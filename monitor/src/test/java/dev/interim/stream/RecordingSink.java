@@ -1,5 +1,6 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
 import java.util.ArrayList;
 import java.util.List;
 
@@ -10,25 +11,49 @@ import java.util.List;
  */
 final class RecordingSink implements ObservationSink {
     final List<String> calls = new ArrayList<>();
+    /** Names the indices the reader passes. */
+    private final Catalog catalog;
 
-    @Override
-    public void exposure(String experiment, String arm, String unit) {
-        calls.add(exposureCall(experiment, arm, unit));
+    /** A sink for the readers of the tile service's configuration ({@link TileEvents#config()}). */
+    RecordingSink() {
+        this(TileEvents.config().catalog().catalog());
+    }
+
+    RecordingSink(Catalog catalog) {
+        this.catalog = catalog;
+    }
+
+    private String experiment(int e) {
+        return catalog.definition(e).id();
+    }
+
+    private String arm(int e, int a) {
+        return catalog.definition(e).arms().get(a);
+    }
+
+    private String metric(int e, int m) {
+        return catalog.definition(e).metrics().get(m).name();
     }
 
     @Override
-    public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
-        calls.add(outcomeCall(experiment, arm, unit, metric, success));
+    public void exposure(int e, int a, String unit) {
+        calls.add(exposureCall(experiment(e), arm(e, a), unit));
     }
 
     @Override
-    public void value(String experiment, String arm, String unit, String metric, double value) {
-        calls.add(valueCall(experiment, arm, unit, metric, value));
+    public void outcome(int e, int a, String unit, int m, boolean success) {
+        calls.add(outcomeCall(experiment(e), arm(e, a), unit, metric(e, m), success));
     }
 
     @Override
-    public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
-        calls.add("ratio " + experiment + " " + arm + " " + unit + " " + metric + " " + numerator + " " + denominator);
+    public void value(int e, int a, String unit, int m, double value) {
+        calls.add(valueCall(experiment(e), arm(e, a), unit, metric(e, m), value));
+    }
+
+    @Override
+    public void ratio(int e, int a, String unit, int m, double numerator, double denominator) {
+        calls.add("ratio " + experiment(e) + " " + arm(e, a) + " " + unit + " " + metric(e, m) + " " + numerator + " "
+                + denominator);
     }
 
     static String exposureCall(String experiment, String arm, String unit) {
