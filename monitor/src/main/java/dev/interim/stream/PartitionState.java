@@ -523,37 +523,59 @@ final class PartitionState implements ObservationSink {
                 continue;
             }
             StateCodec.UnitEncoder encoder = e.encoder();
-            Metric[] rates = e.unitRates;
-            t.drainChanged(slot -> {
-                int met = 0;
-                for (Metric m : rates) {
-                    if (t.met(slot, m.column)) {
-                        met++;
-                    }
-                }
-                encoder.begin(t.arm(slot), met);
-                for (int i = 0; i < rates.length; i++) {
-                    if (t.met(slot, rates[i].column)) {
-                        encoder.met(i);
-                    }
-                }
-                int columns = e.totalColumns.length;
-                int written = 0;
-                for (int c = 0; c < columns; c++) {
-                    if (Double.doubleToRawLongBits(t.total(slot, c)) != 0) {
-                        written++;
-                    }
-                }
-                encoder.totalCount(written);
-                for (int c = 0; c < columns; c++) {
-                    double v = t.total(slot, c);
-                    if (Double.doubleToRawLongBits(v) != 0) {
-                        encoder.total(c, v);
-                    }
-                }
-                out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encoder.finish());
-            });
+            t.drainChanged(slot -> out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encode(e, t, slot, encoder)));
         }
+    }
+
+    /**
+     * Hands every unit held to {@code out} as its changelog record, changed or not, leaving the change
+     * set as it is: what a snapshot of the units writes.
+     */
+    void allUnitRecords(BiConsumer<byte[], byte[]> out) {
+        for (Experiment e : experiments) {
+            UnitTable t = e.units;
+            if (t == null || t.size() == 0) {
+                continue;
+            }
+            StateCodec.UnitEncoder encoder = e.encoder();
+            for (int slot = 0; slot < t.capacity(); slot++) {
+                if (t.occupied(slot)) {
+                    out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encode(e, t, slot, encoder));
+                }
+            }
+        }
+    }
+
+    /** One unit's changelog value: its arm, the unit-rate metrics it met, its non-zero totals. */
+    private static byte[] encode(Experiment e, UnitTable t, int slot, StateCodec.UnitEncoder encoder) {
+        Metric[] rates = e.unitRates;
+        int met = 0;
+        for (Metric m : rates) {
+            if (t.met(slot, m.column)) {
+                met++;
+            }
+        }
+        encoder.begin(t.arm(slot), met);
+        for (int i = 0; i < rates.length; i++) {
+            if (t.met(slot, rates[i].column)) {
+                encoder.met(i);
+            }
+        }
+        int columns = e.totalColumns.length;
+        int written = 0;
+        for (int c = 0; c < columns; c++) {
+            if (Double.doubleToRawLongBits(t.total(slot, c)) != 0) {
+                written++;
+            }
+        }
+        encoder.totalCount(written);
+        for (int c = 0; c < columns; c++) {
+            double v = t.total(slot, c);
+            if (Double.doubleToRawLongBits(v) != 0) {
+                encoder.total(c, v);
+            }
+        }
+        return encoder.finish();
     }
 
     /** The changed units collected in a map (tests); the change set is cleared. */

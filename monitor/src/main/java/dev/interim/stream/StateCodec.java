@@ -223,6 +223,15 @@ final class StateCodec {
      *
      * @throws IllegalArgumentException when the key is not one of a unit
      */
+    /** The source ("topic-partition") of a units-topic key: its bytes before the first 0x1e. */
+    static String unitSource(byte[] key) {
+        int cut = indexOf(key, SOURCE_END, 0);
+        if (cut < 0) {
+            throw new IllegalArgumentException("not a units-topic key: " + key(key));
+        }
+        return new String(key, 0, cut, StandardCharsets.UTF_8);
+    }
+
     static UnitRecordKey unitKey(byte[] key, byte[] value) {
         int cut = indexOf(key, SOURCE_END, 0);
         int end = cut < 0 ? -1 : indexOf(key, EXPERIMENT_END, cut + 1);

@@ -62,6 +62,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private volatile boolean leaveGroupOnClose;
     private final AtomicBoolean running = new AtomicBoolean(true);
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
+    /** Each owned partition's units changelog (delta blocks and snapshots, see {@link UnitChangelog}). */
+    private final Map<TopicPartition, UnitChangelog> changelogs = new HashMap<>();
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
     /** Counts reported to meters only once their transaction has committed (an aborted one is redone). */
     private final Map<String, Long> uncommittedAccepted = new HashMap<>();
@@ -190,7 +192,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
                             StateCodec.key(p.key().text()), StateCodec.partial(p.tally())));
                 }
                 int unitsPartition = e.getKey().partition();
-                state.drainChangedUnitRecords((key, value) -> producer.send(new ProducerRecord<>(settings.unitsTopic(),
+                changelog(e.getKey()).commit(state, (key, value) -> producer.send(new ProducerRecord<>(settings.unitsTopic(),
                         unitsPartition, key, value)));
             }
             if (!pending.isEmpty()) {
@@ -215,6 +217,10 @@ public final class TallyStage implements Runnable, AutoCloseable {
         }
     }
 
+    private UnitChangelog changelog(TopicPartition tp) {
+        return changelogs.computeIfAbsent(tp, t -> new UnitChangelog(source(t)));
+    }
+
     /** After a failed transaction: abort, reload state and offsets as last committed. */
     private void recover() {
         Clients.quietly(LOG, producer::abortTransaction);
@@ -226,6 +232,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         producer = Clients.transactionalProducer(settings, "tally", member);
         Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
         states.clear();
+        changelogs.clear();
         restore(assigned);
         Map<TopicPartition, OffsetAndMetadata> committed = consumer.committed(assigned);
         for (TopicPartition tp : assigned) {
@@ -247,6 +254,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         for (TopicPartition tp : partitions) {
             bySource.put(source(tp), tp);
             states.put(tp, new PartitionState(source(tp), catalog));
+            changelogs.put(tp, new UnitChangelog(source(tp)));
         }
         StateReader.readAll(settings, settings.talliesTopic(), null, (key, value) -> {
             PartialKey k = PartialKey.parse(StateCodec.key(key));
@@ -257,14 +265,13 @@ public final class TallyStage implements Runnable, AutoCloseable {
         });
         Set<Integer> unitPartitions = new HashSet<>();
         partitions.forEach(tp -> unitPartitions.add(tp.partition()));
+        // In the log's order: UnitChangelog says why that restores the last commit exactly.
         StateReader.readAll(settings, settings.unitsTopic(), unitPartitions, (key, value) -> {
-            if (value == null) {
-                return;
-            }
-            StateCodec.UnitRecordKey k = StateCodec.unitKey(key, value);
-            TopicPartition tp = bySource.get(k.source());
+            TopicPartition tp = bySource.get(StateCodec.unitSource(key));
             if (tp != null) {
-                states.get(tp).restoreUnit(k.unit(), StateCodec.unit(value));
+                PartitionState state = states.get(tp);
+                changelogs.get(tp).restore(key, value, state, (k, v) -> state.restoreUnit(StateCodec.unitKey(k, v).unit(),
+                        StateCodec.unit(v)));
             }
         });
         for (TopicPartition tp : partitions) {
@@ -286,6 +293,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
             commit();
             partitions.forEach(states::remove);
+            partitions.forEach(changelogs::remove);
         }
 
         @Override

@@ -85,34 +85,34 @@ class PartitionStateTest {
             """;
     private static final List<ExperimentDefinition> DEFINITIONS =
             ConfigLoader.parseWithoutSecrets(YAML).experiments().stream().map(e -> e.definition()).toList();
-    private static final Catalog CATALOG = new Catalog(DEFINITIONS);
+    static final Catalog CATALOG = new Catalog(DEFINITIONS);
     private static final String SOURCE = "mossglint.events-3";
-    private static final String SHOP = "mossglint-checkout";
+    static final String SHOP = "mossglint-checkout";
     private static final String MAPS = "mossglint-maps";
-    private static final String FARES = "mossglint-fares";
+    static final String FARES = "mossglint-fares";
 
     private static PartitionState state() {
         return new PartitionState(SOURCE, CATALOG);
     }
 
     // The sink takes catalog indices; these name them, as the reader resolves them.
-    private static void exposure(ObservationSink s, String experiment, String arm, String unit) {
+    static void exposure(ObservationSink s, String experiment, String arm, String unit) {
         int e = CATALOG.index(experiment);
         s.exposure(e, CATALOG.arm(e, arm), unit);
     }
 
-    private static void outcome(ObservationSink s, String experiment, String arm, String unit, String metric,
+    static void outcome(ObservationSink s, String experiment, String arm, String unit, String metric,
                                 boolean success) {
         int e = CATALOG.index(experiment);
         s.outcome(e, CATALOG.arm(e, arm), unit, CATALOG.metric(e, metric), success);
     }
 
-    private static void value(ObservationSink s, String experiment, String arm, String unit, String metric, double value) {
+    static void value(ObservationSink s, String experiment, String arm, String unit, String metric, double value) {
         int e = CATALOG.index(experiment);
         s.value(e, CATALOG.arm(e, arm), unit, CATALOG.metric(e, metric), value);
     }
 
-    private static void ratio(ObservationSink s, String experiment, String arm, String unit, String metric, double x,
+    static void ratio(ObservationSink s, String experiment, String arm, String unit, String metric, double x,
                               double y) {
         int e = CATALOG.index(experiment);
         s.ratio(e, CATALOG.arm(e, arm), unit, CATALOG.metric(e, metric), x, y);
