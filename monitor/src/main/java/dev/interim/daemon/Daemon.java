@@ -46,6 +46,7 @@ import java.util.concurrent.TimeUnit;
 import java.util.function.Consumer;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
+import org.apache.kafka.clients.admin.CreateTopicsResult;
 import org.apache.kafka.clients.admin.ConsumerGroupDescription;
 import org.apache.kafka.clients.admin.DescribeClusterOptions;
 import org.apache.kafka.clients.admin.MemberDescription;
@@ -649,11 +650,22 @@ public final class Daemon implements AutoCloseable {
             topics.add(compacted(s.talliesTopic(), s.statePartitions()));
             topics.add(compacted(s.looksTopic(), s.statePartitions()));
             topics.add(compacted(s.deliveriesTopic(), 1));
-            createMissing(admin, topics);
+            Map<String, Integer> created = createMissing(admin, topics);
             int inputPartitions = 1;
-            Map<String, TopicDescription> described = admin.describeTopics(s.inputTopics()).allTopicNames().get(30, TimeUnit.SECONDS);
-            for (TopicDescription d : described.values()) {
-                inputPartitions = Math.max(inputPartitions, d.partitions().size());
+            // An input topic just created is not described: the broker may not know it yet.
+            List<String> existing = new ArrayList<>();
+            for (String input : s.inputTopics()) {
+                if (created.containsKey(input)) {
+                    inputPartitions = Math.max(inputPartitions, created.get(input));
+                } else {
+                    existing.add(input);
+                }
+            }
+            if (!existing.isEmpty()) {
+                Map<String, TopicDescription> described = admin.describeTopics(existing).allTopicNames().get(30, TimeUnit.SECONDS);
+                for (TopicDescription d : described.values()) {
+                    inputPartitions = Math.max(inputPartitions, d.partitions().size());
+                }
             }
             createMissing(admin, List.of(compacted(s.unitsTopic(), inputPartitions)));
         } catch (InterruptedException e) {
@@ -670,16 +682,28 @@ public final class Daemon implements AutoCloseable {
                 TopicConfig.CLEANUP_POLICY_COMPACT));
     }
 
-    private static void createMissing(Admin admin, List<NewTopic> topics) throws Exception {
-        for (NewTopic t : topics) {
+    /**
+     * Creates {@code topics} in one request (a request per topic made a round trip to the controller
+     * each at start-up), leaving those that exist as they are.
+     *
+     * @return the partition counts of the topics this request created (not those that existed)
+     */
+    private static Map<String, Integer> createMissing(Admin admin, List<NewTopic> topics) throws Exception {
+        Map<String, NewTopic> byName = new java.util.LinkedHashMap<>();
+        topics.forEach(t -> byName.putIfAbsent(t.name(), t));   // one name twice would fail the whole request
+        long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
+        CreateTopicsResult result = admin.createTopics(byName.values());
+        Map<String, Integer> created = new HashMap<>();
+        for (String name : byName.keySet()) {
             try {
-                admin.createTopics(List.of(t)).all().get(30, TimeUnit.SECONDS);
+                created.put(name, result.numPartitions(name).get(Math.max(1, deadline - System.nanoTime()), TimeUnit.NANOSECONDS));
             } catch (java.util.concurrent.ExecutionException e) {
                 if (!(e.getCause() instanceof TopicExistsException)) {
                     throw e;
                 }
             }
         }
+        return created;
     }
 
     /** Meters, logs and webhooks from the stages' reports. */

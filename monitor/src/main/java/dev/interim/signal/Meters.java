@@ -7,6 +7,7 @@ import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
+import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.StopAction;
 import dev.interim.experiment.Tally;
 import io.micrometer.core.instrument.Counter;
@@ -139,10 +140,15 @@ public final class Meters {
         // Created at zero so that "no events for N minutes" is an increase of 0, not an absent series.
         acceptedCounter(experiment);
         lookCounter(experiment);
-        for (Comparison c : new ExperimentMonitor(definition).comparisons()) {
-            ComparisonSlot cs = new ComparisonSlot();
-            slot.comparisons.put(c.metric().name() + '\u001f' + c.arm(), cs);
-            registerComparison(experiment, c, cs);
+        // The comparisons an ExperimentMonitor makes of it (each metric × each treatment), without
+        // making one: a powered metric's design is planned when its comparison is built, which costs
+        // a tenth of a second or more at start-up, before the HTTP endpoint is up.
+        for (MetricDefinition metric : definition.metrics()) {
+            for (String arm : definition.treatments()) {
+                ComparisonSlot cs = new ComparisonSlot();
+                slot.comparisons.put(metric.name() + '\u001f' + arm, cs);
+                registerComparison(experiment, metric, arm, cs);
+            }
         }
     }
 
@@ -253,9 +259,9 @@ public final class Meters {
                 .tag("outcome", result.outcome().label()).register(registry).increment();
     }
 
-    private void registerComparison(String experiment, Comparison c, ComparisonSlot slot) {
-        Tags tags = Tags.of("experiment", experiment, "arm", c.arm(), "metric", c.metric().name(),
-                "role", c.metric().role().name().toLowerCase(), "action", c.metric().action().name().toLowerCase());
+    private void registerComparison(String experiment, MetricDefinition metric, String arm, ComparisonSlot slot) {
+        Tags tags = Tags.of("experiment", experiment, "arm", arm, "metric", metric.name(),
+                "role", metric.role().name().toLowerCase(), "action", metric.action().name().toLowerCase());
         gauge("interim.estimate", "Effect estimate at the last look: treatment minus control (or baseline), in the metric's units",
                 tags, slot, x -> last(x, r -> r.estimate().effect()));
         gauge("interim.interval.lower", "Lower end of the repeated confidence interval of the effect",

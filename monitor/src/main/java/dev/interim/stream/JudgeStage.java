@@ -68,7 +68,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private volatile boolean assigned;
     private final AtomicBoolean running = new AtomicBoolean(true);
     /** experiment → source → (arm, metric) → latest cumulative partial. */
-    private final Map<String, Map<String, Map<String, Tally>>> partials = new HashMap<>();
+    private final Map<String, Map<String, Map<ArmMetric, Tally>>> partials = new HashMap<>();
     private final Map<String, ExperimentMonitor> owned = new ConcurrentHashMap<>();
     private final Map<TopicPartition, OffsetAndMetadata> pending = new HashMap<>();
     private final Map<String, ExperimentView> views = new ConcurrentHashMap<>();
@@ -182,7 +182,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                     pending.put(new TopicPartition(r.topic(), r.partition()), new OffsetAndMetadata(r.offset() + 1));
                 }
                 caughtUp();
-                lookWhereDue();
+                cycle();
             }
         } catch (WakeupException e) {
             if (running.get()) {
@@ -202,7 +202,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         PartialKey k = PartialKey.parse(StateCodec.key(key));
         partials.computeIfAbsent(k.experiment(), e -> new HashMap<>())
                 .computeIfAbsent(k.source(), s -> new HashMap<>())
-                .put(k.arm() + '\u001f' + k.metric(), StateCodec.partial(value));
+                .put(new ArmMetric(k.arm(), k.metric()), StateCodec.partial(value));
     }
 
     /** Ends the catching up of the tallies partitions whose re-reading has reached its end. */
@@ -211,17 +211,69 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 >= e.getValue());
     }
 
-    /** Runs the operators' actions and the looks that are due, and commits what they produced. */
-    private void lookWhereDue() {
-        Instant now = clock.instant();
-        List<DecisionRecord> decisions = new ArrayList<>();
-        List<Acknowledgement> acknowledgements = new ArrayList<>();
-        List<LookReport> reports = new ArrayList<>();
-        List<Duration> took = new ArrayList<>();
-        List<Map<String, Map<String, Tally>>> given = new ArrayList<>();
-        Set<ComparisonKey> changed = new HashSet<>();
-        List<Command> done = new ArrayList<>();
-        List<List<DecisionRecord>> doneRecords = new ArrayList<>();
+    /**
+     * One turn of the judge after a poll: the operators' actions, then the looks that are due; what
+     * they produced and the consumed offsets are committed in one transaction, and only once it has
+     * committed is any of it published (views, the operators' answers, meters, logs, webhooks).
+     */
+    private void cycle() {
+        Cycle cycle = new Cycle(clock.instant());
+        runCommands(cycle);
+        lookWhereDue(cycle);
+        cycle.operatorChanges = operatorChanges();
+        if (cycle.writesNothing() && pending.isEmpty()) {
+            cycle.answerCommands();
+            return;
+        }
+        if (commit(cycle)) {
+            publish(cycle);
+        }
+    }
+
+    /** What one turn produced: written in one transaction, then published. */
+    private static final class Cycle {
+        final Instant now;
+        /** The operators' decisions first, then the looks', in the order they were made. */
+        final List<DecisionRecord> decisions = new ArrayList<>();
+        final List<Acknowledgement> acknowledgements = new ArrayList<>();
+        final List<Look> looks = new ArrayList<>();
+        /** The comparisons whose state (and newest look points) the transaction rewrites. */
+        final Set<ComparisonKey> changed = new HashSet<>();
+        /** The operators' actions that ran, answered once the transaction has committed. */
+        final List<Ran> commands = new ArrayList<>();
+        /** experiment → what operators set, where it differs from what was last committed. */
+        Map<String, ExperimentMonitor.OperatorState> operatorChanges = Map.of();
+
+        Cycle(Instant now) {
+            this.now = now;
+        }
+
+        void decided(List<DecisionRecord> records) {
+            decisions.addAll(records);
+            records.forEach(d -> changed.add(new ComparisonKey(d.experiment(), d.arm(), d.metric())));
+        }
+
+        boolean writesNothing() {
+            return changed.isEmpty() && looks.isEmpty() && operatorChanges.isEmpty() && acknowledgements.isEmpty();
+        }
+
+        void answerCommands() {
+            commands.forEach(r -> r.command().done().complete(r.records()));
+        }
+
+        void failCommands(Throwable e) {
+            commands.forEach(r -> r.command().done().completeExceptionally(e));
+        }
+    }
+
+    /** One look made in a turn: its report, the merged tallies it was given, and how long it took. */
+    private record Look(LookReport report, Map<String, Map<String, Tally>> given, Duration took) {}
+
+    /** An operator's action that ran, and the decision records it produced. */
+    private record Ran(Command command, List<DecisionRecord> records) {}
+
+    /** Runs the operators' actions queued since the last turn; one on an experiment not owned here fails. */
+    private void runCommands(Cycle cycle) {
         for (Command c; (c = commands.poll()) != null; ) {
             ExperimentMonitor monitor = owned.get(c.experiment());
             if (monitor == null) {
@@ -235,69 +287,66 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 c.done().completeExceptionally(refused);   // e.g. an unknown arm: the operator's mistake, not ours
                 continue;
             }
-            decisions.addAll(outcome.records());
-            outcome.records().forEach(d -> changed.add(new ComparisonKey(d.experiment(), d.arm(), d.metric())));
+            cycle.decided(outcome.records());
             if (outcome.acknowledgement() != null) {
-                acknowledgements.add(outcome.acknowledgement());
+                cycle.acknowledgements.add(outcome.acknowledgement());
             }
-            done.add(c);
-            doneRecords.add(outcome.records());
+            cycle.commands.add(new Ran(c, outcome.records()));
         }
+    }
+
+    /** Looks at every owned experiment that is due, except those whose partials are still being re-read. */
+    private void lookWhereDue(Cycle cycle) {
         for (ExperimentMonitor monitor : owned.values()) {
-            if (!monitor.due(now) || catchingUp.containsKey(settings.stateFor(monitor.definition().id()))) {
+            if (!monitor.due(cycle.now) || catchingUp.containsKey(settings.stateFor(monitor.definition().id()))) {
                 continue;
             }
             long start = System.nanoTime();
             Merged merged = merge(monitor.definition());
-            LookReport report = monitor.look(now, merged.exposures, merged.tallies);
-            took.add(Duration.ofNanos(System.nanoTime() - start));
-            given.add(merged.tallies);
-            reports.add(report);
-            decisions.addAll(report.decisions());
+            LookReport report = monitor.look(cycle.now, merged.exposures, merged.tallies);
+            cycle.looks.add(new Look(report, merged.tallies, Duration.ofNanos(System.nanoTime() - start)));
             for (LookResult r : report.results()) {
-                changed.add(new ComparisonKey(report.experiment(), r.arm(), r.metric()));
+                cycle.changed.add(new ComparisonKey(report.experiment(), r.arm(), r.metric()));
             }
-            for (DecisionRecord d : report.decisions()) {
-                changed.add(new ComparisonKey(d.experiment(), d.arm(), d.metric()));
-            }
+            cycle.decided(report.decisions());
         }
-        Map<String, ExperimentMonitor.OperatorState> operatorChanges = new HashMap<>();
+    }
+
+    /** What operators set on each owned experiment, where it differs from what was last committed. */
+    private Map<String, ExperimentMonitor.OperatorState> operatorChanges() {
+        Map<String, ExperimentMonitor.OperatorState> changes = new HashMap<>();
         owned.forEach((id, m) -> {
             ExperimentMonitor.OperatorState state = m.operatorState();
             if (!state.equals(persisted.get(id))) {
-                operatorChanges.put(id, state);
+                changes.put(id, state);
             }
         });
-        if (changed.isEmpty() && reports.isEmpty() && pending.isEmpty() && operatorChanges.isEmpty()
-                && acknowledgements.isEmpty()) {
-            for (int i = 0; i < done.size(); i++) {
-                done.get(i).done().complete(doneRecords.get(i));
-            }
-            return;
-        }
+        return changes;
+    }
+
+    /**
+     * Writes the turn in one transaction: decision records and acknowledgements to the decisions
+     * topic, what operators set and each changed comparison's state and newest look points to the
+     * looks topic, and the consumed offsets. Once committed, notes what is now persisted.
+     *
+     * @return false when the transaction failed: the owned experiments are then restored from the
+     *         committed state, the operators' actions fail, and nothing of the turn is published
+     */
+    private boolean commit(Cycle cycle) {
         try {
             producer.beginTransaction();
-            for (DecisionRecord d : decisions) {
+            for (DecisionRecord d : cycle.decisions) {
                 producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
                         writer.decision(d)));
             }
-            for (Acknowledgement a : acknowledgements) {
+            for (Acknowledgement a : cycle.acknowledgements) {
                 producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(a.experiment()),
                         writer.acknowledgement(a)));
             }
-            operatorChanges.forEach((id, state) -> producer.send(new ProducerRecord<>(settings.looksTopic(),
+            cycle.operatorChanges.forEach((id, state) -> producer.send(new ProducerRecord<>(settings.looksTopic(),
                     settings.stateFor(id), StateCodec.key(id), StateCodec.operatorState(state))));
-            for (ComparisonKey key : changed) {
-                Comparison c = owned.get(key.experiment()).comparison(key.metric(), key.arm());
-                List<LookPoint> points = c.points();
-                int size = points.size();
-                producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
-                        StateCodec.key(key.text()), StateCodec.history(c.snapshot(), c.decision(), c.last(), size)));
-                for (int block = c.unsavedFrom() / StateCodec.POINTS_PER_BLOCK;
-                     block * StateCodec.POINTS_PER_BLOCK < size; block++) {
-                    producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
-                            StateCodec.key(key.pointsKey(block)), StateCodec.points(points, block, size)));
-                }
+            for (ComparisonKey key : cycle.changed) {
+                sendComparison(key);
             }
             if (!pending.isEmpty()) {
                 producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
@@ -305,40 +354,60 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             producer.commitTransaction();
             pending.clear();
         } catch (FencedInstanceIdException e) {
-            done.forEach(c -> c.done().completeExceptionally(e));
+            cycle.failCommands(e);
             throw e;   // another process uses this instance's member id: stopping is the only safe answer
         } catch (KafkaException e) {
             LOG.warn("judge commit failed ({}); restoring owned experiments from the committed look history", e.toString());
             Clients.quietly(LOG, producer::abortTransaction);
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
             producer = Clients.transactionalProducer(settings, "judge", member);
-            done.forEach(c -> c.done().completeExceptionally(e));
+            cycle.failCommands(e);
             Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
             disown(assigned);
             own(assigned);
-            return;
+            return false;
         }
-        persisted.putAll(operatorChanges);
-        Set<String> experiments = new HashSet<>(operatorChanges.keySet());
-        for (ComparisonKey key : changed) {
-            experiments.add(key.experiment());
+        persisted.putAll(cycle.operatorChanges);
+        for (ComparisonKey key : cycle.changed) {
             owned.get(key.experiment()).comparison(key.metric(), key.arm()).saved();
         }
-        reports.forEach(r -> experiments.add(r.experiment()));
+        return true;
+    }
+
+    /** A comparison's state record, and the blocks of look points from its first unsaved one on. */
+    private void sendComparison(ComparisonKey key) {
+        Comparison c = owned.get(key.experiment()).comparison(key.metric(), key.arm());
+        List<LookPoint> points = c.points();
+        int size = points.size();
+        producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+                StateCodec.key(key.text()), StateCodec.history(c.snapshot(), c.decision(), c.last(), size)));
+        for (int block = c.unsavedFrom() / StateCodec.POINTS_PER_BLOCK;
+             block * StateCodec.POINTS_PER_BLOCK < size; block++) {
+            producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+                    StateCodec.key(key.pointsKey(block)), StateCodec.points(points, block, size)));
+        }
+    }
+
+    /**
+     * After the commit: new views of the experiments the turn changed, the operators' answers, then
+     * the looks and decisions to meters, logs and webhooks.
+     */
+    private void publish(Cycle cycle) {
+        Set<String> experiments = new HashSet<>(cycle.operatorChanges.keySet());
+        cycle.changed.forEach(key -> experiments.add(key.experiment()));
+        cycle.looks.forEach(look -> experiments.add(look.report().experiment()));
         for (String id : experiments) {
             ExperimentMonitor m = owned.get(id);
             if (m != null) {
                 views.put(id, m.view());
             }
         }
-        for (int i = 0; i < done.size(); i++) {
-            done.get(i).done().complete(doneRecords.get(i));
+        cycle.answerCommands();
+        for (Look look : cycle.looks) {
+            events.looked(look.report(), look.given(), look.took());
         }
-        for (int i = 0; i < reports.size(); i++) {
-            events.looked(reports.get(i), given.get(i), took.get(i));
-        }
-        if (!decisions.isEmpty()) {
-            events.committed(decisions);
+        if (!cycle.decisions.isEmpty()) {
+            events.committed(cycle.decisions);
         }
     }
 
@@ -357,17 +426,20 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         }
     }
 
+    /** An arm and a metric ({@link PartialKey#EXPOSURES} for the exposures) of one experiment: a partial's key within it. */
+    record ArmMetric(String arm, String metric) {}
+
     /** Per-arm tallies of every metric and the exposures, summed over the input partitions. */
     private Merged merge(ExperimentDefinition definition) {
         // What each key's tally must hold now: a source not yet rewritten since a metric's kind or
         // the experiment's assignment changed still holds partials of the old form, which do not add.
-        Map<String, TallyForm> forms = new HashMap<>();
+        Map<ArmMetric, TallyForm> forms = new HashMap<>();
         for (String arm : definition.arms()) {
-            forms.put(arm + '\u001f' + PartialKey.EXPOSURES, TallyForm.RATE);
-            definition.metrics().forEach(metric -> forms.put(arm + '\u001f' + metric.name(), definition.form(metric)));
+            forms.put(new ArmMetric(arm, PartialKey.EXPOSURES), TallyForm.RATE);
+            definition.metrics().forEach(metric -> forms.put(new ArmMetric(arm, metric.name()), definition.form(metric)));
         }
-        Map<String, Tally> sum = new HashMap<>();
-        for (Map<String, Tally> bySource : partials.getOrDefault(definition.id(), Map.of()).values()) {
+        Map<ArmMetric, Tally> sum = new HashMap<>();
+        for (Map<ArmMetric, Tally> bySource : partials.getOrDefault(definition.id(), Map.of()).values()) {
             bySource.forEach((k, t) -> {
                 if (t.form() == forms.get(k)) {
                     sum.merge(k, t, JudgeStage::plus);
@@ -376,10 +448,10 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         }
         Merged m = new Merged();
         for (String arm : definition.arms()) {
-            Tally exposures = sum.get(arm + '\u001f' + PartialKey.EXPOSURES);
+            Tally exposures = sum.get(new ArmMetric(arm, PartialKey.EXPOSURES));
             m.exposures.put(arm, exposures == null ? 0L : exposures.count());
             definition.metrics().forEach(metric -> {
-                Tally t = sum.get(arm + '\u001f' + metric.name());
+                Tally t = sum.get(new ArmMetric(arm, metric.name()));
                 if (t != null) {
                     m.tallies.computeIfAbsent(metric.name(), x -> new HashMap<>()).put(arm, t);
                 }
@@ -453,9 +525,10 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     /** The records of the looks topic of the experiments being taken over, read in any order. */
     private static final class Restored {
         final Map<String, ExperimentMonitor.OperatorState> operators = new HashMap<>();
-        final Map<List<String>, byte[]> histories = new HashMap<>();
-        final Map<List<String>, Map<Integer, byte[]>> blocks = new HashMap<>();
+        final Map<ComparisonKey, byte[]> histories = new HashMap<>();
+        final Map<ComparisonKey, Map<Integer, byte[]>> blocks = new HashMap<>();
 
+        /** {@code k}: the record's key split at its separators (see {@link ComparisonKey}). */
         void add(String[] k, byte[] value) {
             if (k.length == 1) {
                 if (value == null) {
@@ -464,9 +537,9 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                     operators.put(k[0], StateCodec.operatorState(value));
                 }
             } else if (k.length == 3) {
-                histories.put(List.of(k[0], k[1], k[2]), value);
+                histories.put(new ComparisonKey(k[0], k[1], k[2]), value);
             } else if (k.length == 5 && StateCodec.POINTS.equals(k[3])) {
-                Map<Integer, byte[]> byBlock = blocks.computeIfAbsent(List.of(k[0], k[1], k[2]), x -> new HashMap<>());
+                Map<Integer, byte[]> byBlock = blocks.computeIfAbsent(new ComparisonKey(k[0], k[1], k[2]), x -> new HashMap<>());
                 byBlock.put(Integer.parseInt(k[4]), value);
             }
         }
@@ -487,12 +560,12 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             persisted.remove(id);   // written with the next commit, before any decision of this run leaves
         }
         restored.histories.forEach((k, value) -> {
-            if (!k.get(0).equals(id) || value == null) {
+            if (!k.experiment().equals(id) || value == null) {
                 return;
             }
-            StateCodec.History h = StateCodec.history(value, k.get(0), k.get(1), k.get(2));
+            StateCodec.History h = StateCodec.history(value, k.experiment(), k.arm(), k.metric());
             try {
-                Comparison c = monitor.comparison(k.get(2), k.get(1));
+                Comparison c = monitor.comparison(k.metric(), k.arm());
                 if (h.snapshot() == null) {
                     c.restore(h.fractions(), h.decision());
                     return;
@@ -503,7 +576,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                     byte[] b = blocks.get(block);
                     if (b == null) {
                         LOG.warn("look history of {} / {} / {}: block {} of its points is missing; kept {} of {}",
-                                k.get(0), k.get(1), k.get(2), block, points.size(), h.points());
+                                k.experiment(), k.arm(), k.metric(), block, points.size(), h.points());
                         break;
                     }
                     points.addAll(StateCodec.points(b));
@@ -511,7 +584,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
                 c.restore(h.snapshot(), h.decision(), h.last(),
                         points.size() > h.points() ? points.subList(0, h.points()) : points);
             } catch (IllegalArgumentException gone) {
-                LOG.info("look history of {} / {} / {} no longer configured; ignored", k.get(0), k.get(1), k.get(2));
+                LOG.info("look history of {} / {} / {} no longer configured; ignored", k.experiment(), k.arm(), k.metric());
             }
         });
     }
