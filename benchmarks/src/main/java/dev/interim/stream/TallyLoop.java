@@ -1,5 +1,6 @@
 package dev.interim.stream;
 
+import dev.interim.events.Catalog;
 import dev.interim.events.EventCatalog;
 import dev.interim.experiment.ExperimentDefinition;
 import java.util.List;
@@ -20,19 +21,21 @@ public final class TallyLoop {
     private final Catalog catalog;
     private final String topic;
     private final PartitionState[] states;
+    private final UnitChangelog[] changelogs;
     private final CountingSink counting = new CountingSink();
 
     /**
      * @param events     the event mapping, as {@code InterimConfig.catalog()} gives it to the daemon's reader
-     * @param experiments the experiments, as the daemon builds its {@link Catalog} from them
+     * @param experiments the experiments (the catalogue is the events' own: the daemon shares one)
      * @param topic      the input topic's name (the partitions' sources are "topic-partition", as in the stage)
      * @param partitions how many input partitions the stage owns
      */
     public TallyLoop(EventCatalog events, List<ExperimentDefinition> experiments, String topic, int partitions) {
         this.reader = new JsonEventReader(events);
-        this.catalog = new Catalog(experiments);
+        this.catalog = events.catalog();   // the one compiled catalogue, as the daemon shares it
         this.topic = topic;
         this.states = new PartitionState[partitions];
+        this.changelogs = new UnitChangelog[partitions];
         reset();
     }
 
@@ -41,6 +44,7 @@ public final class TallyLoop {
         for (int p = 0; p < states.length; p++) {
             // TallyStage.process: states.computeIfAbsent(tp, t -> new PartitionState(source(t), catalog))
             states[p] = new PartitionState(topic + "-" + p, catalog);
+            changelogs[p] = new UnitChangelog(topic + "-" + p);
         }
     }
 
@@ -82,11 +86,12 @@ public final class TallyLoop {
     public long commit() {
         long bytes = 0;
         ByteCount units = new ByteCount();
-        for (PartitionState state : states) {
+        for (int i = 0; i < states.length; i++) {
+            PartitionState state = states[i];
             for (PartitionState.Partial p : state.drainChangedPartials()) {
                 bytes += StateCodec.key(p.key().text()).length + StateCodec.partial(p.tally()).length;
             }
-            state.drainChangedUnitRecords(units);
+            changelogs[i].commit(state, units);   // TallyStage.commit: delta blocks, and a snapshot when due
         }
         return bytes + units.bytes;
     }
@@ -96,22 +101,22 @@ public final class TallyLoop {
         long calls;
 
         @Override
-        public void exposure(String experiment, String arm, String unit) {
+        public void exposure(int experiment, int arm, String unit) {
             calls++;
         }
 
         @Override
-        public void outcome(String experiment, String arm, String unit, String metric, boolean success) {
+        public void outcome(int experiment, int arm, String unit, int metric, boolean success) {
             calls++;
         }
 
         @Override
-        public void value(String experiment, String arm, String unit, String metric, double value) {
+        public void value(int experiment, int arm, String unit, int metric, double value) {
             calls++;
         }
 
         @Override
-        public void ratio(String experiment, String arm, String unit, String metric, double numerator, double denominator) {
+        public void ratio(int experiment, int arm, String unit, int metric, double numerator, double denominator) {
             calls++;
         }
     }
@@ -122,7 +127,7 @@ public final class TallyLoop {
 
         @Override
         public void accept(byte[] key, byte[] value) {
-            bytes += key.length + value.length;
+            bytes += key.length + (value == null ? 0 : value.length);
         }
     }
 }

@@ -5,7 +5,6 @@ import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.core.JsonToken;
 import com.fasterxml.jackson.core.StreamReadConstraints;
-import com.fasterxml.jackson.core.StreamReadFeature;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.interim.events.EventMapping;
 import dev.interim.events.MappedExperiment;
@@ -35,15 +34,16 @@ import java.util.Map;
  * accepted event reaches the sink whole, a refused one not at all.
  *
  * <p>What counts as JSON is RFC 8259, strictly: one object and nothing after it but whitespace, each
- * key once in its object (a second "arm" would make the event say two things), UTF-8 well-formed
+ * key the reader reads once in its object (a second "arm" would make the event say two things; keys
+ * nothing reads are not checked for repeats), UTF-8 well-formed
  * (Unicode §3.9, Table 3-7: no overlong forms, encoded surrogates or code points above U+10FFFF;
  * one leading byte order mark is allowed, §8.1). The experiment, arm and unit must also be Unicode
  * text: a JSON escape can write an unpaired surrogate (U+D800 alone), which UTF-8 cannot carry, so
  * two such units would become one key in the state topics.
  *
  * <p>An event is read in one pass over its tokens, with no tree: only the values the pointers find
- * are decoded ({@link PointerTrie}); every other token is still read, so the parser checks the whole
- * input as it would to build the tree. All checks of what was found come after that pass, in the
+ * are decoded ({@link PointerTrie}); every other token is still read, so the parser checks the
+ * whole input's syntax as it would to build the tree (duplicate keys only where it reads). All checks of what was found come after that pass, in the
  * order the fields are listed above, so the first fault found is the same whatever the members'
  * order.
  */
@@ -89,8 +89,7 @@ public final class JsonEventReader implements EventReader {
         this.json = JsonFactory.builder()
                 .streamReadConstraints(StreamReadConstraints.builder()
                         .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
-                .enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION)
-                .build();
+                .build();   // no STRICT_DUPLICATE_DETECTION: PointerTrie refuses duplicates where it reads
         this.experimentSlot = pointers.add(mapping.experiment());
         this.armSlot = pointers.add(mapping.arm());
         this.unitSlot = mapping.unit().map(pointers::add).orElse(-1);

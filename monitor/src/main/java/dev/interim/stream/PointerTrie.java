@@ -33,9 +33,11 @@ import java.util.Map;
  *
  * <p>Every token of the value is read, matched or not, in the order and with the calls the tree
  * reader makes ({@link JsonParser#nextFieldName()} for members, {@link JsonParser#nextToken()} for
- * values): the parser checks its whole input the same way (structure, duplicate keys, nesting depth,
- * number length) and fails at the same token with the same message. Strings and numbers not matched
- * are not decoded; the parser still checks their syntax as it passes them.
+ * values): the parser checks its whole input the same way (structure, nesting depth, number length)
+ * and fails at the same token with the same message. Strings and numbers not matched are not
+ * decoded; the parser still checks their syntax as it passes them. Duplicate keys are looked for
+ * only where the pointers read (a member on a pointer's path named twice in its object: the event
+ * would say two things there); elsewhere nothing reads them, and they cost nothing.
  *
  * <p>Immutable once built; a pass keeps its state in the array it is given, so passes may run
  * concurrently.
@@ -49,11 +51,19 @@ final class PointerTrie {
     /** Indices below this are held in an array; larger ones (rare in events) in a map. */
     private static final int DENSE_INDICES = 64;
 
-    private final Node root = new Node();
+    private final Node root;
     private int slots;
+    /** Nodes made so far: each has an id below this, for the pass's record of what it visited. */
+    private int nodes;
+
+    PointerTrie() {
+        root = new Node(nodes++);
+    }
 
     /** One reference token's place in the tree: its slot (or -1) and what follows it. */
-    private static final class Node {
+    private final class Node {
+        /** Its index in a pass's record of visited nodes. */
+        final int id;
         int slot = -1;
         /** Children by member name, null when none. */
         Map<String, Node> members;
@@ -63,6 +73,10 @@ final class PointerTrie {
         Map<Integer, Node> farElements;
         /** The largest index with a child, or -1. */
         int lastIndex = -1;
+
+        Node(int id) {
+            this.id = id;
+        }
 
         Node member(String name) {
             return members == null ? null : members.get(name);
@@ -82,7 +96,7 @@ final class PointerTrie {
             String name = step.getMatchingProperty();
             Node child = members == null ? null : members.get(name);
             if (child == null) {
-                child = new Node();
+                child = new Node(nodes++);
                 if (members == null) {
                     members = new HashMap<>();
                 }
@@ -137,10 +151,11 @@ final class PointerTrie {
      * last token, and records in {@code found} (one entry per slot) what each pointer finds in it.
      */
     void read(JsonParser p, JsonToken first, JsonNode[] found) throws IOException {
-        value(p, first, root, found);
+        value(p, first, root, found, new boolean[nodes]);
     }
 
-    private static void value(JsonParser p, JsonToken t, Node node, JsonNode[] found) throws IOException {
+    private static void value(JsonParser p, JsonToken t, Node node, JsonNode[] found, boolean[] visited)
+            throws IOException {
         if (t == JsonToken.START_OBJECT) {
             if (node.slot >= 0) {
                 found[node.slot] = OBJECT;
@@ -148,7 +163,7 @@ final class PointerTrie {
             if (node.members == null) {
                 skipObject(p);
             } else {
-                object(p, node, found);
+                object(p, node, found, visited);
             }
         } else if (t == JsonToken.START_ARRAY) {
             if (node.slot >= 0) {
@@ -157,7 +172,7 @@ final class PointerTrie {
             if (node.lastIndex < 0) {
                 skipArray(p);
             } else {
-                array(p, node, found);
+                array(p, node, found, visited);
             }
         } else if (t == null) {
             throw endOfInput(p);
@@ -166,24 +181,29 @@ final class PointerTrie {
         }
     }
 
-    private static void object(JsonParser p, Node node, JsonNode[] found) throws IOException {
+    private static void object(JsonParser p, Node node, JsonNode[] found, boolean[] visited) throws IOException {
         for (String name = p.nextFieldName(); name != null; name = p.nextFieldName()) {
-            JsonToken t = p.nextToken();
             Node child = node.member(name);
+            if (child != null && visited[child.id]) {
+                // A pointer names each place once, so a node is reached twice only through a repeated key.
+                throw new JsonParseException(p, "Duplicate field '" + name + "'");
+            }
+            JsonToken t = p.nextToken();
             if (child != null) {
-                value(p, t, child, found);
+                visited[child.id] = true;
+                value(p, t, child, found, visited);
             } else {
                 skip(p, t);
             }
         }
     }
 
-    private static void array(JsonParser p, Node node, JsonNode[] found) throws IOException {
+    private static void array(JsonParser p, Node node, JsonNode[] found, boolean[] visited) throws IOException {
         int index = 0;
         for (JsonToken t = p.nextToken(); t != JsonToken.END_ARRAY; t = p.nextToken(), index++) {
             Node child = node.element(index);
             if (child != null) {
-                value(p, t, child, found);
+                value(p, t, child, found, visited);
             } else {
                 skip(p, t);
             }

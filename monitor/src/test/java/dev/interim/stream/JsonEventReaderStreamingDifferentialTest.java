@@ -51,9 +51,11 @@ import net.jqwik.api.statistics.StatisticsReport.StatisticsReportMode;
 class JsonEventReaderStreamingDifferentialTest {
 
     /** One configuration, read by both readers. */
-    private record Pair(String name, JsonEventReader streaming, JsonEventReaderStreamingTreeOracle tree) {
+    private record Pair(String name, JsonEventReader streaming, JsonEventReaderStreamingTreeOracle tree,
+                        JsonEventReaderStreamingTreeOracle lastWins) {
         Pair(String name, InterimConfig config) {
-            this(name, new JsonEventReader(config.catalog()), new JsonEventReaderStreamingTreeOracle(config));
+            this(name, new JsonEventReader(config.catalog()), new JsonEventReaderStreamingTreeOracle(config),
+                    new JsonEventReaderStreamingTreeOracle(config, false));
         }
     }
 
@@ -168,12 +170,28 @@ class JsonEventReaderStreamingDifferentialTest {
         for (Pair pair : PAIRS) {
             Result tree = result(pair.tree(), bytes);
             Result streaming = result(pair.streaming(), bytes);
+            if (isDuplicate(tree) && isDuplicate(streaming)) {
+                // Both refuse a repeated key; the tree reader names the first repeat anywhere, the
+                // streaming reader the first on a path it reads.
+                assertThat(streaming.calls()).isEmpty();
+                results.add(streaming);
+                continue;
+            }
+            if (isDuplicate(tree)) {
+                // A key repeated where nothing reads (docs/configuration.md): the streaming reader reads
+                // the event as the tree reader reads it when it lets a repeat pass.
+                tree = result(pair.lastWins(), bytes);
+            }
             assertThat(streaming).as("%s: %s", pair.name(), TileEvents.show(bytes)).isEqualTo(tree);
             assertThat(streaming.reason() != null || streaming.message() == null)
                     .as("%s: %s %s", pair.name(), TileEvents.show(bytes), streaming).isTrue();   // refused or accepted, nothing thrown
             results.add(streaming);
         }
         return results;
+    }
+
+    private static boolean isDuplicate(Result r) {
+        return r.reason() == Reason.NOT_JSON && r.message().startsWith("not readable JSON: Duplicate field '");
     }
 
     private static Result read(String pair, String text) {
@@ -283,14 +301,20 @@ class JsonEventReaderStreamingDifferentialTest {
     }
 
     @Example
-    void duplicateKeysAreRefusedAtEveryDepthReadOrNot() {
-        // RFC 8259 §4: names SHOULD be unique; this reader holds them to it, in parts it reads and parts it skips.
-        for (String dup : List.of("\"extra\":{\"a\":1,\"a\":1}", "\"extra\":[0,{\"a\":[],\"b\":{},\"a\":null}]",
-                "\"extra\":{\"a\":{\"b\":{\"c\":1,\"\\u0063\":2}}}", "\"timing\":{\"ms\":1,\"ms\":1}",
-                "\"extra\":1,\"extra\":1")) {
+    void duplicateKeysAreRefusedWhereTheReaderReadsAndPassElsewhere() {
+        // RFC 8259 §4: names SHOULD be unique. This reader holds the keys it reads to it (a key on a
+        // pointer's path, at any depth: the event would say two things there); repeats where nothing
+        // reads change nothing that is read, and are not looked for.
+        for (String dup : List.of("\"timing\":{\"ms\":1,\"ms\":1}", "\"timing\":{\"ms\":1},\"timing\":{}")) {
             Result r = read("tile", TILE + "\"session\":\"s\"," + dup + "}");
             assertThat(r.reason()).as(dup).isEqualTo(Reason.NOT_JSON);
             assertThat(r.message()).as(dup).startsWith("not readable JSON: Duplicate field '");
+        }
+        for (String dup : List.of("\"extra\":{\"a\":1,\"a\":1}", "\"extra\":[0,{\"a\":[],\"b\":{},\"a\":null}]",
+                "\"extra\":{\"a\":{\"b\":{\"c\":1,\"\\u0063\":2}}}", "\"extra\":1,\"extra\":1",
+                "\"timing\":{\"ms\":1,\"other\":2,\"other\":3}")) {
+            Result r = read("tile", TILE + "\"session\":\"s\"," + dup + "}");
+            assertThat(r.reason()).as(dup).isNull();
         }
         assertThat(read("kiosk", "{\"ctx\":{\"exp\":\"kiosk-audio\",\"arm\":\"loud\",\"arm\":\"quiet\"}}").reason())
                 .isEqualTo(Reason.NOT_JSON);

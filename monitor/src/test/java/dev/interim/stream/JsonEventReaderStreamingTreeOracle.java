@@ -66,13 +66,23 @@ final class JsonEventReaderStreamingTreeOracle implements EventReader {
     private record Experiment(ExperimentDefinition definition, List<Metric> metrics, boolean needsUnit) {}
 
     JsonEventReaderStreamingTreeOracle(InterimConfig config) {
+        this(config, true);
+    }
+
+    /**
+     * @param strictDuplicates refuse a key repeated anywhere (the old reader), or let the last one win
+     *     (for the comparison of an event whose repeats lie where the streaming reader does not read)
+     */
+    JsonEventReaderStreamingTreeOracle(InterimConfig config, boolean strictDuplicates) {
         this.mapping = config.events();
         this.catalog = config.catalog().catalog();
-        JsonFactory factory = JsonFactory.builder()
-                .streamReadConstraints(StreamReadConstraints.builder()
-                        .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build())
-                .enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION)
-                .build();
+        com.fasterxml.jackson.core.JsonFactoryBuilder builder = new com.fasterxml.jackson.core.JsonFactoryBuilder();
+        builder.streamReadConstraints(StreamReadConstraints.builder()
+                .maxNestingDepth(MAX_DEPTH).maxStringLength(MAX_BYTES).maxNumberLength(100).build());
+        if (strictDuplicates) {
+            builder.enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION);
+        }
+        JsonFactory factory = builder.build();
         this.json = JsonMapper.builder(factory).enable(DeserializationFeature.FAIL_ON_TRAILING_TOKENS).build();
         for (MappedExperiment e : config.experiments()) {
             List<Metric> metrics = new ArrayList<>();
