@@ -135,18 +135,20 @@ final class PartitionState implements ObservationSink {
         boolean anyDirty;
         long accepted;
         UnitTable units;
-        private StateCodec.UnitEncoder encoder;
+        /** What an encoder of this experiment's unit records needs (made at the first use). */
+        private UnitColumns columns;
 
-        /** The encoder of this experiment's unit records, made at the first commit that has units. */
-        StateCodec.UnitEncoder encoder() {
-            if (encoder == null) {
+        UnitColumns columns() {
+            if (columns == null) {
                 String[] rateNames = new String[unitRates.length];
+                int[] rateBits = new int[unitRates.length];
                 for (int i = 0; i < rateNames.length; i++) {
                     rateNames[i] = unitRates[i].name;
+                    rateBits[i] = unitRates[i].column;
                 }
-                encoder = new StateCodec.UnitEncoder(source, id, arms, rateNames, totalColumns);
+                columns = new UnitColumns(source, id, arms, rateNames, rateBits, totalColumns);
             }
-            return encoder;
+            return columns;
         }
 
         /** Scratch of {@link #restoreUnit}, reused from one unit to the next. */
@@ -513,69 +515,45 @@ final class PartitionState implements ObservationSink {
     }
 
     /**
-     * Hands every unit changed since the last drain to {@code out} as its changelog record (key and
-     * value bytes, see {@link StateCodec}), and clears the change set. What a commit writes.
+     * What a writer of unit records needs of one experiment's units: the source, the experiment, its
+     * arms (by index, as the table holds them), its unit-rate metrics (name and met bit) and the names
+     * of its totals columns (by column).
      */
-    void drainChangedUnitRecords(BiConsumer<byte[], byte[]> out) {
+    record UnitColumns(String source, String experiment, String[] arms, String[] rateNames, int[] rateBits,
+                       String[] totalColumns) {}
+
+    /** Visits one unit of an experiment's table. */
+    @FunctionalInterface
+    interface UnitVisitor {
+        void unit(UnitColumns columns, UnitTable table, int slot);
+    }
+
+    /** Visits every unit changed since the last drain, and clears the change set: what a commit writes. */
+    void drainChanged(UnitVisitor visitor) {
         for (Experiment e : experiments) {
             UnitTable t = e.units;
             if (t == null || t.changedCount() == 0) {
                 continue;
             }
-            StateCodec.UnitEncoder encoder = e.encoder();
-            t.drainChanged(slot -> out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encode(e, t, slot, encoder)));
+            UnitColumns c = e.columns();
+            t.drainChanged(slot -> visitor.unit(c, t, slot));
         }
     }
 
-    /**
-     * Hands every unit held to {@code out} as its changelog record, changed or not, leaving the change
-     * set as it is: what a snapshot of the units writes.
-     */
-    void allUnitRecords(BiConsumer<byte[], byte[]> out) {
+    /** Visits every unit held, changed or not, leaving the change set as it is: what a snapshot writes. */
+    void forEachUnit(UnitVisitor visitor) {
         for (Experiment e : experiments) {
             UnitTable t = e.units;
             if (t == null || t.size() == 0) {
                 continue;
             }
-            StateCodec.UnitEncoder encoder = e.encoder();
+            UnitColumns c = e.columns();
             for (int slot = 0; slot < t.capacity(); slot++) {
                 if (t.occupied(slot)) {
-                    out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encode(e, t, slot, encoder));
+                    visitor.unit(c, t, slot);
                 }
             }
         }
-    }
-
-    /** One unit's changelog value: its arm, the unit-rate metrics it met, its non-zero totals. */
-    private static byte[] encode(Experiment e, UnitTable t, int slot, StateCodec.UnitEncoder encoder) {
-        Metric[] rates = e.unitRates;
-        int met = 0;
-        for (Metric m : rates) {
-            if (t.met(slot, m.column)) {
-                met++;
-            }
-        }
-        encoder.begin(t.arm(slot), met);
-        for (int i = 0; i < rates.length; i++) {
-            if (t.met(slot, rates[i].column)) {
-                encoder.met(i);
-            }
-        }
-        int columns = e.totalColumns.length;
-        int written = 0;
-        for (int c = 0; c < columns; c++) {
-            if (Double.doubleToRawLongBits(t.total(slot, c)) != 0) {
-                written++;
-            }
-        }
-        encoder.totalCount(written);
-        for (int c = 0; c < columns; c++) {
-            double v = t.total(slot, c);
-            if (Double.doubleToRawLongBits(v) != 0) {
-                encoder.total(c, v);
-            }
-        }
-        return encoder.finish();
     }
 
     /** The changed units collected in a map (tests); the change set is cleared. */
@@ -699,23 +677,6 @@ final class PartitionState implements ObservationSink {
     long unitsLeftOut() {
         return unitsLeftOut;
     }
-
-    /** The key of {@code unit} in {@code experiment}: what the units changelog is keyed by. */
-    static UnitKey unitKey(String experiment, String unit) {
-        UnitTable.Hasher h = new UnitTable.Hasher();
-        h.hash(unit);
-        return new UnitKey(experiment, h.hi, h.lo);
-    }
-
-    /** A unit of an experiment, by the 96-bit hash of its id (see {@link UnitTable}). */
-    record UnitKey(String experiment, long hi, int lo) {}
-
-    /**
-     * A unit's state by name, as the units changelog carries it: its arm, the unit-rate metrics it
-     * met, and its unit-total totals (an absent one is 0). The collections are handed over, not
-     * copied: whoever makes one does not change them afterwards.
-     */
-    record UnitState(String arm, Set<String> met, Map<String, Double> totals) {}
 
     /** A cumulative partial tally: what the tallies topic carries. */
     record Partial(PartialKey key, Tally tally) {

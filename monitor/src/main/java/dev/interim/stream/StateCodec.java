@@ -93,7 +93,7 @@ final class StateCodec {
     private static final int UNIT_HASH_BYTES = 12;
 
     /** Where a units changelog record belongs: the input partition and the unit. */
-    record UnitRecordKey(String source, PartitionState.UnitKey unit) {}
+    record UnitRecordKey(String source, UnitKey unit) {}
 
     /**
      * The record key of a unit on the units changelog: the source ("topic-partition"), 0x1e, the
@@ -101,7 +101,7 @@ final class StateCodec {
      * big-endian). Topic names and experiment ids hold neither separator, so the first 0x1e and the
      * first 0x1f after it split the key whatever bytes the hash has.
      */
-    static byte[] unitKey(String source, PartitionState.UnitKey unit) {
+    static byte[] unitKey(String source, UnitKey unit) {
         byte[] s = source.getBytes(StandardCharsets.UTF_8);
         byte[] e = unit.experiment().getBytes(StandardCharsets.UTF_8);
         java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(s.length + 1 + e.length + 1 + UNIT_HASH_BYTES);
@@ -111,8 +111,8 @@ final class StateCodec {
 
     /**
      * Writes unit records of one experiment of one input partition straight from the unit table,
-     * byte for byte what {@link #unitKey(String, PartitionState.UnitKey)} and
-     * {@link #unit(PartitionState.UnitState)} write, without the objects in between: a commit writes
+     * byte for byte what {@link #unitKey(String, UnitKey)} and
+     * {@link #unit(UnitState)} write, without the objects in between: a commit writes
      * one record per changed unit, so this is on the tally stage's hot path. The names are encoded
      * once; a record is built in a reused buffer. Mutable, one thread.
      */
@@ -242,7 +242,7 @@ final class StateCodec {
         String experiment = new String(key, cut + 1, end - cut - 1, StandardCharsets.UTF_8);
         int tail = key.length - end - 1;
         if (isJson(value)) {
-            return new UnitRecordKey(source, PartitionState.unitKey(experiment,
+            return new UnitRecordKey(source, UnitKey.of(experiment,
                     new String(key, end + 1, tail, StandardCharsets.UTF_8)));
         }
         if (tail != UNIT_HASH_BYTES) {
@@ -250,7 +250,7 @@ final class StateCodec {
                     + " experiment, this one " + tail);
         }
         java.nio.ByteBuffer b = java.nio.ByteBuffer.wrap(key, end + 1, UNIT_HASH_BYTES);
-        return new UnitRecordKey(source, new PartitionState.UnitKey(experiment, b.getLong(), b.getInt()));
+        return new UnitRecordKey(source, new UnitKey(experiment, b.getLong(), b.getInt()));
     }
 
     /**
@@ -261,7 +261,7 @@ final class StateCodec {
      * bytes. Names rather than positions: a record stays right when the configuration adds, drops or
      * reorders arms and metrics; arm and metric names are short (at most 128 and 64 characters).
      */
-    static byte[] unit(PartitionState.UnitState u) {
+    static byte[] unit(UnitState u) {
         java.io.ByteArrayOutputStream out = new java.io.ByteArrayOutputStream(32);
         out.write(UNIT_VERSION);
         writeName(out, u.arm());
@@ -281,19 +281,19 @@ final class StateCodec {
     }
 
     /**
-     * Reads a unit record: version 2 (binary, see {@link #unit(PartitionState.UnitState)}) or
+     * Reads a unit record: version 2 (binary, see {@link #unit(UnitState)}) or
      * version 1 (JSON: {@code {"v":1,"arm":...,"totals":{name: total},"met":[names]}}).
      *
      * @throws IllegalArgumentException when the record is of no known version or cut short
      */
-    static PartitionState.UnitState unit(byte[] bytes) {
+    static UnitState unit(byte[] bytes) {
         if (isJson(bytes)) {
             JsonNode n = read(bytes);
             java.util.Map<String, Double> totals = new java.util.LinkedHashMap<>();
             n.path("totals").fields().forEachRemaining(e -> totals.put(e.getKey(), e.getValue().asDouble()));
             java.util.Set<String> met = new java.util.LinkedHashSet<>();
             n.path("met").forEach(m -> met.add(m.asText()));
-            return new PartitionState.UnitState(n.path("arm").asText(), met, totals);
+            return new UnitState(n.path("arm").asText(), met, totals);
         }
         if (bytes.length == 0 || bytes[0] != UNIT_VERSION) {
             throw new IllegalArgumentException("a unit record of unknown version "
@@ -316,7 +316,7 @@ final class StateCodec {
             if (b.hasRemaining()) {
                 throw new IllegalArgumentException("a unit record with " + b.remaining() + " bytes too many");
             }
-            return new PartitionState.UnitState(arm, met, totals);
+            return new UnitState(arm, met, totals);
         } catch (java.nio.BufferUnderflowException e) {
             throw new IllegalArgumentException("a unit record cut short", e);
         }

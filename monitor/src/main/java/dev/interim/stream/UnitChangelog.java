@@ -50,6 +50,7 @@ final class UnitChangelog {
     private final String source;
     private final byte[] prefix;
     private final long minDeltaBytesForSnapshot;
+    private final UnitRecords records = new UnitRecords();
     /** The next delta's sequence number. */
     private long nextSeq;
     /** The first delta after the live snapshot (or the first delta when there is none). */
@@ -90,7 +91,7 @@ final class UnitChangelog {
             nextSeq++;
             deltaBytes += block.length;
         });
-        state.drainChangedUnitRecords(deltas::add);
+        records.drainChanged(state, deltas::add);
         deltas.flush();
         if (!legacyKeys.isEmpty() || (deltaBytes > minDeltaBytesForSnapshot && deltaBytes > 2 * snapshotBytes)) {
             snapshot(state, out);
@@ -106,7 +107,7 @@ final class UnitChangelog {
             written[0]++;
             bytes[0] += block.length;
         });
-        state.allUnitRecords(chunksOut::add);
+        records.all(state, chunksOut::add);
         chunksOut.flush();
         for (long seq = firstLiveSeq; seq < nextSeq; seq++) {
             out.accept(key("d" + seq), null);

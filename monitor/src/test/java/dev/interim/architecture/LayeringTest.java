@@ -149,6 +149,18 @@ class LayeringTest {
                 .check(classes);
     }
 
+    /** The tally holds the sums; the changelog's records are UnitRecords' and StateCodec's business. */
+    @Test
+    void theTallyKnowsNothingOfItsChangelogsEncoding() {
+        noClasses().that().haveFullyQualifiedName("dev.interim.stream.PartitionState")
+                .should().dependOnClassesThat().haveFullyQualifiedName("dev.interim.stream.StateCodec")
+                .orShould().dependOnClassesThat().haveFullyQualifiedName("dev.interim.stream.StateCodec$UnitEncoder")
+                .check(classes);
+        noClasses().that().haveFullyQualifiedName("dev.interim.stream.StateCodec")
+                .should().dependOnClassesThat().haveFullyQualifiedName("dev.interim.stream.PartitionState")
+                .check(classes);
+    }
+
     @Test
     void noPackagesDependOnEachOtherInACycle() {
         com.tngtech.archunit.library.dependencies.SlicesRuleDefinition.slices().matching("dev.interim.(*)..")

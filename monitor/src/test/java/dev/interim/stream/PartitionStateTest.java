@@ -285,8 +285,8 @@ class PartitionStateTest {
         PartialKey changedKind = new PartialKey(SHOP, "old", "errors", SOURCE);
         s.restore(new PartitionState.Partial(gone, new Tally.Rate(new ProportionCounts(1, 4))));
         s.restore(new PartitionState.Partial(changedKind, new Tally.Mean(Moments.ofValues(1, 2))));
-        s.restoreUnit(PartitionState.unitKey(SHOP, "gil"), new PartitionState.UnitState("teal", Set.of(), Map.of()));
-        s.restoreUnit(PartitionState.unitKey(SHOP, "hal"), new PartitionState.UnitState("new", Set.of("booked", "weight"),
+        s.restoreUnit(UnitKey.of(SHOP, "gil"), new UnitState("teal", Set.of(), Map.of()));
+        s.restoreUnit(UnitKey.of(SHOP, "hal"), new UnitState("new", Set.of("booked", "weight"),
                 Map.of("spend", 5.0, "weight", 2.0)));
         s.restore(new PartitionState.Partial(new PartialKey(SHOP, "new", "spend", SOURCE), new Tally.Mean(Moments.ofValues(5.0))));
 
@@ -298,14 +298,14 @@ class PartitionStateTest {
         outcome(s, SHOP, "old", "x", "errors", true);
         assertThat(rate(s, "old", "errors")).as("an event starts the metric anew, replacing the one kept apart")
                 .isEqualTo(new ProportionCounts(1, 1));
-        Map<PartitionState.UnitKey, PartitionState.UnitState> none = s.drainChangedUnits();
+        Map<UnitKey, UnitState> none = s.drainChangedUnits();
         outcome(s, SHOP, "old", "hal", "booked", true);
         value(s, SHOP, "old", "hal", "spend", 1.0);
-        Map<PartitionState.UnitKey, PartitionState.UnitState> hal = s.drainChangedUnits();
+        Map<UnitKey, UnitState> hal = s.drainChangedUnits();
         assertThat(none).as("restored units are not changed, and an event-level outcome keeps no unit").isEmpty();
         assertThat(hal).as("hal kept his arm, his success and his total; unknown names dropped")
-                .containsExactly(Map.entry(PartitionState.unitKey(SHOP, "hal"),
-                        new PartitionState.UnitState("new", Set.of("booked"), Map.of("spend", 6.0))));
+                .containsExactly(Map.entry(UnitKey.of(SHOP, "hal"),
+                        new UnitState("new", Set.of("booked"), Map.of("spend", 6.0))));
     }
 
     /** One call on the sink, over a small invented universe. */
@@ -447,7 +447,7 @@ class PartitionStateTest {
         drained.forEach((k, t) -> tallies.put(k.text(), StateCodec.partial(t)));
         committed.putAll(drained);
         // What the tally stage writes: records encoded straight from the table.
-        s.drainChangedUnitRecords((key, value) -> {
+        new UnitRecords().drainChanged(s, (key, value) -> {
             String id = new String(key, java.nio.charset.StandardCharsets.ISO_8859_1);
             unitKeys.put(id, key);
             unitValues.put(id, value);
@@ -456,8 +456,8 @@ class PartitionStateTest {
 
     /**
      * The records a commit writes straight from the unit table are byte for byte those of the
-     * codec's documented layout ({@link StateCodec#unitKey(String, PartitionState.UnitKey)} and
-     * {@link StateCodec#unit(PartitionState.UnitState)}) of the same units.
+     * codec's documented layout ({@link StateCodec#unitKey(String, UnitKey)} and
+     * {@link StateCodec#unit(UnitState)}) of the same units.
      * Source: the codec in this project is the reference; the property is the equality of the two paths.
      */
     @Property(tries = 200)
@@ -484,7 +484,7 @@ class PartitionStateTest {
             assertThat(out.put(key, java.util.HexFormat.of().formatHex(v))).as("one record per unit").isNull();
         };
         if (direct) {
-            s.drainChangedUnitRecords(put);
+            new UnitRecords().drainChanged(s, put);
         } else {
             s.drainChangedUnits((unit, u) -> put.accept(StateCodec.unitKey(SOURCE, unit), StateCodec.unit(u)));
         }
@@ -527,15 +527,15 @@ class PartitionStateTest {
         exposure(s, SHOP, "bold", "jo");
         value(s, SHOP, "bold", "jo", "spend", 7.25);
         exposure(s, MAPS, "b", "jo");
-        Map<PartitionState.UnitKey, PartitionState.UnitState> first = s.drainChangedUnits();
-        Map<PartitionState.UnitKey, PartitionState.UnitState> expected = new LinkedHashMap<>();
-        expected.put(PartitionState.unitKey(SHOP, "jo"), new PartitionState.UnitState("bold", Set.of(), Map.of("spend", 7.25)));
-        expected.put(PartitionState.unitKey(MAPS, "jo"), new PartitionState.UnitState("b", Set.of(), Map.of()));
+        Map<UnitKey, UnitState> first = s.drainChangedUnits();
+        Map<UnitKey, UnitState> expected = new LinkedHashMap<>();
+        expected.put(UnitKey.of(SHOP, "jo"), new UnitState("bold", Set.of(), Map.of("spend", 7.25)));
+        expected.put(UnitKey.of(MAPS, "jo"), new UnitState("b", Set.of(), Map.of()));
         assertThat(first).as("one unit per experiment").isEqualTo(expected);
         assertThat(s.drainChangedUnits()).isEmpty();
         exposure(s, SHOP, "bold", "jo");
         assertThat(s.drainChangedUnits()).as("an exposure of a known unit changes nothing of it").isEmpty();
         outcome(s, SHOP, "bold", "jo", "returned", true);
-        assertThat(s.drainChangedUnits()).containsOnlyKeys(PartitionState.unitKey(SHOP, "jo"));
+        assertThat(s.drainChangedUnits()).containsOnlyKeys(UnitKey.of(SHOP, "jo"));
     }
 }

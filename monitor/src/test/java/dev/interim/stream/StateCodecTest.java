@@ -111,18 +111,18 @@ class StateCodecTest {
 
     @Test
     void aUnitRecordRoundTripsBitForBit() {
-        PartitionState.UnitState u = new PartitionState.UnitState("bold", Set.of("booked", "returned"),
+        UnitState u = new UnitState("bold", Set.of("booked", "returned"),
                 Map.of("spend", -0.1, "tiny", Double.MIN_VALUE, "huge", 1e300, "negativeZero", -0.0));
-        PartitionState.UnitState back = StateCodec.unit(StateCodec.unit(u));
+        UnitState back = StateCodec.unit(StateCodec.unit(u));
         // common practice: Double.equals compares the bits, so -0.0 and every last digit must survive
         assertThat(back).isEqualTo(u);
-        PartitionState.UnitState bare = new PartitionState.UnitState("a", Set.of(), Map.of());
+        UnitState bare = new UnitState("a", Set.of(), Map.of());
         assertThat(StateCodec.unit(StateCodec.unit(bare))).isEqualTo(bare);
     }
 
     @Test
     void aUnitRecordIsTheVersionByteTheArmAndTheNamedTotals() {
-        byte[] record = StateCodec.unit(new PartitionState.UnitState("new", Set.of(), Map.of("spend", 42.5)));
+        byte[] record = StateCodec.unit(new UnitState("new", Set.of(), Map.of("spend", 42.5)));
         // the layout documented in StateCodec.unit: 1 version byte, 1 + 3 for "new", 1 for no met
         // metric, 1 for one total, then 1 + 5 for "spend" and 8 for its bits
         assertThat(record).hasSize(21);
@@ -134,12 +134,12 @@ class StateCodecTest {
     @Test
     void aUnitKeyRoundTripsWhateverBytesItsHashHas() {
         // invented keys whose hash bytes are the separators themselves, and their complements
-        for (PartitionState.UnitKey unit : List.of(
-                new PartitionState.UnitKey("varrow-search", 0x1e1f1e1f1e1f1e1fL, 0x1f1e1f1e),
-                new PartitionState.UnitKey("varrow-search", -1L, 0),
-                PartitionState.unitKey("h.maps_2", "ana"))) {
+        for (UnitKey unit : List.of(
+                new UnitKey("varrow-search", 0x1e1f1e1f1e1f1e1fL, 0x1f1e1f1e),
+                new UnitKey("varrow-search", -1L, 0),
+                UnitKey.of("h.maps_2", "ana"))) {
             byte[] key = StateCodec.unitKey("varrow.events-11", unit);
-            byte[] value = StateCodec.unit(new PartitionState.UnitState("a", Set.of(), Map.of()));
+            byte[] value = StateCodec.unit(new UnitState("a", Set.of(), Map.of()));
             assertThat(StateCodec.unitKey(key, value)).isEqualTo(new StateCodec.UnitRecordKey("varrow.events-11", unit));
             // the layout documented in StateCodec.unitKey: source, 0x1e, experiment, 0x1f, 12 bytes
             assertThat(key).hasSize("varrow.events-11".length() + 1 + unit.experiment().length() + 1 + 12);
@@ -154,14 +154,14 @@ class StateCodecTest {
                 .getBytes(StandardCharsets.UTF_8);
         // the key of version 1 was the id as text: it is hashed to the key the unit has now
         assertThat(StateCodec.unitKey(key, value)).isEqualTo(
-                new StateCodec.UnitRecordKey("varrow.events-0", PartitionState.unitKey("varrow-search", unit)));
+                new StateCodec.UnitRecordKey("varrow.events-0", UnitKey.of("varrow-search", unit)));
         assertThat(StateCodec.unit(value)).isEqualTo(
-                new PartitionState.UnitState("old", Set.of("booked"), Map.of("spend", 42.5)));
+                new UnitState("old", Set.of("booked"), Map.of("spend", 42.5)));
     }
 
     @Test
     void aUnitRecordOfNoKnownVersionOrCutShortIsRefused() {
-        byte[] good = StateCodec.unit(new PartitionState.UnitState("new", Set.of("booked"), Map.of("spend", 1.0)));
+        byte[] good = StateCodec.unit(new UnitState("new", Set.of("booked"), Map.of("spend", 1.0)));
         assertThatThrownBy(() -> StateCodec.unit(new byte[] {9, 0, 0, 0})).isInstanceOf(IllegalArgumentException.class)
                 .hasMessageContaining("version 9");
         for (int n = 0; n < good.length; n++) {

@@ -70,7 +70,7 @@ class UnitChangelogTest {
     /** Every unit held, by its record key, as its record value (hex): the table's whole content. */
     private static Map<String, String> units(PartitionState s) {
         Map<String, String> out = new LinkedHashMap<>();
-        s.allUnitRecords((k, v) -> out.put(HexFormat.of().formatHex(k), HexFormat.of().formatHex(v)));
+        new UnitRecords().all(s, (k, v) -> out.put(HexFormat.of().formatHex(k), HexFormat.of().formatHex(v)));
         return out;
     }
 
@@ -139,7 +139,7 @@ class UnitChangelogTest {
         PartitionState earlier = new PartitionState(SOURCE, CATALOG);
         traffic(earlier, new SplittableRandom(5), 2_000, 300);
         Log log = new Log();
-        earlier.drainChangedUnitRecords(log::append);   // the layout before blocks: a record per unit
+        new UnitRecords().drainChanged(earlier, log::append);   // the layout before blocks: a record per unit
         Map<String, String> committed = units(earlier);
 
         Restored upgraded = restore(log.records, UnitChangelog.MIN_DELTA_BYTES_FOR_SNAPSHOT);
