@@ -15,6 +15,8 @@ import org.junit.jupiter.api.Test;
  * not import each other freely), and no two packages depend on each other in a cycle. No
  * statistical values here.
  */
+// Source: the layers and permitted users written down in DEVELOPERS.md ("Layers"); the no-cycles rule is
+// common practice for package structure. No statistical values here.
 class LayeringTest {
     private static final String[] PURE = {"dev.interim.stats..", "dev.interim.sequential.."};
     private static JavaClasses classes;

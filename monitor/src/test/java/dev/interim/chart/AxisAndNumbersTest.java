@@ -9,6 +9,8 @@ import org.junit.jupiter.api.Test;
  * Tick steps and their labels. Expected values written by hand ("nice numbers" 1, 2, 2.5, 5: common
  * practice). The number words themselves are checked in {@code dev.interim.text.NumbersTest}.
  */
+// Source: expected tick values are worked out by hand from the rules stated above (common practice for
+// chart axes); no published statistical values here.
 class AxisAndNumbersTest {
     @Test
     void stepsAreOneTwoTwoAndAHalfOrFiveTimesAPowerOfTen() {

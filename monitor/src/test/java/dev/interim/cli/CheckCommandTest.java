@@ -19,6 +19,8 @@ import picocli.CommandLine;
  * the secrets). Expected values are read off config/interim.example.yaml; the exit-code convention is
  * the command line's (see {@link Interim}).
  */
+// Source: expected values come from config/interim.example.yaml and from what this test itself writes;
+// the exit codes are the command line's documented convention (README). No statistical values here.
 class CheckCommandTest {
     /** base64 of 32 bytes, in the Standard Webhooks form. */
     private static final String HOOK_KEY = "whsec_c2VjcmV0LWtleS1mb3ItdGVzdHMtb25seS0xMjM0NTY=";

@@ -28,6 +28,8 @@ import org.junit.jupiter.api.io.TempDir;
  * experiment is written with its final decision and a chart per comparison; an unknown experiment
  * and an unreachable daemon are bad input (exit 2, one line that says what to do).
  */
+// Source: expected values come from what this test itself writes (its own ground truth); no published
+// statistical values are checked here.
 class ReportCommandTest {
     static final String CONFIG = """
             kafka:

@@ -24,6 +24,8 @@ import org.junit.jupiter.params.provider.MethodSource;
  * the chart file, reproducibility across thread counts, and bad input (exit 2, one line naming the
  * problem). The statistics are checked in {@code dev.interim.simulate}; no statistical values here.
  */
+// Source: expected values come from what this test itself configures; the statistics are checked against
+// published values in dev.interim.simulate. No published statistical values here.
 class SimulateCommandTest {
     /** An invented ferry-booking site: a guardrail with a maximum per arm, a powered primary metric. */
     static final String CONFIG = """

@@ -19,6 +19,8 @@ import org.junit.jupiter.api.Test;
  * fraction must come from both arms, tiny or zero-event samples must not give a final look, and a
  * design at exactly its maximum must be complete.
  */
+// Source: expected values come from what this test itself configures (its own ground truth: the
+// reproduced cases' counts); no published statistical values are checked here.
 class SmallSampleRegressionTest {
     private static final Instant T = Instant.parse("2026-03-01T00:00:00Z");
 
