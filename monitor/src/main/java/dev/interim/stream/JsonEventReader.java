@@ -12,7 +12,6 @@ import dev.interim.events.Catalog;
 import dev.interim.events.EventCatalog;
 import dev.interim.events.MetricSource;
 import dev.interim.events.ValueRange;
-import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.stream.BadEventException.Reason;
 import java.io.IOException;
@@ -23,9 +22,7 @@ import java.nio.ByteOrder;
 import java.nio.charset.CharacterCodingException;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
-import java.util.HashMap;
 import java.util.List;
-import java.util.Map;
 
 /**
  * Reads JSON events through the configured JSON Pointers: experiment, arm, optional unit, and each
@@ -82,7 +79,7 @@ public final class JsonEventReader implements EventReader {
     /** A metric's field slots; a ratio's denominator in {@code denominatorSlot} (else -1). */
     private record Metric(String name, MetricSource source, int slot, int denominatorSlot) {}
 
-    private record Experiment(ExperimentDefinition definition, String[] arms, List<Metric> metrics, boolean needsUnit) {}
+    private record Experiment(List<Metric> metrics, boolean needsUnit) {}
 
     public JsonEventReader(EventCatalog config) {
         this.mapping = config.mapping();
@@ -102,8 +99,7 @@ public final class JsonEventReader implements EventReader {
                 int denominator = source instanceof MetricSource.Ratio r ? pointers.add(r.denominator()) : -1;
                 metrics.add(new Metric(m.name(), source, pointers.add(source.field()), denominator));
             }
-            experiments[catalog.index(e.definition().id())] = new Experiment(e.definition(),
-                    e.definition().arms().toArray(new String[0]), metrics, e.definition().needsUnits());
+            experiments[catalog.index(e.definition().id())] = new Experiment(metrics, e.definition().needsUnits());
         }
     }
 
@@ -151,13 +147,7 @@ public final class JsonEventReader implements EventReader {
             throw new BadEventException(Reason.UNKNOWN_EXPERIMENT, "unknown experiment '" + clip(experimentId) + "'");
         }
         String arm = text(found, armSlot, mapping.arm(), "arm");
-        int armIndex = -1;
-        for (int i = 0; i < experiment.arms().length; i++) {
-            if (experiment.arms()[i].equals(arm)) {
-                armIndex = i;
-                break;
-            }
-        }
+        int armIndex = catalog.arm(experimentIndex, arm);
         if (armIndex < 0) {
             throw new BadEventException(Reason.UNKNOWN_ARM, "experiment '" + experimentId + "' has no arm '" + clip(arm) + "'");
         }

@@ -32,10 +32,10 @@ import java.util.function.BiConsumer;
  * every experiment count units, not events, so every experiment that sees units keeps them.
  *
  * <p>Layout, for speed and memory: each experiment of the catalog is compiled once into arrays of
- * holders indexed by (arm, metric), found by one map lookup on the experiment id per call; the
+ * holders indexed by (arm, metric), found by the catalog indices each call carries; the
  * steady state of an event-level observation allocates nothing. Units live in one {@link UnitTable}
  * per experiment (primitive columns, no object per unit). The sink is given only experiments, arms
- * and metrics of the catalog (the event reader refuses the others) and throws on anything else.
+ * and metrics of the catalog, as indices (the event reader refuses the others).
  *
  * <p>Mutable, confined to the tally stage's thread.
  */
@@ -219,22 +219,6 @@ final class PartitionState implements ObservationSink {
             return -1;
         }
 
-        int arm(String arm) {
-            int i = armIndex(arm);
-            if (i < 0) {
-                throw new IllegalArgumentException("experiment '" + id + "' has no arm '" + arm + "'");
-            }
-            return i;
-        }
-
-        Metric metric(String name) {
-            Metric m = metrics.get(name);
-            if (m == null) {
-                throw new IllegalArgumentException("experiment '" + id + "' has no metric '" + name + "'");
-            }
-            return m;
-        }
-
         UnitTable units() {
             if (units == null) {
                 units = new UnitTable(unitRates.length, totalColumns.length);
@@ -346,14 +330,6 @@ final class PartitionState implements ObservationSink {
         t.setTotal(slot, m.column, x1);
         t.setTotal(slot, m.column + 1, y1);
         t.markChanged(slot);
-    }
-
-    private Experiment experiment(String id) {
-        Experiment e = byId.get(id);
-        if (e == null) {
-            throw new IllegalArgumentException("no experiment '" + id + "' in the catalog");
-        }
-        return e;
     }
 
     /** The unit's slot, creating the unit (and counting its exposure) at its first event. */
