@@ -6,6 +6,7 @@ import dev.interim.events.MetricSource;
 import dev.interim.events.ValueRange;
 
 import dev.interim.experiment.Sides;
+import dev.interim.stats.HistogramCounts;
 
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.databind.JsonNode;
@@ -28,7 +29,7 @@ import java.util.stream.Collectors;
 final class MetricReader {
     static final Set<String> KEYS = ConnectionReaders.keys("name", "kind", "role", "worse", "field", "counts_if", "range",
             "alpha", "sides", "spending", "futility", "max_per_arm", "power", "effect", "relative_effect", "planned_looks",
-            "baseline", "action", "numerator", "denominator", "denominator_range", "cap", "denominator_cap");
+            "baseline", "action", "numerator", "denominator", "denominator_range", "cap", "denominator_cap", "quantile");
     static final double DEFAULT_ALPHA = 0.05;
     static final String DEFAULT_SPENDING = "obf";
     static final int DEFAULT_PLANNED_LOOKS = 10;
@@ -44,7 +45,7 @@ final class MetricReader {
         m.mapping(KEYS);
         Problems.Checkpoint start = m.checkpoint();
         String name = m.readRequired("name", "the metric's name, such as checkout-errors", ConfigNode::text);
-        MetricKind kind = m.readRequired("kind", "event-rate, unit-rate, event-mean, unit-total or ratio",
+        MetricKind kind = m.readRequired("kind", "event-rate, unit-rate, event-mean, unit-total, ratio or event-quantile",
                 k -> k.parsed(MetricKind::parse));
         Role role = m.readRequired("role", "guardrail (watches for harm) or primary", r -> r.parsed(Role::parse));
         Worse worse = m.readRequired("worse", "higher or lower: which direction of the metric hurts users",
@@ -60,6 +61,14 @@ final class MetricReader {
         StopAction action = m.read("action", a -> a.parsed(StopAction::parse), StopAction.NONE);
         Double cap = m.read("cap", ConfigNode::number, null);
         Double denominatorCap = m.read("denominator_cap", ConfigNode::number, null);
+        Double quantile = m.read("quantile", ConfigNode::number, null);
+        if (kind != null && kind.isQuantile() && quantile == null && !m.has("quantile")) {
+            m.report(m.error("an event-quantile metric needs quantile: the probability, such as 0.99 for the 99th "
+                    + "percentile (or 0.5, 0.95, 0.999)"));
+        }
+        if (quantile != null && kind != null && !kind.isQuantile()) {
+            m.report(m.required("quantile", "").error("applies to event-quantile metrics only; leave it out"));
+        }
         if (cap != null && kind != null && kind.isProportion()) {
             m.report(m.required("cap", "").error("applies to event-mean, unit-total and ratio metrics: a rate's events "
                     + "count 0 or 1; leave cap out"));
@@ -69,7 +78,7 @@ final class MetricReader {
         }
         start.requireNone();
         MetricDefinition definition = Validated.at(m, KEYS, () -> new MetricDefinition(name, kind, role, worse, alpha,
-                Sides.of(sides), spending, futility, horizon, baseline, action, cap, denominatorCap));
+                Sides.of(sides), spending, futility, horizon, baseline, action, cap, denominatorCap, quantile));
         return new Read(definition, source);
     }
 
@@ -134,6 +143,9 @@ final class MetricReader {
                 throw m.required("counts_if", "").error("applies to rates only: a " + kind.label()
                         + " takes the number in field; leave counts_if out");
             }
+            if (kind.isQuantile()) {
+                return new MetricSource.Value(field, quantileRange(m));
+            }
             ValueRange range = m.optional("range").map(MetricReader::range).orElse(ValueRange.ANY);
             return new MetricSource.Value(field, range);
         }
@@ -161,6 +173,19 @@ final class MetricReader {
                     + ": no value would be allowed");
         }
         return new ValueRange(min, max);
+    }
+
+    /**
+     * A quantile's values are counted in histograms from 0 to {@link HistogramCounts#HIGHEST}: its
+     * range is {min: 0} unless given, and must lie within those (an event outside is refused).
+     */
+    private static ValueRange quantileRange(ConfigNode m) {
+        ValueRange range = m.optional("range").map(MetricReader::range).orElse(new ValueRange(0, HistogramCounts.HIGHEST));
+        if (range.min() < 0 || range.max() > HistogramCounts.HIGHEST) {
+            throw m.required("range", "").error("of an event-quantile must lie within [0, " + (long) HistogramCounts.HIGHEST
+                    + "]: its values are counted in histograms from 0; shift or rescale the field, such as latency in ms");
+        }
+        return range;
     }
 
     /** An end of a range: a finite number; an open end is left out. */

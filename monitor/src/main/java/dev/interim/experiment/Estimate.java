@@ -1,10 +1,12 @@
 package dev.interim.experiment;
 
+import dev.interim.stats.HistogramCounts;
 import dev.interim.stats.InsufficientDataException;
 import dev.interim.stats.MeanSignificance;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.ProportionSignificance;
+import dev.interim.stats.QuantileSignificance;
 import dev.interim.stats.RatioMoments;
 import dev.interim.stats.RatioSignificance;
 import dev.interim.stats.TestResult;
@@ -111,6 +113,10 @@ public record Estimate(double effect, double standardError, double z, double deg
                     rateError(b),
                     upperRateVariance(a) / a.trials(), upperRateVariance(b) / b.trials());
         }
+        if (treatment instanceof Tally.Quantile t) {
+            return quantile(metric.quantile(), t.counts(), control == null ? null : ((Tally.Quantile) control).counts(),
+                    baseline);
+        }
         if (treatment instanceof Tally.Ratio t) {
             RatioMoments a = t.moments();
             if (baseline != null) {
@@ -134,6 +140,25 @@ public record Estimate(double effect, double standardError, double z, double deg
         TestResult r = MeanSignificance.welchTAtLeastPooled(a, b, TWO_SIDED);
         return from(r, a.mean(), b.mean(), a.standardErrorOfMean(), b.standardErrorOfMean(),
                 upperVariance(a.variance(), a.count()) / a.count(), upperVariance(b.variance(), b.count()) / b.count());
+    }
+
+    /**
+     * A quantile's difference (or its distance from the baseline) with Woodruff's standard errors
+     * ({@link QuantileSignificance}); each arm's level error is its own Woodruff error, and the
+     * conservative information takes each arm's variance at its upper limit.
+     */
+    private static Estimate quantile(double p, HistogramCounts a, HistogramCounts b, Double baseline) {
+        if (baseline != null) {
+            QuantileSignificance.ArmQuantile t = QuantileSignificance.arm(a, p);
+            TestResult r = QuantileSignificance.oneSample(t, baseline, TWO_SIDED);
+            return from(shifted(r, baseline), t.quantile(), baseline, t.standardError(), 0, t.conservativeShare(), 0);
+        }
+        HistogramCounts pooled = a.plus(b);
+        QuantileSignificance.ArmQuantile t = QuantileSignificance.arm(a, p, pooled);
+        QuantileSignificance.ArmQuantile c = QuantileSignificance.arm(b, p, pooled);
+        TestResult r = QuantileSignificance.twoSample(t, c, TWO_SIDED);
+        return from(r, t.quantile(), c.quantile(), t.standardError(), c.standardError(), t.conservativeShare(),
+                c.conservativeShare());
     }
 
     /** One-sample results estimate the level; the effect is the level minus the baseline. */

@@ -26,16 +26,26 @@ import java.util.regex.Pattern;
  *            of a unit-total, each numerator (per unit, or per event under per-event assignment) of a
  *            ratio is taken as at most this value (common practice for revenue-like metrics)
  * @param denominatorCap the same for a ratio's denominator, or null
+ * @param quantile the probability of an event-quantile metric (0.99 for the 99th percentile), else null
  */
 public record MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, Sides sides,
                                SpendingFunction spending, SpendingFunction futility, Horizon horizon,
-                               Double baseline, StopAction action, Double cap, Double denominatorCap) {
+                               Double baseline, StopAction action, Double cap, Double denominatorCap,
+                               Double quantile) {
+
+    /** A metric that is not a quantile. */
+    public MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, Sides sides,
+                            SpendingFunction spending, SpendingFunction futility, Horizon horizon,
+                            Double baseline, StopAction action, Double cap, Double denominatorCap) {
+        this(name, kind, role, worse, alpha, sides, spending, futility, horizon, baseline, action, cap, denominatorCap,
+                null);
+    }
 
     /** A metric without caps. */
     public MetricDefinition(String name, MetricKind kind, Role role, Worse worse, double alpha, Sides sides,
                             SpendingFunction spending, SpendingFunction futility, Horizon horizon,
                             Double baseline, StopAction action) {
-        this(name, kind, role, worse, alpha, sides, spending, futility, horizon, baseline, action, null, null);
+        this(name, kind, role, worse, alpha, sides, spending, futility, horizon, baseline, action, null, null, null);
     }
 
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9_.-]{1,64}");
@@ -44,7 +54,7 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
         if (name == null || !NAME.matcher(name).matches()) {
             throw new IllegalArgumentException("name must be 1 to 64 letters, digits, '_', '-' or '.', got " + UserText.quoted(name));
         }
-        require(kind != null, "kind is required: event-rate, unit-rate, event-mean, unit-total or ratio");
+        require(kind != null, "kind is required: event-rate, unit-rate, event-mean, unit-total, ratio or event-quantile");
         require(role != null, "role is required: primary or guardrail");
         require(worse != null, "worse is required: higher or lower");
         Probabilities.requireOpen(alpha, "alpha");
@@ -71,6 +81,13 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
         require(action != null, "action is required: none, kill or page");
         require(cap == null || (Double.isFinite(cap) && !kind.isProportion()),
                 "cap applies to event-mean, unit-total and ratio metrics and must be a finite number, got " + cap);
+        require(kind.isQuantile() == (quantile != null), kind.isQuantile()
+                ? "quantile is required for an event-quantile metric: the probability, such as 0.99 for the 99th percentile"
+                : "quantile applies to event-quantile metrics only");
+        require(quantile == null || (quantile >= 0.01 && quantile <= 0.999),
+                "quantile must lie in [0.01, 0.999], such as 0.5, 0.95, 0.99 or 0.999, got " + quantile);
+        require(cap == null || !kind.isQuantile(),
+                "cap does not apply to an event-quantile metric: a cap above the quantile leaves it as it is");
         require(denominatorCap == null || (kind == MetricKind.RATIO && Double.isFinite(denominatorCap) && denominatorCap > 0),
                 "denominator_cap applies to ratio metrics and must be a positive number, got " + denominatorCap);
     }

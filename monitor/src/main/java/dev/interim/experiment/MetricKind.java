@@ -16,7 +16,9 @@ public enum MetricKind {
     /** Mean over units of each unit's total (revenue per user). */
     UNIT_TOTAL("unit-total", false),
     /** A numerator field over a denominator field, each summed (revenue per session, items per order). */
-    RATIO("ratio", false);
+    RATIO("ratio", false),
+    /** A quantile of a value over events (latency p99), from a histogram of the values. */
+    EVENT_QUANTILE("event-quantile", false);
 
     private final String label;
     private final boolean proportion;
@@ -46,6 +48,11 @@ public enum MetricKind {
         return this == EVENT_RATE || this == EVENT_MEAN || this == RATIO;
     }
 
+    /** True for the quantile kind, whose metric names a probability and whose tally is a histogram. */
+    public boolean isQuantile() {
+        return this == EVENT_QUANTILE;
+    }
+
     /** Parses a configuration label; the message lists the accepted ones. */
     public static MetricKind parse(String text) {
         for (MetricKind k : values()) {
@@ -54,6 +61,6 @@ public enum MetricKind {
             }
         }
         throw new IllegalArgumentException("unknown metric kind " + UserText.quoted(text)
-                + ": use event-rate, unit-rate, event-mean, unit-total or ratio");
+                + ": use event-rate, unit-rate, event-mean, unit-total, ratio or event-quantile");
     }
 }

@@ -1,11 +1,12 @@
 package dev.interim.experiment;
 
+import dev.interim.stats.HistogramCounts;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RatioMoments;
 
 /** The sufficient statistics of one arm on one metric at a look: immutable snapshots. */
-public sealed interface Tally permits Tally.Rate, Tally.Mean, Tally.Ratio {
+public sealed interface Tally permits Tally.Rate, Tally.Mean, Tally.Ratio, Tally.Quantile {
 
     /** Observations so far (events or units; units for a ratio of per-unit sums). */
     long count();
@@ -70,12 +71,32 @@ public sealed interface Tally permits Tally.Rate, Tally.Mean, Tally.Ratio {
         }
     }
 
+    /** Counts of values in histogram buckets, in groups of units, for quantiles. */
+    record Quantile(HistogramCounts counts) implements Tally {
+        public Quantile {
+            if (counts == null) {
+                throw new IllegalArgumentException("a quantile tally needs its counts");
+            }
+        }
+
+        @Override
+        public TallyForm form() {
+            return TallyForm.QUANTILE;
+        }
+
+        @Override
+        public long count() {
+            return counts.count();
+        }
+    }
+
     /** The empty tally of {@code form}. */
     public static Tally empty(TallyForm form) {
         return switch (form) {
             case RATE -> new Rate(ProportionCounts.EMPTY);
             case MEAN -> new Mean(Moments.EMPTY);
             case RATIO -> new Ratio(RatioMoments.EMPTY);
+            case QUANTILE -> new Quantile(HistogramCounts.empty(1));
         };
     }
 }

@@ -11,7 +11,9 @@ public enum TallyForm {
     /** {@link Tally.Mean}: event-mean under per-event assignment, unit-total. */
     MEAN,
     /** {@link Tally.Ratio}: ratio metrics, and event-rate and event-mean under per-unit assignment. */
-    RATIO;
+    RATIO,
+    /** {@link Tally.Quantile}: event-quantile metrics (one group of values per event, groups of units per unit). */
+    QUANTILE;
 
     /** The form of {@code kind} under {@code assignment}. */
     public static TallyForm of(MetricKind kind, Assignment assignment) {
@@ -19,6 +21,7 @@ public enum TallyForm {
             case UNIT_RATE -> RATE;
             case UNIT_TOTAL -> MEAN;
             case RATIO -> RATIO;
+            case EVENT_QUANTILE -> QUANTILE;
             case EVENT_RATE -> assignment == Assignment.UNIT ? RATIO : RATE;
             case EVENT_MEAN -> assignment == Assignment.UNIT ? RATIO : MEAN;
         };

@@ -470,6 +470,9 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         if (a.form() != b.form()) {
             throw new IllegalArgumentException("partials of different forms do not add: " + a.form() + " and " + b.form());
         }
+        if (a instanceof Tally.Quantile x && b instanceof Tally.Quantile y) {
+            return new Tally.Quantile(x.counts().plus(y.counts()));
+        }
         if (a instanceof Tally.Ratio x && b instanceof Tally.Ratio y) {
             return new Tally.Ratio(x.moments().plus(y.moments()));
         }

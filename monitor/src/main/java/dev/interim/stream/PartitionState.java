@@ -8,7 +8,9 @@ import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.MetricKind;
 import dev.interim.experiment.Tally;
 import dev.interim.experiment.TallyForm;
+import dev.interim.stats.HistogramCounts;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.stats.RunningHistogram;
 import dev.interim.stats.RunningMoments;
 import dev.interim.stats.RunningRatioMoments;
 import java.util.ArrayList;
@@ -92,6 +94,8 @@ final class PartitionState implements ObservationSink {
         final MetricDefinition definition;
         /** True for a ratio of per-unit sums (its numerator and denominator in two totals columns). */
         final boolean unitRatio;
+        /** For a quantile: its groups of values (1 per event, {@link HistogramCounts#UNIT_GROUPS} per unit), else 0. */
+        final int groups;
         /** The metric's column in the holder arrays (0 is the exposures). */
         final int slot;
         /**
@@ -100,7 +104,8 @@ final class PartitionState implements ObservationSink {
          */
         final int column;
 
-        Metric(MetricDefinition definition, TallyForm form, int slot, int column) {
+        Metric(MetricDefinition definition, TallyForm form, int slot, int column, boolean perUnit) {
+            this.groups = form != TallyForm.QUANTILE ? 0 : perUnit ? HistogramCounts.UNIT_GROUPS : 1;
             this.name = definition.name();
             this.kind = definition.kind();
             this.definition = definition;
@@ -130,6 +135,7 @@ final class PartitionState implements ObservationSink {
         final Counts[] counts;
         final RunningMoments[] moments;
         final RunningRatioMoments[] ratios;
+        final RunningHistogram[] histograms;
         final PartialKey[] keys;
         final boolean[] dirty;
         boolean anyDirty;
@@ -180,7 +186,7 @@ final class PartitionState implements ObservationSink {
                 boolean unitRatio = f == TallyForm.RATIO && perUnit;
                 int column = m.kind() == MetricKind.UNIT_RATE ? rates.size()
                         : m.kind() == MetricKind.UNIT_TOTAL || unitRatio ? totalNames.size() : -1;
-                Metric metric = new Metric(m, f, i + 1, column);
+                Metric metric = new Metric(m, f, i + 1, column, perUnit);
                 metrics.put(m.name(), metric);
                 byIndex[i] = metric;
                 columnNames[i + 1] = m.name();
@@ -205,6 +211,7 @@ final class PartitionState implements ObservationSink {
             counts = new Counts[n];
             moments = new RunningMoments[n];
             ratios = new RunningRatioMoments[n];
+            histograms = new RunningHistogram[n];
             keys = new PartialKey[n];
             dirty = new boolean[n];
         }
@@ -278,6 +285,16 @@ final class PartitionState implements ObservationSink {
         Metric m = e.byIndex[metric];
         if (m.unitRatio) {
             addToUnit(e, m, a, unit, m.definition.capped(value), 1, false);
+            return;
+        }
+        if (m.groups == 1) {
+            histogram(e, a * e.width + m.slot, m).accept(value, 0);
+            return;
+        }
+        if (m.groups > 1) {
+            int slot = unit(e, a, unit);
+            UnitTable t = e.units;
+            histogram(e, t.arm(slot) * e.width + m.slot, m).accept(value, t.keyLo(slot) & (m.groups - 1));
             return;
         }
         if (m.kind == MetricKind.UNIT_TOTAL) {
@@ -401,6 +418,17 @@ final class PartitionState implements ObservationSink {
         return m;
     }
 
+    private RunningHistogram histogram(Experiment e, int index, Metric m) {
+        RunningHistogram h = e.histograms[index];
+        if (h == null) {
+            h = new RunningHistogram(m.groups);
+            e.histograms[index] = h;
+            created(e, index);
+        }
+        touch(e, index);
+        return h;
+    }
+
     /** A holder's first use: the partial of the same key kept apart at a restore, if any, is replaced. */
     private void created(Experiment e, int index) {
         PartialKey k = e.key(index);
@@ -442,7 +470,7 @@ final class PartitionState implements ObservationSink {
         List<Partial> out = new ArrayList<>();
         for (Experiment e : experiments) {
             for (int i = 0; i < e.keys.length; i++) {
-                if (e.counts[i] != null || e.moments[i] != null || e.ratios[i] != null) {
+                if (e.counts[i] != null || e.moments[i] != null || e.ratios[i] != null || e.histograms[i] != null) {
                     out.add(partialOf(e, i));
                 }
             }
@@ -452,6 +480,10 @@ final class PartitionState implements ObservationSink {
     }
 
     private static Partial partialOf(Experiment e, int index) {
+        RunningHistogram h = e.histograms[index];
+        if (h != null) {
+            return new Partial(e.key(index), new Tally.Quantile(h.snapshot()));
+        }
         RunningRatioMoments r = e.ratios[index];
         if (r != null) {
             return new Partial(e.key(index), new Tally.Ratio(r.snapshot()));
@@ -584,12 +616,14 @@ final class PartitionState implements ObservationSink {
                 column = m == null ? -1 : m.slot;
             }
         }
-        if (column < 0 || e.form[column] != partial.tally().form()) {
+        if (column < 0 || e.form[column] != partial.tally().form() || !sameGroups(e, column, partial.tally())) {
             orphans.put(k, partial.tally());
             return;
         }
         int index = a * e.width + column;
-        if (partial.tally() instanceof Tally.Ratio r) {
+        if (partial.tally() instanceof Tally.Quantile q) {
+            e.histograms[index] = RunningHistogram.from(q.counts());
+        } else if (partial.tally() instanceof Tally.Ratio r) {
             e.ratios[index] = RunningRatioMoments.from(r.moments());
         } else if (partial.tally() instanceof Tally.Mean m) {
             e.moments[index] = RunningMoments.from(m.moments());
@@ -601,6 +635,11 @@ final class PartitionState implements ObservationSink {
             e.counts[index] = c;
         }
         e.key(index);
+    }
+
+    /** A quantile's partial counts in the groups its metric has now (the assignment may have changed). */
+    private static boolean sameGroups(Experiment e, int column, Tally tally) {
+        return !(tally instanceof Tally.Quantile q) || q.counts().groupCount() == e.byIndex[column - 1].groups;
     }
 
     /**

@@ -14,6 +14,7 @@ import dev.interim.sequential.Look;
 import dev.interim.sequential.SequentialMonitor;
 import dev.interim.stats.Alternative;
 import dev.interim.experiment.Tally;
+import dev.interim.stats.HistogramCounts;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RatioMoments;
@@ -43,7 +44,20 @@ final class StateCodec {
 
     static byte[] partial(Tally tally) {
         ObjectNode n = JSON.createObjectNode().put("v", 1);
-        if (tally instanceof Tally.Mean m) {
+        if (tally instanceof Tally.Quantile q) {
+            HistogramCounts h = q.counts();
+            com.fasterxml.jackson.databind.node.ArrayNode groups = n.put("kind", "quantile").putArray("groups");
+            for (int g = 0; g < h.groupCount(); g++) {
+                if (h.count(g) == 0) {
+                    groups.addNull();
+                    continue;
+                }
+                org.HdrHistogram.PackedHistogram one = h.group(g);
+                java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(one.getNeededByteBufferCapacity());
+                int length = one.encodeIntoByteBuffer(b);
+                groups.add(java.util.Arrays.copyOf(b.array(), length));
+            }
+        } else if (tally instanceof Tally.Mean m) {
             Moments x = m.moments();
             n.put("kind", "mean").put("count", x.count()).put("m2", x.sumSquaredDeviations());
             if (x.count() > 0) {
@@ -65,6 +79,24 @@ final class StateCodec {
 
     static Tally partial(byte[] bytes) {
         JsonNode n = read(bytes);
+        if ("quantile".equals(n.path("kind").asText())) {
+            JsonNode groups = n.path("groups");
+            if (!groups.isArray() || groups.isEmpty()) {
+                throw new IllegalArgumentException("a quantile partial needs its groups");
+            }
+            org.HdrHistogram.PackedHistogram[] h = new org.HdrHistogram.PackedHistogram[groups.size()];
+            for (int g = 0; g < h.length; g++) {
+                if (!groups.get(g).isNull()) {
+                    try {
+                        h[g] = org.HdrHistogram.PackedHistogram.decodeFromByteBuffer(
+                                java.nio.ByteBuffer.wrap(groups.get(g).binaryValue()), 2);
+                    } catch (IOException e) {
+                        throw new UncheckedIOException(e);
+                    }
+                }
+            }
+            return new Tally.Quantile(HistogramCounts.of(h));
+        }
         if ("mean".equals(n.path("kind").asText())) {
             long count = n.path("count").asLong();
             if (count == 0) {

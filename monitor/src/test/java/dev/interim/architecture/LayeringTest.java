@@ -115,7 +115,7 @@ class LayeringTest {
                 .layer("daemon").definedBy("dev.interim.daemon..")
                 .layer("demo").definedBy("dev.interim.demo..")
                 .layer("cli").definedBy("dev.interim.cli..")
-                .whereLayer("stats").mayOnlyBeAccessedByLayers("sequential", "experiment", "stream", "signal", "http",
+                .whereLayer("stats").mayOnlyBeAccessedByLayers("sequential", "experiment", "config", "stream", "signal", "http",
                         "dashboard", "replay", "simulate", "cli")
                 .whereLayer("sequential").mayOnlyBeAccessedByLayers("experiment", "config", "stream", "signal", "chart",
                         "replay", "simulate", "demo", "cli")
