@@ -39,7 +39,7 @@ class InvalidConfigTest {
                         Configs.valid("max_per_arm: 10000", "max_per_arm: 10000\n        futility: obf")),
                 bad("experiments[0].metrics[0].spending", "unknown spending function 'wobbly'",
                         Configs.valid("max_per_arm: 10000", "max_per_arm: 10000\n        spending: wobbly")),
-                bad("experiments[0].metrics[0].kind", "use event-rate, unit-rate, event-mean, unit-total or ratio",
+                bad("experiments[0].metrics[0].kind", "use event-rate, unit-rate, event-mean, unit-total, ratio or event-quantile",
                         Configs.valid("kind: event-rate", "kind: event-ratio")),
                 bad("experiments[0].metrics[0].max_per_arm", "either max_per_arm or power with effect, not both",
                         Configs.valid("max_per_arm: 10000", "max_per_arm: 10000\n        power: 0.9")),
