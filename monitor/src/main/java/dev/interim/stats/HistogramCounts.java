@@ -185,6 +185,32 @@ public final class HistogramCounts {
         return n;
     }
 
+    /** Equal when every group holds the same counts in the same buckets. */
+    @Override
+    public boolean equals(Object o) {
+        if (!(o instanceof HistogramCounts other) || other.groups.length != groups.length || other.count != count) {
+            return false;
+        }
+        for (int g = 0; g < groups.length; g++) {
+            boolean empty = groups[g] == null || groups[g].getTotalCount() == 0;
+            boolean otherEmpty = other.groups[g] == null || other.groups[g].getTotalCount() == 0;
+            if (empty != otherEmpty || (!empty && !groups[g].equals(other.groups[g]))) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    @Override
+    public int hashCode() {
+        return Long.hashCode(count) * 31 + groups.length;
+    }
+
+    @Override
+    public String toString() {
+        return "HistogramCounts[" + count + " values in " + groupsUsed() + " of " + groups.length + " groups]";
+    }
+
     private Buckets total() {
         Buckets b = total;
         if (b == null) {

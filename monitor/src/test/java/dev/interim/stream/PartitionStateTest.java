@@ -63,6 +63,8 @@ class PartitionStateTest {
                      counts_if: {equals: true}, max_per_arm: 1000}
                   - {name: spend, kind: unit-total, role: guardrail, worse: lower, field: /spend, max_per_arm: 1000}
                   - {name: items, kind: unit-total, role: guardrail, worse: lower, field: /items, max_per_arm: 1000}
+                  - {name: ms-p90, kind: event-quantile, quantile: 0.9, role: guardrail, worse: higher, field: /ms,
+                     max_per_arm: 1000}
               - id: mossglint-maps
                 assignment: event
                 control: a
@@ -82,6 +84,8 @@ class PartitionStateTest {
                   - {name: fare, kind: ratio, role: primary, worse: lower, numerator: /fare, denominator: /seats,
                      cap: 400, max_per_arm: 1000}
                   - {name: tips, kind: unit-total, role: guardrail, worse: lower, field: /tip, cap: 30, max_per_arm: 1000}
+                  - {name: ms-p99, kind: event-quantile, quantile: 0.99, role: guardrail, worse: higher, field: /ms,
+                     max_per_arm: 1000}
             """;
     private static final List<ExperimentDefinition> DEFINITIONS =
             ConfigLoader.parseWithoutSecrets(YAML).experiments().stream().map(e -> e.definition()).toList();
@@ -261,6 +265,39 @@ class PartitionStateTest {
     }
 
     @Test
+    void aQuantileCountsEachValueInItsArmPerEventAndInItsUnitsArmAndGroupPerUnit() {
+        // Counted by hand: per-event assignment (the shop), each value in the arm of its event; per-unit
+        // assignment (the fares), ben's values in x, the arm of his first event, all in his key's group.
+        PartitionState s = state();
+        value(s, SHOP, "old", "ana", "ms-p90", 120);
+        value(s, SHOP, "new", "ana", "ms-p90", 80);
+        value(s, SHOP, "new", "ben", "ms-p90", 95.5);
+        exposure(s, FARES, "x", "ben");
+        value(s, FARES, "x", "ben", "ms-p99", 200);
+        value(s, FARES, "y", "ben", "ms-p99", 300);
+        dev.interim.stats.HistogramCounts old = ((Tally.Quantile) tally(s, SHOP, "old", "ms-p90")).counts();
+        dev.interim.stats.HistogramCounts fresh = ((Tally.Quantile) tally(s, SHOP, "new", "ms-p90")).counts();
+        assertThat(old.groupCount()).as("one group per event").isEqualTo(1);
+        assertThat(old.count()).isEqualTo(1);
+        assertThat(fresh.count()).isEqualTo(2);
+        assertThat(fresh.below(90)).isEqualTo(1);
+        dev.interim.stats.HistogramCounts x = ((Tally.Quantile) tally(s, FARES, "x", "ms-p99")).counts();
+        assertThat(x.groupCount()).isEqualTo(dev.interim.stats.HistogramCounts.UNIT_GROUPS);
+        assertThat(x.count()).as("ben's two values, both in x").isEqualTo(2);
+        assertThat(x.groupsUsed()).as("one unit, one group").isEqualTo(1);
+        assertThat(tally(s, FARES, "y", "ms-p99")).isNull();
+        // A partial of other groups (the assignment changed) is kept apart at a restore, not mixed.
+        PartitionState restored = state();
+        dev.interim.stats.RunningHistogram perEvent = new dev.interim.stats.RunningHistogram(1);
+        perEvent.accept(5, 0);
+        restored.restore(new PartitionState.Partial(new PartialKey(FARES, "x", "ms-p99", SOURCE),
+                new Tally.Quantile(perEvent.snapshot())));
+        value(restored, FARES, "x", "cy", "ms-p99", 7);
+        assertThat(((Tally.Quantile) tally(restored, FARES, "x", "ms-p99")).counts().count())
+                .as("the orphan replaced by the new partial, not added to").isEqualTo(1);
+    }
+
+    @Test
     void aUnitTotalsCapAppliesToTheUnitsTotalNotToEachValue() {
         // By hand: ana tips 20 then 25 (total 45, capped at 30); ben tips 10; cy nothing (0).
         PartitionState s = state();
@@ -341,6 +378,7 @@ class PartitionStateTest {
                     }
                     if ((mask & 4) != 0) {
                         calls.add(new Call(2, SHOP, arm, unit, "ms", ms));
+                        calls.add(new Call(2, SHOP, arm, unit, "ms-p90", ms));
                     }
                     if ((mask & 8) != 0) {
                         calls.add(new Call(1, SHOP, arm, unit, "booked", (mask & 16)));
@@ -368,6 +406,7 @@ class PartitionStateTest {
                     }
                     if ((mask & 4) != 0) {
                         calls.add(new Call(2, FARES, arm, unit, "ms", v));
+                        calls.add(new Call(2, FARES, arm, unit, "ms-p99", v));
                     }
                     if ((mask & 8) != 0) {
                         calls.add(new Call(3, FARES, arm, unit, "fare", v));
