@@ -32,8 +32,10 @@ import org.junit.jupiter.api.io.TempDir;
 /**
  * The daemon end to end on a real in-process Kafka broker (no mocked Kafka): events in, decisions
  * out. An invented canary of a fictional parcel-routing service with three arms: the current
- * router, a healthy candidate, and one that triples the error rate. The harmful arm must be stopped
- * for harm on the error guardrail, with its record on the decisions topic; the healthy one not;
+ * router, a healthy candidate, and one that triples the error rate and sends one request in ten to a
+ * slow path. The harmful arm must be stopped for harm on the error guardrail and on the p95 latency
+ * guardrail (its histograms summed across the input partitions), with its records on the decisions
+ * topic; the healthy one not;
  * unreadable events must land in the dead-letter topic with their reason and be counted.
  */
 // Source: expected values come from what this test itself writes or configures (its own ground truth);
@@ -67,6 +69,13 @@ class DaemonIntegrationTest {
                     action: page
                   - name: latency
                     kind: event-mean
+                    role: guardrail
+                    worse: higher
+                    field: /ms
+                    max_per_arm: 40000
+                  - name: latency-p95
+                    kind: event-quantile
+                    quantile: 0.95
                     role: guardrail
                     worse: higher
                     field: /ms
@@ -118,11 +127,13 @@ class DaemonIntegrationTest {
             SplittableRandom random = new SplittableRandom(2026);
             Map<String, Double> errorRate = Map.of("current", 0.01, "steady", 0.01, "flaky", 0.03);
             try (KafkaProducer<String, String> producer = producer(daemon.bootstrapServers())) {
-                for (int batch = 0; batch < 40 && !stopped(seen, "flaky"); batch++) {
+                for (int batch = 0; batch < 40 && !(stopped(seen, "flaky", "failures")
+                        && stopped(seen, "flaky", "latency-p95")); batch++) {
                     for (int i = 0; i < 600; i++) {
                         for (String arm : errorRate.keySet()) {
                             int status = random.nextDouble() < errorRate.get(arm) ? 503 : 200;
-                            double ms = 80 + 30 * random.nextDouble();
+                            double ms = 80 + 30 * random.nextDouble()
+                                    + (arm.equals("flaky") && random.nextDouble() < 0.1 ? 200 : 0);
                             producer.send(new ProducerRecord<>("routing.events", "u" + i,
                                     "{\"exp\":\"router-canary\",\"arm\":\"" + arm + "\",\"status\":" + status + ",\"ms\":" + ms + "}"));
                         }
@@ -150,10 +161,14 @@ class DaemonIntegrationTest {
                 }
             }
             long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
-            while (!stopped(seen, "flaky") && System.nanoTime() < deadline) {
+            while (!(stopped(seen, "flaky", "failures") && stopped(seen, "flaky", "latency-p95"))
+                    && System.nanoTime() < deadline) {
                 Thread.sleep(200);
             }
             assertThat(seen).filteredOn(d -> d.arm().equals("flaky") && d.metric().equals("failures"))
+                    .extracting(DecisionRecord::decision).contains("stop-harm");
+            // The slow path moves flaky's p95 from about 108.5 ms to above 280 ms.
+            assertThat(seen).filteredOn(d -> d.arm().equals("flaky") && d.metric().equals("latency-p95"))
                     .extracting(DecisionRecord::decision).contains("stop-harm");
             assertThat(seen).filteredOn(d -> d.arm().equals("steady")).extracting(DecisionRecord::decision)
                     .doesNotContain("stop-harm");
@@ -183,6 +198,11 @@ class DaemonIntegrationTest {
 
     static boolean stopped(List<DecisionRecord> seen, String arm) {
         return seen.stream().anyMatch(d -> d.arm().equals(arm) && d.decision().equals("stop-harm"));
+    }
+
+    static boolean stopped(List<DecisionRecord> seen, String arm, String metric) {
+        return seen.stream().anyMatch(d -> d.arm().equals(arm) && d.metric().equals(metric)
+                && d.decision().equals("stop-harm"));
     }
 
     static KafkaProducer<String, String> producer(String bootstrap) {
