@@ -7,8 +7,8 @@ import java.util.function.BiConsumer;
  * Synthetic shoppers of the invented "quorvel" checkout: each shopper is assigned to a build by a
  * hash of their id (a third each), browses, attempts a payment (which may fail and takes some
  * time), and places an order when the payment went through and they decide to. candidate-a is as
- * good as stable (a touch better); candidate-b fails more payments, and 1.5% of its payments take
- * about 300 ms longer (a retried call), which moves their 99th percentile by some 150 ms and their
+ * good as stable (a touch better); candidate-b fails more payments, and 1% of its payments take
+ * about 400 ms longer (a retried call), which moves their 99th percentile by some 200 ms and their
  * mean by only about 4 ms. In every build, 0.3% of payments stall at the card issuer for seconds;
  * these stalls, far beyond the 99th percentile, make the mean noisy. Every number here is made up
  * for the demonstration.
@@ -27,7 +27,7 @@ public final class DemoTraffic {
     private static final Profile[] PROFILES = {
         new Profile(0.010, 180, 60, 0, 0, 0.62),
         new Profile(0.009, 178, 60, 0, 0, 0.62),
-        new Profile(0.024, 180, 60, 0.015, 300, 0.60),
+        new Profile(0.024, 180, 60, 0.010, 400, 0.60),
     };
     /** Every build: the share of payments that stall at the card issuer, and the median stall (ms, log-normal). */
     private static final double STALLED = 0.003;
