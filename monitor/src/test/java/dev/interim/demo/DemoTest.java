@@ -103,6 +103,7 @@ class DemoTest {
 
     private static ExperimentView.ComparisonView comparison(ExperimentView view, String arm, String metric) {
         return view.comparisons().stream().filter(c -> c.arm().equals(arm) && c.metric().equals(metric)).findFirst()
-                .orElseThrow(() -> new AssertionError("no comparison " + arm + " / " + metric + " in " + view.comparisons()));
+                .orElseThrow(() -> new AssertionError("no comparison " + arm + " / " + metric + " in "
+                        + view.comparisons()));
     }
 }
