@@ -79,6 +79,18 @@ class QuantileConfigTest {
         assertThat(source.range()).isEqualTo(new ValueRange(1, 60000));
     }
 
+    /** An end left open is the histograms' end, so {min: 0} (the default written out) and {max: X} are accepted. */
+    @Test
+    void anOpenEndOfTheRangeIsTheHistogramsEnd() {
+        for (String[] c : new String[][] {{"range: {min: 0}", "0", "1e12"}, {"range: {max: 60000}", "0", "60000"},
+            {"range: {min: 5}", "5", "1e12"}}) {
+            InterimConfig config = ConfigLoader.parse(valid("field: /resize_ms", "field: /resize_ms\n        " + c[0]), Map.of());
+            var experiment = config.experiment("plumtree-resize").orElseThrow();
+            MetricSource.Value source = (MetricSource.Value) experiment.source(experiment.definition().metrics().get(0));
+            assertThat(source.range()).as(c[0]).isEqualTo(new ValueRange(Double.parseDouble(c[1]), Double.parseDouble(c[2])));
+        }
+    }
+
     static Stream<Arguments> invalid() {
         return Stream.of(
                 Arguments.of("missing quantile", "experiments[0].metrics[0]", "needs quantile: the probability",
@@ -98,6 +110,8 @@ class QuantileConfigTest {
                         valid("field: /resize_ms", "field: /resize_ms\n        cap: 5000")),
                 Arguments.of("a range below 0", "experiments[0].metrics[0].range", "must lie within [0, 1000000000000]",
                         valid("field: /resize_ms", "field: /resize_ms\n        range: {min: -1}")),
+                Arguments.of("a range wholly below 0", "experiments[0].metrics[0].range", "must lie within [0, 1000000000000]",
+                        valid("field: /resize_ms", "field: /resize_ms\n        range: {max: -5}")),
                 Arguments.of("a range above the histograms", "experiments[0].metrics[0].range",
                         "must lie within [0, 1000000000000]",
                         valid("field: /resize_ms", "field: /resize_ms\n        range: {max: 2e12}")),
