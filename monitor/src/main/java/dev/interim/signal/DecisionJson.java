@@ -45,8 +45,8 @@ import java.time.format.DateTimeParseException;
  * written for an event-quantile metric only, its probability (0.99 for the 99th percentile).
  * {@code levels.treatment} and {@code levels.control} are the arms' levels at the look (for a
  * quantile metric, the arms' quantiles in the metric's units; control's is the baseline against
- * one), null before any look. Records written before these members existed read as kind null,
- * quantile and levels NaN.
+ * one), written once there is a look. Records without these members (older writers, a hold before
+ * any look) read as kind null, quantile and levels NaN.
  *
  * <p>Reading ignores members it does not know (newer writers may add some) and refuses, naming the
  * member, a record without its identity (experiment, arm, metric, decision, look, at, decision_id)
@@ -100,10 +100,12 @@ public final class DecisionJson {
             number(g, "upper", r.relativeUpper());
             number(g, "level", relative ? r.intervalLevel() : Double.NaN);
             g.writeEndObject();
-            g.writeObjectFieldStart("levels");
-            number(g, "treatment", r.treatmentLevel());
-            number(g, "control", r.controlLevel());
-            g.writeEndObject();
+            if (!Double.isNaN(r.treatmentLevel()) || !Double.isNaN(r.controlLevel())) {
+                g.writeObjectFieldStart("levels");
+                number(g, "treatment", r.treatmentLevel());
+                number(g, "control", r.controlLevel());
+                g.writeEndObject();
+            }
             g.writeStringField("at", r.at() == null ? null : r.at().toString());
             g.writeStringField("decision_id", r.decisionId());
             g.writeBooleanField("dry_run", r.dryRun());
