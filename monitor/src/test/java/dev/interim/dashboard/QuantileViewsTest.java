@@ -140,6 +140,8 @@ class QuantileViewsTest {
                 "v2: n 8,000 · p99 " + Numbers.precise(counts(v, "v2").quantile(0.99), 3),
                 "v1: n 8,000 · p99 " + Numbers.precise(counts(v, "v1").quantile(0.99), 3));
         assertThat(Xhtml.text(page.byClass("alert").get(0))).contains("Stopped for harm: v2 on p99 render-ms.");
+        assertThat(Xhtml.text(card.getElementsByTagName("svg").item(0) instanceof Element svg ? svg : card))
+                .contains("v2 · p99 render-ms · stop-harm", "Group-sequential chart of v2 on p99 render-ms");
         Element empty = page.all("//*[@data-arm='v3' and @data-metric='render-ms']").get(0);
         assertThat(Xhtml.text(empty)).contains("v3: n 0", "none yet: too few observations");
     }
