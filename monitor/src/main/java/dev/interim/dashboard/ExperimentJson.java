@@ -73,8 +73,9 @@ final class ExperimentJson {
      * A tally: a rate when it has {@code successes}; a ratio of per-unit sums when it has
      * {@code units}, from the units and the mean numerator and denominator (the API shows no spreads
      * of a ratio, so its sums of squared and cross deviations read as 0: enough to show it, not to
-     * test it); a quantile's counts when its {@code kind} is {@code quantile}; else a mean from count, mean and standard deviation (the sum of squared deviations
-     * is rebuilt as sd²·(n − 1), exact to rounding).
+     * test it); a quantile's counts when its {@code kind} is {@code quantile}; else a mean from
+     * count, mean and standard deviation (the sum of squared deviations is rebuilt as sd²·(n − 1),
+     * exact to rounding).
      */
     private static Tally tally(JsonNode t) {
         long count = t.path("count").asLong();

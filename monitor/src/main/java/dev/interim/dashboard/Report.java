@@ -186,7 +186,8 @@ public final class Report {
                 + "<th scope=\"col\">α</th><th scope=\"col\">sides</th><th scope=\"col\">spending</th><th scope=\"col\">on harm</th>"
                 + "</tr></thead><tbody>\n");
         for (ComparisonView c : view.comparisons()) {
-            out.append("<tr><td>").append(h(c.arm())).append("</td><td>").append(h(c.metric())).append("</td><td>").append(h(ExperimentSection.kind(c)))
+            out.append("<tr><td>").append(h(c.arm())).append("</td><td>").append(h(c.metric())).append("</td><td>")
+                    .append(h(ExperimentSection.kind(c)))
                     .append("</td><td>").append(h(c.role())).append("</td><td>").append(h(c.worse())).append("</td><td>")
                     .append(Numbers.significant(c.alpha(), 4)).append("</td><td>").append(h(Sides.describe(c))).append("</td><td>")
                     .append(h(Wording.spending(c.spending()))).append("</td><td>").append(h(c.action())).append("</td></tr>\n");

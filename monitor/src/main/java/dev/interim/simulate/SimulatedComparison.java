@@ -12,6 +12,7 @@ import dev.interim.sequential.Look;
 import dev.interim.sequential.Planning;
 import dev.interim.sequential.SequentialMonitor;
 import dev.interim.stats.Alternative;
+import dev.interim.text.Numbers;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
@@ -88,8 +89,8 @@ public record SimulatedComparison(String experiment, String arm, int treatments,
             long needed = MetricDefinition.quantileEventsNeeded(metric.quantile());
             if (max.perArm() < needed) {
                 throw new IllegalArgumentException("metric '" + metric.name() + "' of experiment '" + experiment.id() + "': its "
-                        + dev.interim.text.Numbers.percentile(metric.quantile()) + " needs " + needed + " events per arm before its first look, more than "
-                        + "its max_per_arm " + max.perArm() + ", so the daemon would never look at it: raise max_per_arm, or "
+                        + Numbers.percentile(metric.quantile()) + " needs " + needed + " events per arm before its first look, "
+                        + "more than its max_per_arm " + max.perArm() + ", so the daemon would never look at it: raise max_per_arm, or "
                         + "leave the metric out (--metric)");
             }
         }
