@@ -81,9 +81,9 @@ public final class BoundaryChart {
         return new BoundaryChart(comparison, id).draw();
     }
 
-    /** The chart's title: arm · metric · decision. */
+    /** The chart's title: arm · metric (with its percentile for a quantile: p99 render-ms) · decision. */
     public static String title(ComparisonView c) {
-        return c.arm() + " · " + c.metric() + " · " + c.decision().label();
+        return c.arm() + " · " + c.label() + " · " + c.decision().label();
     }
 
     /** How a boundary of this meaning is drawn: stroke colour, zone tint and dash pattern. */
@@ -503,7 +503,7 @@ public final class BoundaryChart {
     /** The picture in sentences, for screen readers and for anyone reading the SVG. */
     private String description() {
         StringBuilder d = new StringBuilder();
-        d.append("Group-sequential chart of ").append(comparison.arm()).append(" on ").append(comparison.metric())
+        d.append("Group-sequential chart of ").append(comparison.arm()).append(" on ").append(comparison.label())
                 .append(" (").append(Sides.describe(comparison)).append("). ");
         if (looks.isEmpty()) {
             d.append("No look yet. Decision: ").append(comparison.decision().label()).append('.');

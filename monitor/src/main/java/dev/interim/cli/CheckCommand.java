@@ -10,6 +10,8 @@ import dev.interim.experiment.Assignment;
 import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.Horizon;
 import dev.interim.experiment.MetricDefinition;
+import dev.interim.stats.HistogramCounts;
+import dev.interim.stats.QuantileSignificance;
 import dev.interim.text.Numbers;
 import java.io.PrintWriter;
 import java.nio.file.Path;
@@ -130,23 +132,45 @@ public final class CheckCommand implements Callable<Integer> {
             "on harm", "source"});
         for (MetricDefinition m : e.metrics()) {
             rows.add(new String[] {
-                m.name(), m.kind().label(), lower(m.role()), lower(m.worse()),
+                m.name(), kind(m), lower(m.role()), lower(m.worse()),
                 Numbers.plain(e.comparisonAlpha(m)) + (e.treatments().size() > 1 ? " (" + Numbers.plain(m.alpha())
                         + "/" + e.treatments().size() + ")" : ""),
                 String.valueOf(m.sides().count()),
                 SpendingNames.describe(m.spending()) + (m.futility() == null ? "" : ", futility "
                         + SpendingNames.describe(m.futility())),
-                horizon(m.horizon()) + (m.baseline() == null ? "" : ", vs baseline " + Numbers.plain(m.baseline())),
+                horizon(m) + (m.baseline() == null ? "" : ", vs baseline " + Numbers.plain(m.baseline())),
                 lower(m.action()),
                 source(config.source(m), m),
             });
         }
         printLeftAligned(out, rows, "  ");
+        for (MetricDefinition m : e.metrics()) {
+            if (m.quantile() == null) {
+                continue;
+            }
+            long needed = MetricDefinition.quantileEventsNeeded(m.quantile());
+            out.println("  " + m.label() + ": no look before each arm has " + Numbers.count(needed) + " events ("
+                    + QuantileSignificance.MIN_TAIL + " values beyond the quantile)"
+                    + (e.assignment() == Assignment.UNIT ? " and events of " + QuantileSignificance.MIN_GROUPS
+                            + " of its " + HistogramCounts.UNIT_GROUPS + " groups of units" : ""));
+            if (m.horizon() instanceof Horizon.MaxPerArm max && max.perArm() < needed) {
+                out.println("  WARN: " + m.label() + ": max_per_arm " + max.perArm() + " events is below the " + Numbers.count(needed)
+                        + " each arm needs before the quantile is estimated: the horizon comes before the first look; raise"
+                        + " max_per_arm or choose a quantile nearer the middle");
+            }
+        }
     }
 
-    private static String horizon(Horizon h) {
+    /** The kind, with a quantile's probability: {@code event-quantile p99 (0.99)}. */
+    private static String kind(MetricDefinition m) {
+        return m.quantile() == null ? m.kind().label()
+                : m.kind().label() + " " + Numbers.percentile(m.quantile()) + " (" + Numbers.plain(m.quantile()) + ")";
+    }
+
+    private static String horizon(MetricDefinition m) {
+        Horizon h = m.horizon();
         if (h instanceof Horizon.MaxPerArm max) {
-            return "at most " + max.perArm() + " per arm";
+            return "at most " + max.perArm() + (m.quantile() != null ? " events" : "") + " per arm";
         }
         Horizon.Powered p = (Horizon.Powered) h;
         String effect = p.scale() == Horizon.Scale.RELATIVE

@@ -177,15 +177,18 @@ final class MetricReader {
 
     /**
      * A quantile's values are counted in histograms from 0 to {@link HistogramCounts#HIGHEST}: its
-     * range is {min: 0} unless given, and must lie within those (an event outside is refused).
+     * range is {min: 0} unless given, and must lie within those (an event outside is refused); an end
+     * left open is the histograms' end ({@code {max: 60000}} is [0, 60000], {@code {min: 0}} the default).
      */
     private static ValueRange quantileRange(ConfigNode m) {
         ValueRange range = m.optional("range").map(MetricReader::range).orElse(new ValueRange(0, HistogramCounts.HIGHEST));
-        if (range.min() < 0 || range.max() > HistogramCounts.HIGHEST) {
+        double min = range.min() == Double.NEGATIVE_INFINITY ? 0 : range.min();
+        double max = range.max() == Double.POSITIVE_INFINITY ? HistogramCounts.HIGHEST : range.max();
+        if (min < 0 || max < 0 || max > HistogramCounts.HIGHEST) {
             throw m.required("range", "").error("of an event-quantile must lie within [0, " + (long) HistogramCounts.HIGHEST
                     + "]: its values are counted in histograms from 0; shift or rescale the field, such as latency in ms");
         }
-        return range;
+        return new ValueRange(min, max);
     }
 
     /** An end of a range: a finite number; an open end is left out. */

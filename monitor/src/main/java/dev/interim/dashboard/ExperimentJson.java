@@ -8,6 +8,7 @@ import dev.interim.experiment.ExperimentView.ComparisonView;
 import dev.interim.experiment.LookPoint;
 import dev.interim.experiment.SampleRatio;
 import dev.interim.experiment.Tally;
+import dev.interim.stats.HistogramCounts;
 import dev.interim.stats.Moments;
 import dev.interim.stats.ProportionCounts;
 import dev.interim.stats.RatioMoments;
@@ -72,11 +73,15 @@ final class ExperimentJson {
      * A tally: a rate when it has {@code successes}; a ratio of per-unit sums when it has
      * {@code units}, from the units and the mean numerator and denominator (the API shows no spreads
      * of a ratio, so its sums of squared and cross deviations read as 0: enough to show it, not to
-     * test it); else a mean from count, mean and standard deviation (the sum of squared deviations
-     * is rebuilt as sd²·(n − 1), exact to rounding).
+     * test it); a quantile's counts when its {@code kind} is {@code quantile}; else a mean from
+     * count, mean and standard deviation (the sum of squared deviations is rebuilt as sd²·(n − 1),
+     * exact to rounding).
      */
     private static Tally tally(JsonNode t) {
         long count = t.path("count").asLong();
+        if ("quantile".equals(t.path("kind").asText(null))) {
+            return quantile(t);
+        }
         if (t.has("successes")) {
             return new Tally.Rate(new ProportionCounts(t.path("successes").asLong(), count));
         }
@@ -97,6 +102,23 @@ final class ExperimentJson {
         return new Tally.Mean(Moments.of(count, mean, Double.isFinite(sd) ? sd : 0));
     }
 
+    /**
+     * A quantile tally from its {@code buckets} ([value, count] pairs): the counts in one group, whose
+     * quantiles are those the daemon computed (the buckets are HdrHistogram's, value by value).
+     * Without buckets (the list of experiments), no counts.
+     */
+    private static Tally quantile(JsonNode t) {
+        List<HistogramCounts.Bucket> buckets = new ArrayList<>();
+        for (JsonNode b : t.path("buckets")) {
+            if (!b.isArray() || b.size() != 2 || !b.get(0).isNumber() || !b.get(1).canConvertToLong()) {
+                throw new IllegalArgumentException("the daemon's answer has a malformed quantile bucket " + b
+                        + ": [value, count] expected");
+            }
+            buckets.add(new HistogramCounts.Bucket(b.get(0).asDouble(), b.get(1).asLong()));
+        }
+        return new Tally.Quantile(HistogramCounts.ofBuckets(buckets));
+    }
+
     private static ComparisonView comparison(JsonNode c) {
         List<LookPoint> looks = new ArrayList<>();
         for (JsonNode p : c.path("looks")) {
@@ -108,7 +130,7 @@ final class ExperimentJson {
         return new ComparisonView(text(c, "arm"), text(c, "metric"), c.path("kind").asText(null), c.path("role").asText(null),
                 c.path("worse").asText(null), c.path("action").asText(null), number(c.get("alpha"), Double.NaN),
                 c.path("alternative").asText(null), c.path("spending").asText(null), decision(c.get("decision")), looks,
-                c.path("skipped").asText(null));
+                c.path("skipped").asText(null), number(c.get("quantile"), Double.NaN));
     }
 
     private static LookPoint point(JsonNode p) {

@@ -34,7 +34,7 @@ final class ExperimentSection {
         Map<String, List<String>> byArm = new LinkedHashMap<>();
         for (ComparisonView c : v.comparisons()) {
             if (c.decision() == Decision.STOP_HARM) {
-                byArm.computeIfAbsent(c.arm(), a -> new ArrayList<>()).add(c.metric());
+                byArm.computeIfAbsent(c.arm(), a -> new ArrayList<>()).add(c.label());
             }
         }
         byArm.forEach((arm, metrics) -> harmed.add(h(arm) + " on " + h(String.join(", ", metrics))));
@@ -111,14 +111,19 @@ final class ExperimentSection {
         out.append("<article class=\"comparison decision-").append(c.decision().label()).append("\" data-arm=\"").append(h(c.arm()))
                 .append("\" data-metric=\"").append(h(c.metric())).append("\" data-decision=\"").append(c.decision().label())
                 .append("\">\n<header><h4>").append(h(c.arm())).append(" <span class=\"vs\">vs ").append(h(v.control()))
-                .append("</span> · ").append(h(c.metric())).append("</h4>").append(Wording.badge(c.decision())).append("</header>\n");
-        out.append("<p class=\"meta\">").append(h(c.role())).append(" · ").append(h(c.kind())).append(" · ").append(h(c.worse()))
+                .append("</span> · ").append(h(c.label())).append("</h4>").append(Wording.badge(c.decision())).append("</header>\n");
+        out.append("<p class=\"meta\">").append(h(c.role())).append(" · ").append(h(kind(c))).append(" · ").append(h(c.worse()))
                 .append(" is worse · α ").append(Numbers.significant(c.alpha(), 3)).append(' ').append(sides(c)).append(" · ")
                 .append(h(c.spending())).append(" · on harm: ").append(h(c.action())).append("</p>\n");
         out.append(BoundaryChart.svg(c, id)).append('\n');
         out.append(numbers(v, c));
         out.append("</article>\n");
         return out.toString();
+    }
+
+    /** The kind, with a quantile's probability: {@code event-quantile 0.99}. */
+    static String kind(ComparisonView c) {
+        return c.isQuantile() ? c.kind() + " " + Numbers.plain(c.quantile()) : c.kind();
     }
 
     private static String sides(ComparisonView c) {
@@ -133,7 +138,8 @@ final class ExperimentSection {
             counts += "<span class=\"line\">" + h(v.control()) + ": " + h(Wording.observed(v, c.metric(), v.control())) + "</span>";
         }
         if (looks.isEmpty()) {
-            item(out, "look", c.skipped() == null ? "none yet" : "none yet: " + h(c.skipped()));
+            String why = Wording.waiting(v, c);
+            item(out, "look", why == null ? "none yet" : "none yet: " + h(why));
             wide(out, "counted at the last look", counts);
             return out.append("</dl>\n").toString();
         }

@@ -83,7 +83,8 @@ public final class Report {
                 false stop over all looks together stays at most α however often the daemon looked. A two-sided design spends
                 α/2 on each side. Stops are final. The repeated confidence intervals cover the true effect at every look at once
                 with the stated level, so the interval at the deciding look can be quoted as it is. Effects of rates are in
-                percentage points. The relative change is the treatment's level over control's, minus 1, in percent; its
+                percentage points; those of a quantile metric (p99 latency) are the treatment's quantile minus control's, in
+                the metric's units. The relative change is the treatment's level over control's, minus 1, in percent; its
                 interval comes from that of the log ratio at the same level, and it is shown as – when a level is not
                 positive. How arms were assigned matters: per unit, event metrics are analysed as ratios of per-unit sums,
                 since a unit's events are not independent.</p>
@@ -106,12 +107,12 @@ public final class Report {
                 + "<th scope=\"col\">level</th></tr></thead><tbody>\n");
         for (ComparisonView c : view.comparisons()) {
             out.append("<tr data-arm=\"").append(h(c.arm())).append("\" data-metric=\"").append(h(c.metric())).append("\"><td>")
-                    .append(h(c.arm())).append("</td><td>").append(h(c.metric())).append("</td><td>")
+                    .append(h(c.arm())).append("</td><td>").append(h(c.label())).append("</td><td>")
                     .append(Wording.badge(c.decision())).append("</td>");
             LookPoint at = decidingLook(c);
             boolean atALook = at != null && at.decision() == c.decision();
             String when = c.decision().isFinal() && !atALook ? "not at a look shown: an operator's stop, or decided before a restart"
-                    : at == null ? "no look"
+                    : at == null ? (Wording.waiting(view, c) == null ? "no look" : "no look: " + h(Wording.waiting(view, c)))
                     : c.decision().isFinal() ? "look " + at.look() + ", fraction " + Numbers.significant(at.fraction(), 3) + ", "
                             + Wording.time(at.at())
                     : "not decided; last look " + at.look();
@@ -185,7 +186,8 @@ public final class Report {
                 + "<th scope=\"col\">α</th><th scope=\"col\">sides</th><th scope=\"col\">spending</th><th scope=\"col\">on harm</th>"
                 + "</tr></thead><tbody>\n");
         for (ComparisonView c : view.comparisons()) {
-            out.append("<tr><td>").append(h(c.arm())).append("</td><td>").append(h(c.metric())).append("</td><td>").append(h(c.kind()))
+            out.append("<tr><td>").append(h(c.arm())).append("</td><td>").append(h(c.metric())).append("</td><td>")
+                    .append(h(ExperimentSection.kind(c)))
                     .append("</td><td>").append(h(c.role())).append("</td><td>").append(h(c.worse())).append("</td><td>")
                     .append(Numbers.significant(c.alpha(), 4)).append("</td><td>").append(h(Sides.describe(c))).append("</td><td>")
                     .append(h(Wording.spending(c.spending()))).append("</td><td>").append(h(c.action())).append("</td></tr>\n");
@@ -202,7 +204,7 @@ public final class Report {
     private static String history(ExperimentView view, ComparisonView c, String id) {
         StringBuilder out = new StringBuilder(8192);
         out.append("<article class=\"comparison decision-").append(c.decision().label()).append("\">\n<header><h4>")
-                .append(h(c.arm())).append(" vs ").append(h(view.control())).append(" · ").append(h(c.metric())).append("</h4>")
+                .append(h(c.arm())).append(" vs ").append(h(view.control())).append(" · ").append(h(c.label())).append("</h4>")
                 .append(Wording.badge(c.decision())).append("</header>\n");
         out.append(BoundaryChart.svg(c, id)).append('\n');
         List<LookPoint> looks = c.looks();

@@ -7,14 +7,18 @@ import dev.interim.experiment.Decision;
 import dev.interim.experiment.ExperimentView;
 import dev.interim.experiment.ExperimentView.ComparisonView;
 import dev.interim.experiment.LookPoint;
+import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.Tally;
 import dev.interim.stats.Moments;
+import dev.interim.stats.QuantileSignificance;
 import dev.interim.stats.RatioMoments;
 import dev.interim.text.Numbers;
 import java.time.Duration;
 import java.time.Instant;
 import java.time.ZoneOffset;
 import java.time.format.DateTimeFormatter;
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 
@@ -188,13 +192,22 @@ final class Wording {
     /**
      * What the last look saw of {@code arm} on {@code metric}: {@code 412 of 16,484 (2.50%)} for a
      * rate, {@code n 16,484 · mean 212.4 · sd 30.1} for a mean or total,
-     * {@code 3,120 units · ratio 0.0251 (per unit 0.412 over 16.41)} for a ratio of per-unit sums;
-     * "none" without a tally.
+     * {@code 3,120 units · ratio 0.0251 (per unit 0.412 over 16.41)} for a ratio of per-unit sums,
+     * {@code n 16,484 · p99 412} for a quantile (to 3 significant digits: the histogram knows a value
+     * to within 0.8%); "none" without a tally.
      */
     static String observed(ExperimentView v, String metric, String arm) {
         Tally t = v.tallies().getOrDefault(metric, Map.of()).get(arm);
         if (t == null) {
             return "none";
+        }
+        if (t instanceof Tally.Quantile q) {
+            double p = quantileOf(v, metric);
+            if (q.count() == 0 || Double.isNaN(p)) {
+                return "n " + Numbers.count(q.count());
+            }
+            return "n " + Numbers.count(q.count()) + " · " + Numbers.percentile(p) + " "
+                    + Numbers.precise(q.counts().quantile(p), 3);
         }
         if (t instanceof Tally.Rate r) {
             long n = r.counts().trials();
@@ -216,6 +229,45 @@ final class Wording {
         }
         return "n " + Numbers.count(m.count()) + " · mean " + Numbers.precise(m.mean(), 4)
                 + (m.count() > 1 ? " · sd " + Numbers.precise(m.standardDeviation(), 3) : "");
+    }
+
+    /** The probability of quantile metric {@code metric}, from its comparisons; NaN when none names one. */
+    static double quantileOf(ExperimentView v, String metric) {
+        for (ComparisonView c : v.comparisons()) {
+            if (c.metric().equals(metric) && c.isQuantile()) {
+                return c.quantile();
+            }
+        }
+        return Double.NaN;
+    }
+
+    /**
+     * Why comparison {@code c} has no look yet, in words, or null when it gave no reason. A quantile
+     * that waits for values beyond it says so with the arms' counts: {@code waiting for 50 values
+     * beyond the p99 in each arm (5,000 events per arm): b has 1,234, control 2,001} (the arms still
+     * short); any other reason is the comparison's own.
+     */
+    static String waiting(ExperimentView v, ComparisonView c) {
+        String reason = c.skipped();
+        if (!c.isQuantile() || reason == null || !reason.contains("values beyond it")) {
+            return reason;
+        }
+        long needed = MetricDefinition.quantileEventsNeeded(c.quantile());
+        Map<String, Tally> byArm = v.tallies().getOrDefault(c.metric(), Map.of());
+        List<String> shortArms = new ArrayList<>();
+        for (String arm : List.of(c.arm(), v.control())) {
+            long n = count(byArm.get(arm));
+            if (n < needed) {
+                shortArms.add(arm + (shortArms.isEmpty() ? " has " : " ") + Numbers.count(n));
+            }
+        }
+        return "waiting for " + QuantileSignificance.MIN_TAIL + " values beyond the " + Numbers.percentile(c.quantile())
+                + " in each arm (" + Numbers.count(needed) + " events per arm)"
+                + (shortArms.isEmpty() ? "" : ": " + String.join(", ", shortArms));
+    }
+
+    private static long count(Tally t) {
+        return t == null ? 0 : t.count();
     }
 
     /** A count of exposures, or "none". */

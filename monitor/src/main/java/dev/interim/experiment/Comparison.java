@@ -301,7 +301,7 @@ public final class Comparison {
                 metric.role().name().toLowerCase(java.util.Locale.ROOT), metric.worse().name().toLowerCase(java.util.Locale.ROOT),
                 metric.action().name().toLowerCase(java.util.Locale.ROOT), design.alpha(),
                 design.alternative().name().toLowerCase(java.util.Locale.ROOT), design.efficacyLabel(), decision,
-                points, skipped);
+                points, skipped, metric.quantile() == null ? Double.NaN : metric.quantile());
     }
 
     /**

@@ -13,13 +13,29 @@ import java.util.UUID;
  * run is created when the daemon first writes the experiment's state and kept in it; offline tools
  * (replay, simulation) name no run, so the same looks give the same ids there. {@code relative}, {@code relativeLower} and {@code relativeUpper}
  * are the relative change (treatment/control − 1) and its repeated interval at the same level, NaN
- * where undefined.
+ * where undefined. {@code kind} is the metric's kind label (null when not known: records of older
+ * writers), {@code quantile} the probability of an event-quantile metric (NaN for other kinds), and
+ * {@code treatmentLevel} and {@code controlLevel} the arms' levels at the look (rates, means, ratios,
+ * or the arms' quantiles, in the metric's units; control's is the baseline against one), NaN before
+ * any look.
  */
 public record DecisionRecord(String experiment, String arm, String metric, String role, String decision,
                              String previous, int look, double fraction, double statistic, double boundary,
                              double alphaSpent, double estimate, double intervalLower, double intervalUpper,
                              double intervalLevel, Instant at, String decisionId, boolean dryRun, String action,
-                             double relative, double relativeLower, double relativeUpper) {
+                             double relative, double relativeLower, double relativeUpper, String kind,
+                             double quantile, double treatmentLevel, double controlLevel) {
+
+    /** A record that names no kind, quantile or levels (as records were before they had them). */
+    public DecisionRecord(String experiment, String arm, String metric, String role, String decision,
+                          String previous, int look, double fraction, double statistic, double boundary,
+                          double alphaSpent, double estimate, double intervalLower, double intervalUpper,
+                          double intervalLevel, Instant at, String decisionId, boolean dryRun, String action,
+                          double relative, double relativeLower, double relativeUpper) {
+        this(experiment, arm, metric, role, decision, previous, look, fraction, statistic, boundary, alphaSpent,
+                estimate, intervalLower, intervalUpper, intervalLevel, at, decisionId, dryRun, action,
+                relative, relativeLower, relativeUpper, null, Double.NaN, Double.NaN, Double.NaN);
+    }
 
     /** A record without a relative change. */
     public DecisionRecord(String experiment, String arm, String metric, String role, String decision,
@@ -39,7 +55,12 @@ public record DecisionRecord(String experiment, String arm, String metric, Strin
                 r.estimate().z(), r.boundary(), r.look().alphaSpent(), r.estimate().effect(),
                 r.interval().lower(), r.interval().upper(), r.interval().level(), r.at(), id, mode == RunMode.DRY_RUN,
                 metric.action().name().toLowerCase(), relative(r), r.relativeInterval() == null ? Double.NaN
-                        : r.relativeInterval().lower(), r.relativeInterval() == null ? Double.NaN : r.relativeInterval().upper());
+                        : r.relativeInterval().lower(), r.relativeInterval() == null ? Double.NaN : r.relativeInterval().upper(),
+                metric.kind().label(), quantile(metric), r.estimate().treatmentLevel(), r.estimate().controlLevel());
+    }
+
+    private static double quantile(MetricDefinition metric) {
+        return metric.quantile() == null ? Double.NaN : metric.quantile();
     }
 
     /** A hold or resume, which has no look of its own: the last look's numbers, or NaN before any. */
@@ -58,7 +79,9 @@ public record DecisionRecord(String experiment, String arm, String metric, Strin
                 last == null ? nan : last.interval().upper(), last == null ? nan : last.interval().level(),
                 at, id, mode == RunMode.DRY_RUN, c.metric().action().name().toLowerCase(), last == null ? nan : relative(last),
                 last == null || last.relativeInterval() == null ? nan : last.relativeInterval().lower(),
-                last == null || last.relativeInterval() == null ? nan : last.relativeInterval().upper());
+                last == null || last.relativeInterval() == null ? nan : last.relativeInterval().upper(),
+                c.metric().kind().label(), quantile(c.metric()), last == null ? nan : last.estimate().treatmentLevel(),
+                last == null ? nan : last.estimate().controlLevel());
     }
 
     private static double relative(LookResult r) {

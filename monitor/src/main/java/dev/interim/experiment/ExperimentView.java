@@ -1,5 +1,6 @@
 package dev.interim.experiment;
 
+import dev.interim.text.Numbers;
 import java.time.Instant;
 import java.util.List;
 import java.util.Map;
@@ -49,13 +50,31 @@ public record ExperimentView(String id, String control, List<String> treatments,
     /**
      * One treatment on one metric: its design and its looks so far (the most recent ones; older looks
      * are thinned once there are more than {@link Comparison#KEPT_POINTS}), and why the last look due
-     * found nothing to look at (too few observations, no variance yet), or null.
+     * found nothing to look at (too few observations, no variance yet), or null; {@code quantile} is
+     * the probability of an event-quantile metric (0.99 for its 99th percentile), NaN for other kinds.
      */
     public record ComparisonView(String arm, String metric, String kind, String role, String worse, String action,
                                  double alpha, String alternative, String spending, Decision decision,
-                                 List<LookPoint> looks, String skipped) {
+                                 List<LookPoint> looks, String skipped, double quantile) {
         public ComparisonView {
             looks = List.copyOf(looks);
+        }
+
+        /** A view of a metric that is not a quantile. */
+        public ComparisonView(String arm, String metric, String kind, String role, String worse, String action,
+                              double alpha, String alternative, String spending, Decision decision, List<LookPoint> looks,
+                              String skipped) {
+            this(arm, metric, kind, role, worse, action, alpha, alternative, spending, decision, looks, skipped, Double.NaN);
+        }
+
+        /** True for an event-quantile metric. */
+        public boolean isQuantile() {
+            return !Double.isNaN(quantile);
+        }
+
+        /** The metric as people read it: its name, preceded by its percentile for a quantile ({@code p99 latency-ms}). */
+        public String label() {
+            return isQuantile() ? Numbers.percentile(quantile) + " " + metric : metric;
         }
 
         /** A view whose last look due was not skipped. */

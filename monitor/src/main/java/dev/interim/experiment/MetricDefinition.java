@@ -2,6 +2,8 @@ package dev.interim.experiment;
 
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.Probabilities;
+import dev.interim.stats.QuantileSignificance;
+import dev.interim.text.Numbers;
 import dev.interim.text.UserText;
 import java.util.regex.Pattern;
 
@@ -106,5 +108,20 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
         if (!ok) {
             throw new IllegalArgumentException(message);
         }
+    }
+
+    /** The metric as people read it: its name, preceded by its percentile for a quantile ({@code p99 latency-ms}). */
+    public String label() {
+        return quantile == null ? name : Numbers.percentile(quantile) + " " + name;
+    }
+
+    /**
+     * Events each arm needs before a quantile at probability {@code p} is estimated:
+     * {@link QuantileSignificance#MIN_TAIL} beyond it, so ⌈50 / min(p, 1 − p)⌉ (5,000 for p = 0.99,
+     * 50,000 for 0.999, 100 for the median).
+     */
+    public static long quantileEventsNeeded(double p) {
+        // 1e-9: 1 − 0.999 is 0.0010000000000000009 in binary, and 50 over it a hair below 50,000.
+        return (long) Math.ceil(QuantileSignificance.MIN_TAIL / Math.min(p, 1 - p) - 1e-9);
     }
 }

@@ -9,6 +9,7 @@ import dev.interim.experiment.LookPoint;
 import dev.interim.http.HttpEndpoint.Request;
 import dev.interim.http.HttpEndpoint.Response;
 import dev.interim.signal.DecisionJson;
+import dev.interim.stats.HistogramCounts;
 import dev.interim.stats.RatioMoments;
 import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
@@ -281,6 +282,8 @@ public final class ExperimentApi {
                     number(a, "numerator_mean", rm.meanX());
                     number(a, "denominator_mean", rm.meanY());
                     number(a, "ratio", rm.ratio());
+                } else if (t instanceof dev.interim.experiment.Tally.Quantile q) {
+                    quantile(a, q.counts(), quantileOf(v, metric), detail);
                 }
             });
         });
@@ -290,6 +293,9 @@ public final class ExperimentApi {
             cn.put("arm", c.arm());
             cn.put("metric", c.metric());
             cn.put("kind", c.kind());
+            if (c.isQuantile()) {
+                cn.put("quantile", c.quantile());
+            }
             cn.put("role", c.role());
             cn.put("worse", c.worse());
             cn.put("action", c.action());
@@ -310,6 +316,38 @@ public final class ExperimentApi {
             }
         }
         return n;
+    }
+
+    /**
+     * A quantile tally: {@code kind} "quantile", the probability, the arm's quantile of the values
+     * counted so far in the metric's units ({@code value}, null before any value: shown as soon as
+     * there are values, even before the test may use it), and, with the whole look history, the
+     * non-empty histogram buckets as [value inside the bucket, count] pairs, from which a reader
+     * rebuilds the arm's quantiles.
+     */
+    private static void quantile(ObjectNode a, HistogramCounts counts, double p, Detail detail) {
+        a.put("kind", "quantile");
+        if (Double.isNaN(p)) {
+            return;
+        }
+        a.put("quantile", p);
+        number(a, "value", counts.count() == 0 ? Double.NaN : counts.quantile(p));
+        if (detail == Detail.EVERY_LOOK) {
+            ArrayNode buckets = a.putArray("buckets");
+            for (HistogramCounts.Bucket b : counts.buckets()) {
+                buckets.addArray().add(b.value()).add(b.count());
+            }
+        }
+    }
+
+    /** The probability of quantile metric {@code metric}, from its comparisons; NaN when none names it. */
+    private static double quantileOf(ExperimentView v, String metric) {
+        for (ExperimentView.ComparisonView c : v.comparisons()) {
+            if (c.metric().equals(metric) && c.isQuantile()) {
+                return c.quantile();
+            }
+        }
+        return Double.NaN;
     }
 
     private static ObjectNode point(LookPoint p) {

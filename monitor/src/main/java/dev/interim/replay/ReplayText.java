@@ -24,6 +24,8 @@ import java.util.List;
  * end. Numbers are written by {@link Numbers}'s human text: an infinite boundary or interval end
  * prints as {@code ∞} ({@code -∞}), a value that is not there as {@link Numbers#NONE}, and the
  * sample-ratio p-value like {@code 2.6e-24} when tiny (the JSON lines stay raw).
+ * A quantile metric is named with its percentile ({@code p99 search-ms}); its estimate is the
+ * difference of the arms' quantiles, in the metric's units.
  * The summary's last column is the relative change (treatment/control − 1) with its interval; for a
  * comparison that never looked it says why (the comparison's reason for skipping its last due look).
  */
@@ -44,7 +46,7 @@ public final class ReplayText {
                 a = Math.max(a, arm.length());
             }
             for (var metric : d.metrics()) {
-                m = Math.max(m, metric.name().length());
+                m = Math.max(m, metric.label().length());
             }
         }
         this.experimentWidth = e;
@@ -61,7 +63,7 @@ public final class ReplayText {
         s.append(d.at()).append("  ");
         s.append(pad(d.experiment(), experimentWidth)).append("  ");
         s.append(pad(d.arm(), armWidth)).append("  ");
-        s.append(pad(d.metric(), metricWidth)).append("  ");
+        s.append(pad(label(d), metricWidth)).append("  ");
         s.append(pad(d.decision(), 13));
         if (d.look() > 0) {
             s.append("  look ").append(d.look())
@@ -112,12 +114,13 @@ public final class ReplayText {
             "interval", "relative"});
         for (ComparisonOutcome c : e.comparisons()) {
             LookResult l = c.last();
+            String metric = label(v, c);
             if (l == null) {
-                rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(), NONE, NONE, NONE, NONE, NONE, NONE,
+                rows.add(new String[] {c.arm(), metric, c.role(), c.decision().label(), NONE, NONE, NONE, NONE, NONE, NONE,
                     c.skipped() == null ? "too few observations to look" : c.skipped()});
                 continue;
             }
-            rows.add(new String[] {c.arm(), c.metric(), c.role(), c.decision().label(),
+            rows.add(new String[] {c.arm(), metric, c.role(), c.decision().label(),
                 String.valueOf(l.look().number()), fixed(l.look().fraction(), 3), fixed(l.estimate().z(), 3),
                 fixed(l.boundary(), 3), significant(l.estimate().effect(), 4), interval(l.interval()), relative(l)});
         }
@@ -177,6 +180,20 @@ public final class ReplayText {
     static String percent(double share) {
         String s = significant(100 * share, 3);
         return (share > 0 ? "+" : "") + s + "%";
+    }
+
+    /** The metric of a decision as people read it: its name, after its percentile for a quantile ({@code p99 search-ms}). */
+    static String label(DecisionRecord d) {
+        return Double.isNaN(d.quantile()) ? d.metric() : Numbers.percentile(d.quantile()) + " " + d.metric();
+    }
+
+    private static String label(ExperimentView v, ComparisonOutcome c) {
+        for (ExperimentView.ComparisonView view : v.comparisons()) {
+            if (view.arm().equals(c.arm()) && view.metric().equals(c.metric())) {
+                return view.label();
+            }
+        }
+        return c.metric();
     }
 
     private static String pad(String s, int width) {

@@ -41,6 +41,13 @@ import java.time.format.DateTimeParseException;
  *       before the member existed have no {@code relative}: read as NaN throughout.</li>
  * </ul>
  *
+ * <p>{@code kind} is the metric's kind ({@code event-rate}, ..., {@code event-quantile}); {@code quantile},
+ * written for an event-quantile metric only, its probability (0.99 for the 99th percentile).
+ * {@code levels.treatment} and {@code levels.control} are the arms' levels at the look (for a
+ * quantile metric, the arms' quantiles in the metric's units; control's is the baseline against
+ * one), written once there is a look. Records without these members (older writers, a hold before
+ * any look) read as kind null, quantile and levels NaN.
+ *
  * <p>Reading ignores members it does not know (newer writers may add some) and refuses, naming the
  * member, a record without its identity (experiment, arm, metric, decision, look, at, decision_id)
  * or without {@code dry_run}: a missing dry-run flag is never taken to mean "act".
@@ -66,6 +73,12 @@ public final class DecisionJson {
             g.writeStringField("arm", r.arm());
             g.writeStringField("metric", r.metric());
             g.writeStringField("role", r.role());
+            if (r.kind() != null) {
+                g.writeStringField("kind", r.kind());
+            }
+            if (!Double.isNaN(r.quantile())) {
+                g.writeNumberField("quantile", r.quantile());
+            }
             g.writeStringField("decision", r.decision());
             g.writeStringField("previous", r.previous());
             g.writeNumberField("look", r.look());
@@ -87,6 +100,12 @@ public final class DecisionJson {
             number(g, "upper", r.relativeUpper());
             number(g, "level", relative ? r.intervalLevel() : Double.NaN);
             g.writeEndObject();
+            if (!Double.isNaN(r.treatmentLevel()) || !Double.isNaN(r.controlLevel())) {
+                g.writeObjectFieldStart("levels");
+                number(g, "treatment", r.treatmentLevel());
+                number(g, "control", r.controlLevel());
+                g.writeEndObject();
+            }
             g.writeStringField("at", r.at() == null ? null : r.at().toString());
             g.writeStringField("decision_id", r.decisionId());
             g.writeBooleanField("dry_run", r.dryRun());
@@ -180,6 +199,10 @@ public final class DecisionJson {
         boolean noRelative = Double.isNaN(finiteOrNaN(rel, "relative.level", "level"));
         double relativeLower = number(rel, "relative.lower", "lower", noRelative ? Double.NaN : Double.NEGATIVE_INFINITY);
         double relativeUpper = number(rel, "relative.upper", "upper", noRelative ? Double.NaN : Double.POSITIVE_INFINITY);
+        JsonNode levels = root.path("levels");
+        if (!levels.isMissingNode() && !levels.isNull() && !levels.isObject()) {
+            throw new IllegalArgumentException("decision record member 'levels' must be an object or null");
+        }
         double infiniteStatistic = value > 0 ? Double.POSITIVE_INFINITY : value < 0 ? Double.NEGATIVE_INFINITY : Double.NaN;
         return new DecisionRecord(
                 required(root, "experiment"), required(root, "arm"), required(root, "metric"),
@@ -191,7 +214,17 @@ public final class DecisionJson {
                 finiteOrNaN(root, "alpha_spent", "alpha_spent"),
                 value, lower, upper, level,
                 at(root), required(root, "decision_id"), dryRun(root), optional(root, "action"),
-                relativeValue, relativeLower, relativeUpper);
+                relativeValue, relativeLower, relativeUpper, optional(root, "kind"), quantile(root),
+                finiteOrNaN(levels, "levels.treatment", "treatment"), finiteOrNaN(levels, "levels.control", "control"));
+    }
+
+    /** The probability of a quantile metric, NaN when absent (other kinds, older writers). */
+    private static double quantile(JsonNode root) {
+        double p = finiteOrNaN(root, "quantile", "quantile");
+        if (!Double.isNaN(p) && !(p > 0 && p < 1)) {
+            throw new IllegalArgumentException("decision record member 'quantile' must be a probability in (0, 1), got " + p);
+        }
+        return p;
     }
 
     private static void number(JsonGenerator g, String name, double value) throws IOException {

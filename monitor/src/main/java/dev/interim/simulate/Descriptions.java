@@ -45,6 +45,11 @@ final class Descriptions {
     static String horizon(SimulatedComparison c) {
         MetricDefinition m = c.metric();
         if (m.horizon() instanceof Horizon.MaxPerArm max) {
+            if (m.quantile() != null) {
+                long needed = MetricDefinition.quantileEventsNeeded(m.quantile());
+                return "at most " + max.perArm() + " events per arm; no look before " + needed + " events per arm (fraction "
+                        + Numbers.fixed((double) needed / max.perArm(), 3) + "), which a look simulated earlier does not wait for";
+            }
             return "at most " + max.perArm() + " per arm";
         }
         Horizon.Powered p = (Horizon.Powered) m.horizon();

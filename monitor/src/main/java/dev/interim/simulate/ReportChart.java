@@ -84,7 +84,7 @@ public final class ReportChart {
         SimulatedComparison c = result.comparison();
         s.append("<g class=\"comparison\" data-experiment=\"").append(escape(c.experiment())).append("\" data-metric=\"")
                 .append(escape(c.metric().name())).append("\">\n");
-        text(s, "title", 24, top + 20, "start", c.experiment() + " / " + c.metric().name() + " (" + Descriptions.role(c)
+        text(s, "title", 24, top + 20, "start", c.experiment() + " / " + c.metric().label() + " (" + Descriptions.role(c)
                 + ", worse: " + Descriptions.worse(c) + ")");
         text(s, "subtitle", 24, top + 38, "start", Descriptions.design(c) + "; " + Descriptions.horizon(c));
         stoppingLooks(s, result, top + 66);

@@ -65,6 +65,9 @@ final class ReportJson {
         ObjectNode node = MAPPER.createObjectNode();
         node.put("experiment", c.experiment());
         node.put("metric", c.metric().name());
+        if (c.metric().quantile() != null) {
+            node.put("quantile", Numbers.given(c.metric().quantile()));
+        }
         node.put("arm", c.arm());
         node.put("role", Descriptions.role(c));
         node.put("worse", Descriptions.worse(c));

@@ -33,7 +33,7 @@ final class ReportTable {
 
     private static void comparison(SimulationReport.ComparisonResult result, PrintWriter out) {
         SimulatedComparison c = result.comparison();
-        out.println(c.experiment() + " / " + c.metric().name() + " (" + Descriptions.role(c) + ", worse: "
+        out.println(c.experiment() + " / " + c.metric().label() + " (" + Descriptions.role(c) + ", worse: "
                 + Descriptions.worse(c) + "): " + c.arm() + " against control");
         out.println("  design:  " + Descriptions.design(c));
         out.println("  horizon: " + Descriptions.horizon(c));

@@ -12,6 +12,7 @@ import dev.interim.sequential.Look;
 import dev.interim.sequential.Planning;
 import dev.interim.sequential.SequentialMonitor;
 import dev.interim.stats.Alternative;
+import dev.interim.text.Numbers;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
@@ -67,6 +68,7 @@ public record SimulatedComparison(String experiment, String arm, int treatments,
             if (!metrics.test(metric.name())) {
                 continue;
             }
+            requireQuantileCanLook(experiment, metric);
             Comparison comparison = monitor.comparison(metric.name(), arm);
             GroupSequentialDesign design = comparison.design();
             SequentialMonitor looking = design.monitor();
@@ -75,6 +77,23 @@ public record SimulatedComparison(String experiment, String arm, int treatments,
                     fractions, looks, driftPerUnit(comparison)));
         }
         return all;
+    }
+
+    /**
+     * Refuses a quantile metric whose {@code max_per_arm} ends the design before the quantile can be
+     * estimated ({@link MetricDefinition#quantileEventsNeeded}): the daemon would never look at it, and
+     * no drift describes that.
+     */
+    static void requireQuantileCanLook(ExperimentDefinition experiment, MetricDefinition metric) {
+        if (metric.quantile() != null && metric.horizon() instanceof Horizon.MaxPerArm max) {
+            long needed = MetricDefinition.quantileEventsNeeded(metric.quantile());
+            if (max.perArm() < needed) {
+                throw new IllegalArgumentException("metric '" + metric.name() + "' of experiment '" + experiment.id() + "': its "
+                        + Numbers.percentile(metric.quantile()) + " needs " + needed + " events per arm before its first look, "
+                        + "more than its max_per_arm " + max.perArm() + ", so the daemon would never look at it: raise max_per_arm, or "
+                        + "leave the metric out (--metric)");
+            }
+        }
     }
 
     /** Refuses fractions that do not increase or do not end at the planned maximum, 1. */

@@ -174,6 +174,47 @@ public final class HistogramCounts {
         return groups[g] == null ? 0 : groupBuckets(g).below(value / RESOLUTION);
     }
 
+    /**
+     * One non-empty bucket, over every group: a value inside it (its middle, in the metric's units)
+     * and how many values it counts.
+     */
+    public record Bucket(double value, long count) {
+        public Bucket {
+            if (!(value >= 0) || count < 1) {
+                throw new IllegalArgumentException("a bucket needs a value at least 0 and a count at least 1, got " + value
+                        + " and " + count);
+            }
+        }
+    }
+
+    /**
+     * The non-empty buckets over every group, in increasing order: enough to rebuild these counts in
+     * one group ({@link #ofBuckets}), with the same quantiles and counts below any value.
+     */
+    public java.util.List<Bucket> buckets() {
+        if (count == 0) {
+            return java.util.List.of();
+        }
+        Buckets b = total();
+        java.util.List<Bucket> out = new java.util.ArrayList<>(b.low.length);
+        for (int i = 0; i < b.low.length; i++) {
+            long before = i == 0 ? 0 : b.cumulative[i - 1];
+            if (b.cumulative[i] > before) {
+                out.add(new Bucket((b.low[i] + (b.next[i] - b.low[i]) / 2) * RESOLUTION, b.cumulative[i] - before));
+            }
+        }
+        return java.util.List.copyOf(out);
+    }
+
+    /** Counts in one group from {@code buckets} as {@link #buckets} gives them: each count in the bucket of its value. */
+    public static HistogramCounts ofBuckets(java.util.List<Bucket> buckets) {
+        PackedHistogram h = newHistogram();
+        for (Bucket b : buckets) {
+            h.recordValueWithCount(scaled(b.value()), b.count());
+        }
+        return new HistogramCounts(new PackedHistogram[] {h.getTotalCount() == 0 ? null : h});
+    }
+
     /** Groups with at least one value. */
     public int groupsUsed() {
         int n = 0;

@@ -129,6 +129,17 @@ public final class Numbers {
         return x > 0 && Double.isFinite(x) ? "+" + s : s;
     }
 
+    /**
+     * A quantile's probability as a percentile's name: {@code p99} for 0.99, {@code p99.9} for 0.999,
+     * {@code p50} for the median, {@code p2.5} for 0.025 (at most 6 significant digits).
+     */
+    public static String percentile(double p) {
+        if (!(p > 0 && p < 1)) {
+            throw new IllegalArgumentException("a percentile needs a probability in (0, 1), got " + p);
+        }
+        return "p" + significant(100 * p, 6);
+    }
+
     /** A count with thousands separators ({@code 12,345}). */
     public static String count(long n) {
         return String.format(Locale.ROOT, "%,d", n);

@@ -87,6 +87,25 @@ class ReferenceExamplesTest {
                 .isEqualTo(dev.interim.experiment.Horizon.Scale.RELATIVE);
     }
 
+    /** The quantile example (quantile, an open-ended range, max_per_arm) loads as the shape's only metric. */
+    @Test
+    void theQuantileExampleLoads() throws IOException {
+        List<String> blocks = yamlBlocks();
+        String quantile = blocks.stream().filter(b -> b.contains("kind: event-quantile")).findFirst().orElseThrow();
+        String shape = blocks.get(0);
+        String yaml = shape.substring(0, shape.indexOf("    metrics:\n")) + "    metrics:\n"
+                + quantile.lines().map(l -> "      " + l + "\n").reduce("", String::concat);
+
+        InterimConfig config = ConfigLoader.parse(yaml, Map.of("INTERIM_WEBHOOK_KEY", Configs.HOOK_KEY));
+
+        var experiment = config.experiments().get(0);
+        var metric = experiment.definition().metrics().get(0);
+        assertThat(metric.kind().label()).isEqualTo("event-quantile");
+        assertThat(metric.quantile()).isEqualTo(0.99);
+        assertThat(((dev.interim.events.MetricSource.Value) experiment.source(metric)).range())
+                .isEqualTo(new dev.interim.events.ValueRange(0, 60000));
+    }
+
     @Test
     void everyConditionExampleIsAccepted() throws IOException {
         String conditions = yamlBlocks().stream().filter(b -> b.startsWith("counts_if:")).findFirst().orElseThrow();

@@ -38,7 +38,7 @@ class DaemonClientTest {
      * The API over fixed views. Operator actions are not used here: a proxy answers every one of
      * them with a failure, whatever actions the API grows.
      */
-    private static HttpEndpoint api(Map<String, ExperimentView> views) {
+    static HttpEndpoint api(Map<String, ExperimentView> views) {
         HttpEndpoint endpoint = HttpEndpoint.builder().port(0).start();
         ExperimentApi.Operations operations = (ExperimentApi.Operations) Proxy.newProxyInstance(
                 ExperimentApi.Operations.class.getClassLoader(), new Class<?>[] {ExperimentApi.Operations.class},
@@ -88,7 +88,7 @@ class DaemonClientTest {
         }
     }
 
-    private static ExperimentView withoutTallies(ExperimentView v) {
+    static ExperimentView withoutTallies(ExperimentView v) {
         return new ExperimentView(v.id(), v.control(), v.treatments(), v.dryRun(), v.held(), v.holdReason(), v.sampleRatio(), v.lastLook(),
                 v.exposures(), Map.of(), v.comparisons(), v.assignment());
     }

@@ -17,6 +17,8 @@ import dev.interim.experiment.Tally;
 import dev.interim.experiment.Worse;
 import dev.interim.sequential.SpendingFunction;
 import dev.interim.stats.ProportionCounts;
+import dev.interim.experiment.TallyForm;
+import dev.interim.stats.RunningHistogram;
 import dev.interim.stats.RunningMoments;
 import dev.interim.stats.RunningRatioMoments;
 import java.time.Duration;
@@ -123,6 +125,58 @@ final class Scenarios {
             monitor.look(T0.plus(Duration.ofMinutes(look)), Map.copyOf(exposures), Map.of(value.name(), byArm));
         }
         return monitor.view();
+    }
+
+    /** The latencies of {@link #quantile}, per arm, in the order counted (for checks by a sort). */
+    record QuantileScenario(ExperimentView view, Map<String, double[]> values) {}
+
+    /**
+     * "wicken-render": a p99 render-time guardrail, arms assigned per event. 'v2' sends 5% of its
+     * renders down a slow path (2.5 times as long), which lifts its p99; 'v3' is exposed but its
+     * events carry no render time yet (an empty tally). {@code looks} looks of {@code perLook} renders per arm each: below 5,000 per arm the
+     * p99 cannot be estimated yet. Not part of {@link #invented()}.
+     */
+    static QuantileScenario quantile(int looks, int perLook) {
+        MetricDefinition render = new MetricDefinition("render-ms", MetricKind.EVENT_QUANTILE, Role.GUARDRAIL, Worse.HIGHER, 0.05,
+                Sides.ONE, SpendingFunction.parse("obf"), null, new Horizon.MaxPerArm(40_000), null, StopAction.KILL, null, null,
+                0.99);
+        ExperimentDefinition d = new ExperimentDefinition("wicken-render", "v1", List.of("v2", "v3"), null,
+                Duration.ofMinutes(1), 200, RunMode.DRY_RUN, 0.001, List.of(render));
+        ExperimentMonitor monitor = new ExperimentMonitor(d);
+        SplittableRandom random = new SplittableRandom(75);
+        Map<String, RunningHistogram> histograms = new LinkedHashMap<>();
+        Map<String, double[]> values = new LinkedHashMap<>();
+        Map<String, Long> exposures = new HashMap<>();
+        for (int look = 1; look <= looks; look++) {
+            for (String arm : List.of("v1", "v2")) {
+                RunningHistogram h = histograms.computeIfAbsent(arm, a -> new RunningHistogram(1));
+                double[] kept = values.merge(arm, new double[0], (a, b) -> a);
+                double[] more = java.util.Arrays.copyOf(kept, kept.length + perLook);
+                for (int i = 0; i < perLook; i++) {
+                    // log-normal around 120 ms, rounded to 0.1 ms
+                    double ms = 120 * Math.exp(0.4 * gaussian(random));
+                    if (arm.equals("v2") && random.nextDouble() < 0.05) {
+                        ms *= 2.5;
+                    }
+                    ms = Math.round(ms * 10) / 10.0;
+                    h.accept(ms, 0);
+                    more[kept.length + i] = ms;
+                }
+                values.put(arm, more);
+                exposures.merge(arm, (long) perLook, Long::sum);
+            }
+            exposures.merge("v3", (long) perLook, Long::sum); // exposed, but its events carry no render time
+            Map<String, Tally> byArm = new HashMap<>();
+            histograms.forEach((arm, h) -> byArm.put(arm, new Tally.Quantile(h.snapshot())));
+            byArm.put("v3", Tally.empty(TallyForm.QUANTILE));
+            monitor.look(T0.plus(Duration.ofMinutes(look)), Map.copyOf(exposures), Map.of(render.name(), byArm));
+        }
+        return new QuantileScenario(monitor.view(), values);
+    }
+
+    /** A standard normal draw (Box–Muller). */
+    private static double gaussian(SplittableRandom random) {
+        return Math.sqrt(-2 * Math.log(1 - random.nextDouble())) * Math.cos(2 * Math.PI * random.nextDouble());
     }
 
     static MetricDefinition metric(String name, MetricKind kind, Role role, Worse worse, int sides, String spending, long maxPerArm,

@@ -165,4 +165,59 @@ class DecisionJsonTest {
         String json = DecisionJson.writeString(Fixtures.stopForHarm("h", false)).replace("{\"type\"", "{\"schema\":2,\"type\"");
         assertThat(DecisionJson.read(json.getBytes(StandardCharsets.UTF_8))).isEqualTo(Fixtures.stopForHarm("h", false));
     }
+
+    /**
+     * A p99 latency guardrail's stop: the record names the kind and the quantile, and its levels are
+     * the arms' 99th percentiles in ms (treatment 412.5, control 380.25; the estimate their
+     * difference, 32.25, and the relative change 412.5 / 380.25 − 1, by hand). The layout as
+     * docs/decision-record.md shows it.
+     */
+    @Test
+    void aQuantileRecordNamesItsQuantileAndCarriesTheLevels() {
+        DecisionRecord r = new DecisionRecord("basket-v7", "candidate", "checkout-ms", "guardrail", "stop-harm", "continue",
+                5, 0.5, 3.5, 3.25, 0.001, 32.25, 11.5, Double.POSITIVE_INFINITY, 0.95, Fixtures.T0, "q-1", true, "kill",
+                412.5 / 380.25 - 1, 0.03, Double.POSITIVE_INFINITY, "event-quantile", 0.99, 412.5, 380.25);
+        String json = DecisionJson.writeString(r);
+        assertThat(json).startsWith("{\"type\":\"interim.decision\",\"experiment\":\"basket-v7\",\"arm\":\"candidate\","
+                + "\"metric\":\"checkout-ms\",\"role\":\"guardrail\",\"kind\":\"event-quantile\",\"quantile\":0.99,"
+                + "\"decision\":\"stop-harm\",")
+                .contains("\"estimate\":{\"value\":32.25,\"lower\":11.5,\"upper\":null,\"level\":0.95},\"relative\":{")
+                .contains("\"level\":0.95},\"levels\":{\"treatment\":412.5,\"control\":380.25},\"at\":");
+        DecisionRecord back = DecisionJson.read(json.getBytes(StandardCharsets.UTF_8));
+        assertThat(back).isEqualTo(r);
+        assertThat(back.quantile()).isEqualTo(0.99);
+        assertThat(back.treatmentLevel() - back.controlLevel()).isEqualTo(back.estimate());
+    }
+
+    /** Other kinds name their kind and have no quantile member; a record without kind or levels reads as before. */
+    @Test
+    void otherKindsHaveNoQuantileAndOlderRecordsReadWithoutKindOrLevels() {
+        ExperimentMonitor monitor = new ExperimentMonitor(Fixtures.basketRollout(List.of("candidate"), false,
+                Fixtures.failedPayments(StopAction.KILL)));
+        DecisionRecord stop = null;
+        for (int look = 1; look <= 30 && stop == null; look++) {
+            long k = 1000L * look;
+            List<DecisionRecord> d = monitor.look(Fixtures.T0.plusSeconds(60L * look), Map.of("current", k, "candidate", k),
+                    Fixtures.rates("failed_payments", Map.of("current", new long[] {k / 100, k}, "candidate", new long[] {k * 3 / 100, k})))
+                    .decisions();
+            stop = d.isEmpty() ? null : d.get(0);
+        }
+        assertThat(stop).isNotNull();
+        String json = DecisionJson.writeString(stop);
+        assertThat(json).contains("\"role\":\"guardrail\",\"kind\":\"event-rate\",\"decision\":").doesNotContain("quantile");
+        assertThat(stop.quantile()).isNaN();
+        assertThat(stop.kind()).isEqualTo("event-rate");
+        // The levels are the arms' failure rates at the look (control 1%, candidate 3% by construction).
+        assertThat(stop.controlLevel()).isCloseTo(0.01, within(1e-3));
+        assertThat(stop.treatmentLevel()).isCloseTo(0.03, within(1e-3));
+        assertThat(DecisionJson.read(json.getBytes(StandardCharsets.UTF_8))).isEqualTo(stop);
+
+        DecisionRecord old = DecisionJson.read(DecisionJson.write(Fixtures.stopForHarm("o", false)));
+        assertThat(old.kind()).isNull();
+        assertThat(old.quantile()).isNaN();
+        assertThat(old.treatmentLevel()).isNaN();
+        assertThat(DecisionJson.writeString(old)).doesNotContain("kind").doesNotContain("levels");
+        assertThatThrownBy(() -> DecisionJson.read(json.replace("\"kind\":\"event-rate\"", "\"kind\":\"event-rate\",\"quantile\":99")
+                .getBytes(StandardCharsets.UTF_8))).hasMessageContaining("'quantile'");
+    }
 }

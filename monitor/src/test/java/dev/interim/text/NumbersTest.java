@@ -131,4 +131,16 @@ class NumbersTest {
         assertThat(Numbers.cell(2.62e-24, 3)).isEqualTo("0.00000000000000000000000262");
         assertThat(Numbers.cell(-0.0, 6)).isEqualTo("0");
     }
+
+    /** A quantile's name as percentile: 100·p to at most 6 significant digits, binary noise of 100·0.999 gone. Common practice. */
+    @Test
+    void aProbabilityIsNamedAsItsPercentile() {
+        assertThat(Numbers.percentile(0.99)).isEqualTo("p99");
+        assertThat(Numbers.percentile(0.999)).isEqualTo("p99.9");
+        assertThat(Numbers.percentile(0.5)).isEqualTo("p50");
+        assertThat(Numbers.percentile(0.025)).isEqualTo("p2.5");
+        assertThat(Numbers.percentile(0.01)).isEqualTo("p1");
+        assertThatThrownBy(() -> Numbers.percentile(99)).isInstanceOf(IllegalArgumentException.class)
+                .hasMessageContaining("probability in (0, 1)");
+    }
 }
