@@ -74,7 +74,7 @@ public record ExperimentView(String id, String control, List<String> treatments,
 
         /** The metric as people read it: its name, preceded by its percentile for a quantile ({@code p99 latency-ms}). */
         public String label() {
-            return isQuantile() ? Numbers.percentile(quantile) + " " + metric : metric;
+            return isQuantile() ? Numbers.percentileLabel(quantile, metric) : metric;
         }
 
         /** A view whose last look due was not skipped. */

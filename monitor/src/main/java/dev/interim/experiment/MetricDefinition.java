@@ -112,7 +112,7 @@ public record MetricDefinition(String name, MetricKind kind, Role role, Worse wo
 
     /** The metric as people read it: its name, preceded by its percentile for a quantile ({@code p99 latency-ms}). */
     public String label() {
-        return quantile == null ? name : Numbers.percentile(quantile) + " " + name;
+        return quantile == null ? name : Numbers.percentileLabel(quantile, name);
     }
 
     /**

@@ -184,7 +184,7 @@ public final class ReplayText {
 
     /** The metric of a decision as people read it: its name, after its percentile for a quantile ({@code p99 search-ms}). */
     static String label(DecisionRecord d) {
-        return Double.isNaN(d.quantile()) ? d.metric() : Numbers.percentile(d.quantile()) + " " + d.metric();
+        return Double.isNaN(d.quantile()) ? d.metric() : Numbers.percentileLabel(d.quantile(), d.metric());
     }
 
     private static String label(ExperimentView v, ComparisonOutcome c) {

@@ -140,6 +140,17 @@ public final class Numbers {
         return "p" + significant(100 * p, 6);
     }
 
+    /**
+     * A quantile metric's name for people: {@code p99 render-ms}, or the name alone when it already
+     * says its percentile ({@code latency-p99}, {@code p99_latency}), so that nothing reads twice.
+     */
+    public static String percentileLabel(double p, String name) {
+        String percentile = percentile(p);
+        java.util.regex.Matcher m = java.util.regex.Pattern.compile("(?i)(?<![a-z0-9.])" + java.util.regex.Pattern.quote(percentile)
+                + "(?![0-9.])").matcher(name);
+        return m.find() ? name : percentile + " " + name;
+    }
+
     /** A count with thousands separators ({@code 12,345}). */
     public static String count(long n) {
         return String.format(Locale.ROOT, "%,d", n);

@@ -143,4 +143,17 @@ class NumbersTest {
         assertThatThrownBy(() -> Numbers.percentile(99)).isInstanceOf(IllegalArgumentException.class)
                 .hasMessageContaining("probability in (0, 1)");
     }
+
+    /** A quantile metric's label: the percentile prefixed unless the name says it already. Common practice (no word twice). */
+    @Test
+    void aQuantileLabelDoesNotRepeatThePercentileTheNameHolds() {
+        assertThat(Numbers.percentileLabel(0.99, "render-ms")).isEqualTo("p99 render-ms");
+        assertThat(Numbers.percentileLabel(0.99, "payment-latency-p99")).isEqualTo("payment-latency-p99");
+        assertThat(Numbers.percentileLabel(0.99, "P99_latency")).isEqualTo("P99_latency");
+        assertThat(Numbers.percentileLabel(0.999, "latency-p99.9")).isEqualTo("latency-p99.9");
+        // p99 is not p99.9, nor part of p995 or of "sp99".
+        assertThat(Numbers.percentileLabel(0.99, "latency-p99.9")).isEqualTo("p99 latency-p99.9");
+        assertThat(Numbers.percentileLabel(0.99, "latency-p995")).isEqualTo("p99 latency-p995");
+        assertThat(Numbers.percentileLabel(0.99, "sp99")).isEqualTo("p99 sp99");
+    }
 }
