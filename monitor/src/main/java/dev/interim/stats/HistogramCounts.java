@@ -1,7 +1,6 @@
 package dev.interim.stats;
 
 import org.HdrHistogram.AbstractHistogram;
-import org.HdrHistogram.HistogramIterationValue;
 import org.HdrHistogram.PackedHistogram;
 
 /**
@@ -36,19 +35,20 @@ public final class HistogramCounts {
     public static final double RELATIVE_PRECISION = 1.0 / 128;
 
     private static final long HIGHEST_SCALED = Math.round(HIGHEST / RESOLUTION);
+    /** The bucket layout every histogram shares; only its arithmetic is used (never its counts). */
+    private static final PackedHistogram LAYOUT = new PackedHistogram(HIGHEST_SCALED, SIGNIFICANT_DIGITS);
 
-    /** One group's histogram, never changed once here (null: the group has no value). */
-    private final PackedHistogram[] groups;
+    /** Each group's non-empty buckets (an empty group has none). Never changed once here. */
+    private final Sparse[] groups;
     private final long count;
-    /** Buckets with values, over every group, made at the first use. */
-    private volatile Buckets total;
-    private volatile Buckets[] byGroup;
+    /** Every group's buckets added, made at the first use. */
+    private volatile Sparse total;
 
-    private HistogramCounts(PackedHistogram[] groups) {
+    private HistogramCounts(Sparse[] groups) {
         this.groups = groups;
         long n = 0;
-        for (PackedHistogram g : groups) {
-            n += g == null ? 0 : g.getTotalCount();
+        for (Sparse g : groups) {
+            n += g.total;
         }
         this.count = n;
     }
@@ -58,25 +58,24 @@ public final class HistogramCounts {
         if (groups < 1) {
             throw new IllegalArgumentException("groups must be at least 1, got " + groups);
         }
-        return new HistogramCounts(new PackedHistogram[groups]);
+        Sparse[] none = new Sparse[groups];
+        java.util.Arrays.fill(none, Sparse.EMPTY);
+        return new HistogramCounts(none);
     }
 
     /**
-     * A snapshot of these histograms, one per group (null for an empty group); they are copied, so
-     * the caller may go on changing its own.
+     * A snapshot of these histograms, one per group (null for an empty group), which must have the
+     * layout of {@link #newHistogram()}; their counts are read, so the caller may go on changing them.
      */
     public static HistogramCounts of(AbstractHistogram[] groups) {
         if (groups.length < 1) {
             throw new IllegalArgumentException("at least one group is needed");
         }
-        PackedHistogram[] copy = new PackedHistogram[groups.length];
+        Sparse[] read = new Sparse[groups.length];
         for (int g = 0; g < groups.length; g++) {
-            if (groups[g] != null && groups[g].getTotalCount() > 0) {
-                copy[g] = newHistogram();
-                copy[g].add(groups[g]);
-            }
+            read[g] = Sparse.of(groups[g]);
         }
-        return new HistogramCounts(copy);
+        return new HistogramCounts(read);
     }
 
     /** An empty histogram of the layout every group uses. */
@@ -104,14 +103,15 @@ public final class HistogramCounts {
 
     /** Values counted in group {@code g}. */
     public long count(int g) {
-        return groups[g] == null ? 0 : groups[g].getTotalCount();
+        return groups[g].total;
     }
 
-    /** Group {@code g}'s histogram, a copy (empty when the group has none), for encoders. */
+    /** Group {@code g}'s counts as an HdrHistogram of the shared layout (empty when the group has none), for encoders. */
     public PackedHistogram group(int g) {
         PackedHistogram h = newHistogram();
-        if (groups[g] != null) {
-            h.add(groups[g]);
+        Sparse s = groups[g];
+        for (int i = 0; i < s.low.length; i++) {
+            h.recordValueWithCount(s.low[i], s.count[i]);
         }
         return h;
     }
@@ -129,23 +129,15 @@ public final class HistogramCounts {
             return other;
         }
         int n = Math.min(groups.length, other.groups.length);
-        PackedHistogram[] sum = new PackedHistogram[n];
-        addInto(sum, groups);
-        addInto(sum, other.groups);
-        return new HistogramCounts(sum);
-    }
-
-    private static void addInto(PackedHistogram[] sum, PackedHistogram[] from) {
-        for (int g = 0; g < from.length; g++) {
-            if (from[g] == null) {
-                continue;
-            }
-            int to = g % sum.length;
-            if (sum[to] == null) {
-                sum[to] = newHistogram();
-            }
-            sum[to].add(from[g]);
+        Sparse[] sum = new Sparse[n];
+        java.util.Arrays.fill(sum, Sparse.EMPTY);
+        for (int g = 0; g < groups.length; g++) {
+            sum[g % n] = sum[g % n].plus(groups[g]);
         }
+        for (int g = 0; g < other.groups.length; g++) {
+            sum[g % n] = sum[g % n].plus(other.groups[g]);
+        }
+        return new HistogramCounts(sum);
     }
 
     /**
@@ -171,7 +163,7 @@ public final class HistogramCounts {
 
     /** {@link #below} for group {@code g} alone. */
     public double below(int g, double value) {
-        return groups[g] == null ? 0 : groupBuckets(g).below(value / RESOLUTION);
+        return groups[g].below(value / RESOLUTION);
     }
 
     /**
@@ -192,16 +184,11 @@ public final class HistogramCounts {
      * one group ({@link #ofBuckets}), with the same quantiles and counts below any value.
      */
     public java.util.List<Bucket> buckets() {
-        if (count == 0) {
-            return java.util.List.of();
-        }
-        Buckets b = total();
-        java.util.List<Bucket> out = new java.util.ArrayList<>(b.low.length);
-        for (int i = 0; i < b.low.length; i++) {
-            long before = i == 0 ? 0 : b.cumulative[i - 1];
-            if (b.cumulative[i] > before) {
-                out.add(new Bucket((b.low[i] + (b.next[i] - b.low[i]) / 2) * RESOLUTION, b.cumulative[i] - before));
-            }
+        Sparse t = total();
+        java.util.List<Bucket> out = new java.util.ArrayList<>(t.low.length);
+        for (int i = 0; i < t.low.length; i++) {
+            long next = LAYOUT.nextNonEquivalentValue(t.low[i]);
+            out.add(new Bucket((t.low[i] + (next - t.low[i]) / 2) * RESOLUTION, t.count[i]));
         }
         return java.util.List.copyOf(out);
     }
@@ -212,14 +199,14 @@ public final class HistogramCounts {
         for (Bucket b : buckets) {
             h.recordValueWithCount(scaled(b.value()), b.count());
         }
-        return new HistogramCounts(new PackedHistogram[] {h.getTotalCount() == 0 ? null : h});
+        return of(new AbstractHistogram[] {h});
     }
 
     /** Groups with at least one value. */
     public int groupsUsed() {
         int n = 0;
-        for (PackedHistogram g : groups) {
-            if (g != null && g.getTotalCount() > 0) {
+        for (Sparse g : groups) {
+            if (g.total > 0) {
                 n++;
             }
         }
@@ -233,9 +220,8 @@ public final class HistogramCounts {
             return false;
         }
         for (int g = 0; g < groups.length; g++) {
-            boolean empty = groups[g] == null || groups[g].getTotalCount() == 0;
-            boolean otherEmpty = other.groups[g] == null || other.groups[g].getTotalCount() == 0;
-            if (empty != otherEmpty || (!empty && !groups[g].equals(other.groups[g]))) {
+            if (!java.util.Arrays.equals(groups[g].low, other.groups[g].low)
+                    || !java.util.Arrays.equals(groups[g].count, other.groups[g].count)) {
                 return false;
             }
         }
@@ -252,81 +238,152 @@ public final class HistogramCounts {
         return "HistogramCounts[" + count + " values in " + groupsUsed() + " of " + groups.length + " groups]";
     }
 
-    private Buckets total() {
-        Buckets b = total;
-        if (b == null) {
-            PackedHistogram all = newHistogram();
-            for (PackedHistogram g : groups) {
-                if (g != null) {
-                    all.add(g);
-                }
+    private Sparse total() {
+        Sparse t = total;
+        if (t == null) {
+            t = Sparse.EMPTY;
+            for (Sparse g : groups) {
+                t = t.plus(g);
             }
-            b = Buckets.of(all);
-            total = b;
+            total = t;
         }
-        return b;
+        return t;
     }
 
-    private Buckets groupBuckets(int g) {
-        Buckets[] all = byGroup;
-        if (all == null) {
-            all = new Buckets[groups.length];
-            byGroup = all;
-        }
-        if (all[g] == null) {
-            all[g] = Buckets.of(groups[g]);
-        }
-        return all[g];
-    }
+    /**
+     * The non-empty buckets of one histogram in increasing order: each bucket's lowest value (scaled,
+     * as HdrHistogram's layout gives it) and its count. Adding two is a merge of sorted lists, so
+     * sums and looks cost the buckets in use, not the layout's whole range (HdrHistogram's own
+     * {@code add} walks every index of it).
+     */
+    private static final class Sparse {
+        static final Sparse EMPTY = new Sparse(new long[0], new long[0]);
+        final long[] low;
+        final long[] count;
+        final long total;
+        /** Cumulative counts and bucket ends, made at the first look. */
+        private volatile long[] cumulative;
+        private volatile long[] next;
 
-    /** The non-empty buckets of one histogram, in increasing order, with cumulative counts (in scaled units). */
-    private record Buckets(long[] low, long[] next, long[] cumulative) {
-        static Buckets of(AbstractHistogram h) {
+        Sparse(long[] low, long[] count) {
+            this.low = low;
+            this.count = count;
+            long n = 0;
+            for (long c : count) {
+                n += c;
+            }
+            this.total = n;
+        }
+
+        /** The buckets of {@code h} (null: none), walked bucket by bucket from its lowest value to its highest. */
+        static Sparse of(AbstractHistogram h) {
+            if (h == null || h.getTotalCount() == 0) {
+                return EMPTY;
+            }
+            long max = h.getMaxValue();
             int n = 0;
-            for (HistogramIterationValue ignored : h.recordedValues()) {
+            long[] low = new long[64];
+            long[] count = new long[64];
+            for (long v = h.lowestEquivalentValue(h.getMinValue()); v <= max; v = h.nextNonEquivalentValue(v)) {
+                long c = h.getCountAtValue(v);
+                if (c == 0) {
+                    continue;
+                }
+                if (n == low.length) {
+                    low = java.util.Arrays.copyOf(low, 2 * n);
+                    count = java.util.Arrays.copyOf(count, 2 * n);
+                }
+                low[n] = v;
+                count[n] = c;
                 n++;
             }
-            long[] low = new long[n];
-            long[] next = new long[n];
-            long[] cumulative = new long[n];
-            int i = 0;
-            for (HistogramIterationValue v : h.recordedValues()) {
-                long at = v.getValueIteratedTo();
-                low[i] = h.lowestEquivalentValue(at);
-                next[i] = h.nextNonEquivalentValue(at);
-                cumulative[i] = v.getTotalCountToThisValue();
-                i++;
+            return new Sparse(java.util.Arrays.copyOf(low, n), java.util.Arrays.copyOf(count, n));
+        }
+
+        Sparse plus(Sparse o) {
+            if (o.total == 0) {
+                return this;
             }
-            return new Buckets(low, next, cumulative);
+            if (total == 0) {
+                return o;
+            }
+            long[] l = new long[low.length + o.low.length];
+            long[] c = new long[l.length];
+            int i = 0;
+            int j = 0;
+            int n = 0;
+            while (i < low.length || j < o.low.length) {
+                if (j == o.low.length || (i < low.length && low[i] < o.low[j])) {
+                    l[n] = low[i];
+                    c[n++] = count[i++];
+                } else if (i == low.length || o.low[j] < low[i]) {
+                    l[n] = o.low[j];
+                    c[n++] = o.count[j++];
+                } else {
+                    l[n] = low[i];
+                    c[n++] = count[i++] + o.count[j++];
+                }
+            }
+            return new Sparse(java.util.Arrays.copyOf(l, n), java.util.Arrays.copyOf(c, n));
+        }
+
+        private long[] cumulative() {
+            long[] cum = cumulative;
+            if (cum == null) {
+                long[] ends = new long[low.length];
+                cum = new long[low.length];
+                long run = 0;
+                for (int i = 0; i < low.length; i++) {
+                    run += count[i];
+                    cum[i] = run;
+                    ends[i] = LAYOUT.nextNonEquivalentValue(low[i]);
+                }
+                next = ends;
+                cumulative = cum;
+            }
+            return cum;
         }
 
         /** The scaled value at cumulative count {@code target}, in metric units. */
         double quantile(double target) {
-            for (int i = 0; i < low.length; i++) {
-                if (cumulative[i] >= target) {
-                    long before = i == 0 ? 0 : cumulative[i - 1];
-                    double within = (target - before) / (cumulative[i] - before);
-                    return (low[i] + Math.max(0, within) * (next[i] - low[i])) * RESOLUTION;
-                }
+            long[] cum = cumulative();
+            long[] ends = next;
+            int i = java.util.Arrays.binarySearch(cum, (long) Math.ceil(target));
+            i = i >= 0 ? i : -i - 1;
+            if (i >= low.length) {
+                return ends[low.length - 1] * RESOLUTION;
             }
-            return next[low.length - 1] * RESOLUTION;
+            long before = i == 0 ? 0 : cum[i - 1];
+            double within = (target - before) / (cum[i] - before);
+            return (low[i] + Math.max(0, within) * (ends[i] - low[i])) * RESOLUTION;
         }
 
-        /** The count at or below the scaled value {@code v}. */
+        /** The count at or below the scaled value {@code v}, interpolated within its bucket. */
         double below(double v) {
-            double n = 0;
-            for (int i = 0; i < low.length; i++) {
-                long before = i == 0 ? 0 : cumulative[i - 1];
-                if (v >= next[i]) {
-                    n = cumulative[i];
-                    continue;
-                }
-                if (v > low[i]) {
-                    n = before + (cumulative[i] - before) * (v - low[i]) / (next[i] - low[i]);
-                }
-                break;
+            if (low.length == 0) {
+                return 0;
             }
-            return n;
+            long[] cum = cumulative();
+            long[] ends = next;
+            // The first bucket whose end lies above v.
+            int lo = 0;
+            int hi = low.length;
+            while (lo < hi) {
+                int mid = (lo + hi) >>> 1;
+                if (ends[mid] <= v) {
+                    lo = mid + 1;
+                } else {
+                    hi = mid;
+                }
+            }
+            if (lo == low.length) {
+                return cum[low.length - 1];
+            }
+            long before = lo == 0 ? 0 : cum[lo - 1];
+            if (v <= low[lo]) {
+                return before;
+            }
+            return before + (cum[lo] - before) * (v - low[lo]) / (ends[lo] - low[lo]);
         }
     }
 }
