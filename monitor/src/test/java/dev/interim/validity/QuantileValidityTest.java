@@ -38,24 +38,40 @@ import org.junit.jupiter.api.Test;
  * and a rate below α − 3 SE is accepted as conservative and flagged, as in {@link ValiditySuiteTest}.
  *
  * <p>A tail-only slowdown: the treatment makes 1% of requests 400 ms slower (the mean moves by 4 ms,
- * 5%), watched on the same streams by a p99 guardrail, an event-mean guardrail and a guardrail on the
+ * 5.5%), watched on the same streams by a p99 guardrail, an event-mean guardrail and a guardrail on the
  * share of requests of at least 300 ms (about control's p99). Reported: power and the information
  * at the stop. Expected values, from the normal approximations written out at
  * {@link #tailSlowdown()}.
  *
- * <p>The default run is small (about 2 minutes on two busy cores); {@code -Dinterim.validity.full=true}
- * runs 1,000 per cell. Every run prints the table.
+ * <p>The default run is a smoke check (about 3 minutes on two busy cores: few runs per null cell, see
+ * {@link #GUARDRAIL_RUNS}); {@code -Dinterim.validity.full=true} runs 1,000 per cell (300 for the
+ * per-unit cell; about 2.5 hours). Every run prints the tables.
  */
 class QuantileValidityTest {
     static final boolean FULL = Boolean.getBoolean("interim.validity.full");
-    static final int RUNS = Integer.getInteger("interim.quantile.runs", FULL ? 1000 : 150);
-    static final int TAIL_RUNS = Integer.getInteger("interim.quantile.tail_runs", FULL ? 1000 : 150);
-    static final int UNIT_RUNS = Integer.getInteger("interim.quantile.unit_runs", FULL ? 1000 : 40);
+    /*
+     * Runs per cell. A look costs what the quantile's histograms cost to copy, sum and walk (each walk
+     * covers HdrHistogram's 6,912 counters of the range 1e-6 to 1e12): about 7 ms per metric per look
+     * under per-event assignment and 90 ms under per-unit assignment (32 groups of units), measured on
+     * two busy cores; a run of three quantile metrics and 47 looks takes about 1 s per event and 14 s per
+     * unit. So the default run is a smoke check (about 3 minutes); the figures for the README come from
+     * the bigger run. Each count can be set apart: -Dinterim.quantile.<cell>.runs=n.
+     */
+    static final int GUARDRAIL_RUNS = runs("guardrails", 50, 1000);
+    static final int PRIMARY_RUNS = runs("primaries", 16, 1000);
+    static final int UNIT_RUNS = runs("unit", 4, 300);
+    static final int TAIL_RUNS = runs("tail", 80, 1000);
+    /** Prints a line per run (its decisions, misses and stops), for long runs: -Dinterim.quantile.trace=true. */
+    static final boolean TRACE = Boolean.getBoolean("interim.quantile.trace");
     static final double ALPHA = 0.05;
     /** The guardrails' horizon: events per arm ({@code max_per_arm}). */
     static final int HORIZON = 20_000;
     /** Looks after the first events, over the guardrails' horizon. */
     static final int LOOKS = 40;
+
+    private static int runs(String cell, int byDefault, int full) {
+        return Integer.getInteger("interim.quantile." + cell + ".runs", FULL ? full : byDefault);
+    }
 
     private static final List<String> TABLE = new ArrayList<>();
     private static final List<String> POWER_TABLE = new ArrayList<>();
@@ -189,6 +205,14 @@ class QuantileValidityTest {
             List<Traffic.Event> events = LatencyTraffic.generate(shape, units, slowShare, 400, seed + 7919L * run);
             Outcome[] o = run(config, monitor, events, step, truth, looksOut);
             looks += looksOut[0];
+            if (TRACE) {
+                StringBuilder line = new StringBuilder("run ").append(name).append(" | ").append(run);
+                for (Outcome x : o) {
+                    line.append(" | ").append(x.decision().name()).append(' ').append(x.missed() ? 1 : 0).append(' ')
+                            .append(x.stopPerArm()).append(' ').append(x.stopLook());
+                }
+                System.out.println(line);
+            }
             for (int m = 0; m < k; m++) {
                 Decision d = o[m].decision();
                 if (d == Decision.STOP_HARM) {
@@ -300,7 +324,8 @@ class QuantileValidityTest {
      * 3%; from memory) is reached where the guardrails' horizon is, 2·n_t·n_c/(n_t + n_c) =
      * {@value #HORIZON}: δ = 2.80·√1.03·c·√(2/{@value #HORIZON}), with c = √(p(1 − p))/f(ξ_p) the
      * asymptotic per-arm constant of a sample quantile (Woodruff 1952) for this traffic (3% zeros,
-     * lognormal of mean 75 ms and log-sd 0.7): c = 51.7, 274 and 779 ms at p50, p95, p99.
+     * lognormal of mean 75 ms and log-sd 0.7): c = 51.7, 274 and 779 ms at p50, p95, p99 (Source:
+     * computed with SciPy, scipy.stats.norm and scipy.optimize.brentq).
      */
     static final double[] EVENT_EFFECTS = {1.47, 7.8, 22.1};
 
@@ -322,7 +347,8 @@ class QuantileValidityTest {
     @Test
     void guardrailsOnIndependentRequestsPerEvent() {
         SoftAssertions soft = new SoftAssertions();
-        reportNull(nullCell("independent, event, 50:50", "event", LatencyTraffic.INDEPENDENT, null, 1.05, 101L, RUNS),
+        reportNull(nullCell("independent, event, 50:50", "event", LatencyTraffic.INDEPENDENT, null, 1.05, 101L,
+                GUARDRAIL_RUNS),
                 soft);
         soft.assertAll();
     }
@@ -331,7 +357,7 @@ class QuantileValidityTest {
     void primariesOnIndependentRequestsPerEventUneven() {
         SoftAssertions soft = new SoftAssertions();
         reportNull(nullCell("independent, event, 80:20", "event", LatencyTraffic.INDEPENDENT_UNEVEN, EVENT_EFFECTS,
-                2, 102L, RUNS), soft);
+                2, 102L, PRIMARY_RUNS), soft);
         soft.assertAll();
     }
 
@@ -362,14 +388,15 @@ class QuantileValidityTest {
      * the three guardrails of {@link #tailMetrics} on the same streams, for a horizon of 20,000 and of
      * 100,000 requests per arm; looks every 1/{@value #LOOKS} of the horizon.
      *
-     * <p>Expected (normal approximations for this traffic, n requests per arm; the densities from the
-     * lognormal mixture of {@link LatencyTraffic}): p99 moves from 297 to about 435 ms, its Woodruff
-     * standard error is about √(0.0099/n)·(1/1.28e-4 + 1/1.46e-4) ≈ 1,040/√n ms (control's and
-     * treatment's densities at their p99), so z ≈ 9 at the first look it can have (5,000 per arm,
-     * {@code QuantileSignificance.MIN_TAIL}); the share of at least 300 ms moves from 0.0099 to 0.0198,
-     * z ≈ 0.0099·√n/0.171, 8.2 at 20,000; the mean moves by 4 ms with standard deviations 58 and 73 ms,
-     * z ≈ 4·√n/93, 6.1 at 20,000. Each is far beyond the final O'Brien–Fleming boundary (about 1.7), so
-     * the power of each should be near 1 (asserted: at least 0.9) and they differ in when they stop.
+     * <p>Expected (normal approximations for n requests per arm, from the lognormal mixture of
+     * {@link LatencyTraffic}; Source: computed with SciPy, scipy.stats.norm and scipy.optimize.brentq):
+     * p99 moves from 297 to 431 ms, the densities there are 1.28e-4 and 1.40e-4 per ms, so Woodruff's
+     * standard error of the difference is about √(0.0099/n)·√(1/1.28e-4² + 1/1.40e-4²) ≈ 1,054/√n ms
+     * and z ≈ 9.0 at the first look p99 can have (5,000 per arm: {@code QuantileSignificance.MIN_TAIL}
+     * values beyond it); the share of at least 300 ms moves from 0.0096 to 0.0195, z ≈ 8.3 at 20,000 per
+     * arm; the mean moves by 4 ms (72.75 to 76.75) with standard deviations 60 and 72 ms, z ≈ 6.0 at
+     * 20,000. Each is far beyond the last O'Brien–Fleming-type boundary (below 2), so each guardrail's
+     * power should be near 1 (asserted: at least 0.9); what tells them apart is when they stop.
      */
     @Test
     void tailSlowdown() {
