@@ -331,7 +331,12 @@ class QuantileValidityTest {
 
     /**
      * A null cell: units for {@code reach} times the events at the guardrails' horizon, looks after the
-     * first events and then every 1/{@value #LOOKS} of the horizon.
+     * first events and then every 1/{@value #LOOKS} of the horizon. Reach: guardrails 1.25 (per unit the
+     * split and the requests per client vary, and at 1.05, 2 runs of 103 ended a few looks short);
+     * primaries 3, as in {@link ValiditySuiteTest}: the information of a quantile is measured on its
+     * Woodruff width, whose sampling noise the horizon's "never shortened over the latest half" rule
+     * and the chi-square limit on the tail's count turn into a later horizon (at reach 2, 11 runs of
+     * 300 of the p99 primary and 1 of p95 had not reached it).
      */
     static Cell nullCell(String name, String assignment, LatencyTraffic.Shape shape, double[] effects, double reach,
                          long seed, int runs) {
@@ -347,7 +352,7 @@ class QuantileValidityTest {
     @Test
     void guardrailsOnIndependentRequestsPerEvent() {
         SoftAssertions soft = new SoftAssertions();
-        reportNull(nullCell("independent, event, 50:50", "event", LatencyTraffic.INDEPENDENT, null, 1.05, 101L,
+        reportNull(nullCell("independent, event, 50:50", "event", LatencyTraffic.INDEPENDENT, null, 1.25, 101L,
                 GUARDRAIL_RUNS),
                 soft);
         soft.assertAll();
@@ -357,14 +362,14 @@ class QuantileValidityTest {
     void primariesOnIndependentRequestsPerEventUneven() {
         SoftAssertions soft = new SoftAssertions();
         reportNull(nullCell("independent, event, 80:20", "event", LatencyTraffic.INDEPENDENT_UNEVEN, EVENT_EFFECTS,
-                2, 102L, PRIMARY_RUNS), soft);
+                3, 102L, PRIMARY_RUNS), soft);
         soft.assertAll();
     }
 
     @Test
     void guardrailsOnClusteredClientsPerUnitUneven() {
         SoftAssertions soft = new SoftAssertions();
-        reportNull(nullCell("clustered, unit, 80:20", "unit", LatencyTraffic.CLUSTERED_UNEVEN, null, 1.05, 103L,
+        reportNull(nullCell("clustered, unit, 80:20", "unit", LatencyTraffic.CLUSTERED_UNEVEN, null, 1.25, 103L,
                 UNIT_RUNS), soft);
         soft.assertAll();
     }
