@@ -17,6 +17,7 @@ import dev.interim.stream.OfflineTally;
 import java.time.Instant;
 import java.util.ArrayList;
 import java.util.List;
+import dev.interim.text.Numbers;
 import java.util.Locale;
 import java.util.Map;
 import org.assertj.core.api.SoftAssertions;
@@ -37,30 +38,28 @@ import org.junit.jupiter.api.Test;
  * ch. 9). Monte Carlo SE = √(p(1 − p)/n) at the target (common practice); a cell passes within 3 SE,
  * and a rate below α − 3 SE is accepted as conservative and flagged, as in {@link ValiditySuiteTest}.
  *
- * <p>A tail-only slowdown: the treatment makes 1% of requests 400 ms slower (the mean moves by 4 ms,
- * 5.5%), watched on the same streams by a p99 guardrail, an event-mean guardrail and a guardrail on the
- * share of requests of at least 300 ms (about control's p99). Reported: power and the information
+ * <p>Tail-only slowdowns: the treatment makes 1% of requests 400 ms slower (the mean moves by 4 ms,
+ * 5.5%), or 0.3% of them (1.2 ms), or 0.5% of them 200 ms slower (mostly below p99), watched on the
+ * same streams by a p99 guardrail, an event-mean guardrail and a guardrail on the share of requests
+ * of at least 300 ms (about control's p99). Reported: power and the information
  * at the stop. Expected values, from the normal approximations written out at
  * {@link #tailSlowdown()}.
  *
- * <p>The default run is a smoke check (about 3 minutes on two busy cores: few runs per null cell, see
- * {@link #GUARDRAIL_RUNS}); {@code -Dinterim.validity.full=true} runs 1,000 per cell (300 for the
- * per-unit cell; about 2.5 hours). Every run prints the tables.
+ * <p>The default run (about 4 minutes on two busy cores: see {@link #GUARDRAIL_RUNS}) checks every
+ * null cell within 3 Monte Carlo standard errors; {@code -Dinterim.validity.full=true} runs 1,000 per
+ * cell. Every run prints the tables.
  */
 class QuantileValidityTest {
     static final boolean FULL = Boolean.getBoolean("interim.validity.full");
     /*
-     * Runs per cell. A look costs what the quantile's histograms cost to copy, sum and walk (each walk
-     * covers HdrHistogram's 6,912 counters of the range 1e-6 to 1e12): about 7 ms per metric per look
-     * under per-event assignment and 90 ms under per-unit assignment (32 groups of units), measured on
-     * two busy cores; a run of three quantile metrics and 47 looks takes about 1 s per event and 14 s per
-     * unit. So the default run is a smoke check (about 3 minutes); the figures for the README come from
-     * the bigger run. Each count can be set apart: -Dinterim.quantile.<cell>.runs=n.
+     * Runs per cell: by default 120 per null cell (60 for the primaries, whose runs are longer) and
+     * 100 per slowdown, about 4 minutes on two busy cores; each count can be set apart:
+     * -Dinterim.quantile.<cell>.runs=n.
      */
-    static final int GUARDRAIL_RUNS = runs("guardrails", 50, 1000);
-    static final int PRIMARY_RUNS = runs("primaries", 16, 1000);
-    static final int UNIT_RUNS = runs("unit", 4, 300);
-    static final int TAIL_RUNS = runs("tail", 80, 1000);
+    static final int GUARDRAIL_RUNS = runs("guardrails", 120, 1000);
+    static final int PRIMARY_RUNS = runs("primaries", 60, 1000);
+    static final int UNIT_RUNS = runs("unit", 120, 1000);
+    static final int TAIL_RUNS = runs("tail", 100, 1000);
     /** Prints a line per run (its decisions, misses and stops), for long runs: -Dinterim.quantile.trace=true. */
     static final boolean TRACE = Boolean.getBoolean("interim.quantile.trace");
     static final double ALPHA = 0.05;
@@ -189,6 +188,12 @@ class QuantileValidityTest {
      */
     static Cell simulate(String name, InterimConfig config, LatencyTraffic.Shape shape, int units, int step,
                          double slowShare, double truth, long seed, int runs) {
+        return simulate(name, config, shape, units, step, slowShare, 400, truth, seed, runs);
+    }
+
+    /** {@link #simulate} with the slow requests {@code delay} ms slower. */
+    static Cell simulate(String name, InterimConfig config, LatencyTraffic.Shape shape, int units, int step,
+                         double slowShare, double delay, double truth, long seed, int runs) {
         ExperimentMonitor monitor = new ExperimentMonitor(config.experiments().get(0).definition());
         List<String> names = monitor.definition().metrics().stream().map(MetricDefinition::name).toList();
         int k = names.size();
@@ -202,7 +207,7 @@ class QuantileValidityTest {
         long looks = 0;
         int[] looksOut = new int[1];
         for (int run = 0; run < runs; run++) {
-            List<Traffic.Event> events = LatencyTraffic.generate(shape, units, slowShare, 400, seed + 7919L * run);
+            List<Traffic.Event> events = LatencyTraffic.generate(shape, units, slowShare, delay, seed + 7919L * run);
             Outcome[] o = run(config, monitor, events, step, truth, looksOut);
             looks += looksOut[0];
             if (TRACE) {
@@ -285,7 +290,7 @@ class QuantileValidityTest {
                 "cell", "metric", "measure", "rate", "target", "SE", "verdict", "first", "open"));
         TABLE.forEach(System.out::println);
         if (!POWER_TABLE.isEmpty()) {
-            System.out.println("Tail-only slowdown (1% of the treatment's requests +400 ms; " + (FULL ? "full" : "default")
+            System.out.println("Tail-only slowdowns (a share of the treatment's requests slower by a delay; " + (FULL ? "full" : "default")
                     + " run; power = share of runs stopped for harm, SE = sqrt(p(1-p)/n); at the stop: mean events per"
                     + " arm and mean look number over the runs that stopped)");
             System.out.println(String.format(Locale.ROOT, "| %-28s | %-12s | %6s | %5s | %10s | %6s |", "cell",
@@ -407,19 +412,45 @@ class QuantileValidityTest {
     void tailSlowdown() {
         SoftAssertions soft = new SoftAssertions();
         for (int horizon : new int[] {HORIZON, 5 * HORIZON}) {
-            InterimConfig config = config("event", LatencyTraffic.INDEPENDENT, tailMetrics(horizon));
-            double horizonEvents = 2.0 * horizon;
-            Cell c = simulate("tail, event, 50:50, N=" + horizon, config, LatencyTraffic.INDEPENDENT,
-                    (int) (1.05 * horizonEvents), (int) Math.round(horizonEvents / LOOKS), 0.01, Double.NaN,
-                    201L + horizon, TAIL_RUNS);
+            Cell c = tailCell(horizon, 0.01, 400);
             for (int m = 0; m < c.metrics().size(); m++) {
                 double power = (double) c.harm()[m] / c.runs();
-                POWER_TABLE.add(String.format(Locale.ROOT, "| %-28s | %-12s | %6.3f | %5.3f | %10.0f | %6.1f |",
-                        c.name(), c.metrics().get(m), power, se(power, c.runs()), c.stopPerArm()[m], c.stopLook()[m]));
                 soft.assertThat(power).as("%s %s: power against the tail-only slowdown", c.name(), c.metrics().get(m))
                         .isGreaterThanOrEqualTo(0.9);
             }
         }
+        // A rarer slowdown, 0.3% of requests 400 ms slower (Source: the lognormal mixture of LatencyTraffic,
+        // worked by hand with the normal approximations above; from the same densities): the mean moves
+        // by 1.2 ms, z ≈ 1.9 at 20,000 per arm, near the last boundary, so its power is about one half;
+        // the treatment's p99 is control's quantile at 0.99/0.997, about 329 ms against 297, z ≈ 4 at
+        // 20,000; the share of at least 300 ms goes from 0.0096 to 0.0126, z ≈ 2.9. The p99 must be
+        // clearly ahead of the mean: by more than 3 standard errors of the difference of the powers.
+        Cell rare = tailCell(HORIZON, 0.003, 400);
+        double p99 = (double) rare.harm()[0] / rare.runs();
+        double mean = (double) rare.harm()[1] / rare.runs();
+        double seDifference = Math.sqrt((p99 * (1 - p99) + mean * (1 - mean)) / rare.runs());
+        soft.assertThat(p99 - mean).as("%s: p99's power above the mean's (%s against %s)", rare.name(), p99, mean)
+                .isGreaterThan(3 * Math.max(seDifference, 0.5 / rare.runs()));
+        // And where a quantile guardrail is blind: 0.5% of requests 200 ms slower mostly stay below
+        // p99 (a request crosses 297 ms only if it took more than 97 ms before, a quarter of them), so the
+        // p99 barely moves while the mean moves by 1 ms. Reported, not asserted: it is what the README
+        // warns of (a tail guardrail watches its own quantile, nothing below it).
+        tailCell(HORIZON, 0.005, 200);
         soft.assertAll();
+    }
+
+    /** One cell of {@link #tailSlowdown}: its power table rows are added. */
+    private static Cell tailCell(int horizon, double share, double delay) {
+        InterimConfig config = config("event", LatencyTraffic.INDEPENDENT, tailMetrics(horizon));
+        double horizonEvents = 2.0 * horizon;
+        Cell c = simulate(String.format(Locale.ROOT, "%s%% +%.0fms, N=%d", Numbers.plain(100 * share), delay, horizon),
+                config, LatencyTraffic.INDEPENDENT, (int) (1.05 * horizonEvents), (int) Math.round(horizonEvents / LOOKS),
+                share, delay, Double.NaN, 201L + horizon + Math.round(1000 * share), TAIL_RUNS);
+        for (int m = 0; m < c.metrics().size(); m++) {
+            double power = (double) c.harm()[m] / c.runs();
+            POWER_TABLE.add(String.format(Locale.ROOT, "| %-28s | %-12s | %6.3f | %5.3f | %10.0f | %6.1f |",
+                    c.name(), c.metrics().get(m), power, se(power, c.runs()), c.stopPerArm()[m], c.stopLook()[m]));
+        }
+        return c;
     }
 }
