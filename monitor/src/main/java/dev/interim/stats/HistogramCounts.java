@@ -78,6 +78,21 @@ public final class HistogramCounts {
         return new HistogramCounts(read);
     }
 
+    /** Counts whose groups are these bucket lists (for {@link RunningHistogram}, which never changes them after). */
+    static HistogramCounts ofSparse(Sparse[] groups) {
+        return new HistogramCounts(groups.clone());
+    }
+
+    /** Group {@code g}'s bucket list (for {@link RunningHistogram}). */
+    Sparse sparse(int g) {
+        return groups[g];
+    }
+
+    /** The lowest value of the bucket that holds the scaled value {@code v}: what a bucket list is keyed by. */
+    static long bucketOf(long v) {
+        return LAYOUT.lowestEquivalentValue(v);
+    }
+
     /** An empty histogram of the layout every group uses. */
     public static PackedHistogram newHistogram() {
         return new PackedHistogram(HIGHEST_SCALED, SIGNIFICANT_DIGITS);
@@ -256,7 +271,7 @@ public final class HistogramCounts {
      * sums and looks cost the buckets in use, not the layout's whole range (HdrHistogram's own
      * {@code add} walks every index of it).
      */
-    private static final class Sparse {
+    static final class Sparse {
         static final Sparse EMPTY = new Sparse(new long[0], new long[0]);
         final long[] low;
         final long[] count;
@@ -298,6 +313,29 @@ public final class HistogramCounts {
                 n++;
             }
             return new Sparse(java.util.Arrays.copyOf(low, n), java.util.Arrays.copyOf(count, n));
+        }
+
+        /**
+         * The bucket list of {@code n} bucket keys ({@link #bucketOf}) in any order, which this call
+         * sorts in place.
+         */
+        static Sparse ofKeys(long[] keys, int n) {
+            if (n == 0) {
+                return EMPTY;
+            }
+            java.util.Arrays.sort(keys, 0, n);
+            long[] low = new long[n];
+            long[] count = new long[n];
+            int m = 0;
+            for (int i = 0; i < n; i++) {
+                if (m > 0 && low[m - 1] == keys[i]) {
+                    count[m - 1]++;
+                } else {
+                    low[m] = keys[i];
+                    count[m++] = 1;
+                }
+            }
+            return new Sparse(java.util.Arrays.copyOf(low, m), java.util.Arrays.copyOf(count, m));
         }
 
         Sparse plus(Sparse o) {
