@@ -4,7 +4,6 @@ import dev.interim.config.ConfigLoader;
 import dev.interim.config.InterimConfig;
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.Decision;
-import dev.interim.experiment.ExperimentDefinition;
 import dev.interim.experiment.ExperimentMonitor;
 import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
@@ -12,8 +11,16 @@ import dev.interim.stream.BadEventException;
 import dev.interim.stream.JsonEventReader;
 import dev.interim.stream.OfflineTally;
 import java.time.Instant;
+import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
 import java.util.Locale;
+import java.util.concurrent.ExecutionException;
+import java.util.concurrent.ExecutorService;
+import java.util.concurrent.Executors;
+import java.util.concurrent.Future;
+import java.util.concurrent.atomic.AtomicInteger;
+import java.util.function.Supplier;
 
 /**
  * The real engine on synthetic traffic: a YAML configuration through {@link ConfigLoader}, JSON
@@ -81,17 +88,48 @@ final class Engine {
      */
     static Run run(InterimConfig config, ExperimentMonitor monitor, List<Traffic.Event> events, int step,
                    double[] truth) {
-        ExperimentDefinition definition = monitor.definition();
-        // A fresh start of the same designs (building them anew costs seconds: planning by power).
-        for (Comparison c : monitor.comparisons()) {
-            c.restore(List.of(), Decision.CONTINUE);
-        }
-        OfflineTally tally = new OfflineTally(List.of(definition));
-        JsonEventReader reader = new JsonEventReader(config.catalog());
         int k = Traffic.METRICS.length;
         boolean[] missed = new boolean[k];
         double[] stopEffects = new double[k];
         double[] lastFraction = new double[k];
+        int[] fed = feed(config, monitor, EXPERIMENT, events, step, (look, snapshot, report) -> {
+            for (LookResult r : report.results()) {
+                int m = index(r.metric());
+                if (!r.interval().contains(truth[m])) {
+                    missed[m] = true;
+                }
+                lastFraction[m] = r.look().fraction();
+                if (r.decision() == Decision.STOP_BENEFIT || r.decision() == Decision.STOP_HARM) {
+                    stopEffects[m] = r.estimate().effect();
+                }
+            }
+        });
+        Decision[] decisions = new Decision[k];
+        for (Comparison c : monitor.comparisons()) {
+            decisions[index(c.metric().name())] = c.decision();
+        }
+        return new Run(decisions, stopEffects, missed, fed[0], fed[1], lastFraction);
+    }
+
+    /** What a run's looks are shown: the look's number (from 1), what it looked at, what it found. */
+    interface LookObserver {
+        void look(int look, OfflineTally.Snapshot snapshot, LookReport report);
+    }
+
+    /**
+     * The real engine over {@code events}: each is read by the daemon's reader into the tallies, and
+     * {@code experiment} is looked at after 2, 5, 10, 20, 40, 80, 160 events and then every
+     * {@code step} events, until every comparison is final or the events run out; each look is shown
+     * to {@code observer}. The monitor's comparisons start afresh (building the designs anew costs
+     * seconds: planning by power). Returns the number of looks and of events fed.
+     */
+    static int[] feed(InterimConfig config, ExperimentMonitor monitor, String experiment, List<Traffic.Event> events,
+                      int step, LookObserver observer) {
+        for (Comparison c : monitor.comparisons()) {
+            c.restore(List.of(), Decision.CONTINUE);
+        }
+        OfflineTally tally = new OfflineTally(List.of(monitor.definition()));
+        JsonEventReader reader = new JsonEventReader(config.catalog());
         int looks = 0;
         int fed = 0;
         int next = 2;
@@ -106,28 +144,60 @@ final class Engine {
                 continue;
             }
             next = next < 160 ? (next == 2 ? 5 : 2 * next) : next + step;
-            OfflineTally.Snapshot s = tally.snapshot(EXPERIMENT);
+            OfflineTally.Snapshot s = tally.snapshot(experiment);
             LookReport report = monitor.look(Instant.ofEpochSecond(fed), s.exposures(), s.tallies());
             looks++;
-            for (LookResult r : report.results()) {
-                int m = index(r.metric());
-                if (!r.interval().contains(truth[m])) {
-                    missed[m] = true;
-                }
-                lastFraction[m] = r.look().fraction();
-                if (r.decision() == Decision.STOP_BENEFIT || r.decision() == Decision.STOP_HARM) {
-                    stopEffects[m] = r.estimate().effect();
-                }
-            }
+            observer.look(looks, s, report);
             if (monitor.comparisons().stream().allMatch(c -> c.decision().isFinal())) {
                 break;
             }
         }
-        Decision[] decisions = new Decision[k];
-        for (Comparison c : monitor.comparisons()) {
-            decisions[index(c.metric().name())] = c.decision();
+        return new int[] {looks, fed};
+    }
+
+    /** One run of a cell, on a worker's own monitor. */
+    interface RunOf<W, R> {
+        R run(W worker, int run);
+    }
+
+    /**
+     * Runs 0 … {@code runs} − 1 of a cell, on one thread per core; each thread makes its own worker
+     * (its monitor: a monitor is reused run after run, never shared). Every run is seeded by its
+     * index alone, so the results, returned in run order, are those of a run one after another.
+     */
+    static <W, R> List<R> inParallel(int runs, Supplier<W> worker, RunOf<W, R> run) {
+        int threads = Math.max(1, Math.min(runs, Runtime.getRuntime().availableProcessors()));
+        Object[] results = new Object[runs];
+        AtomicInteger next = new AtomicInteger();
+        ExecutorService pool = Executors.newFixedThreadPool(threads);
+        try {
+            List<Future<?>> tasks = new ArrayList<>();
+            for (int t = 0; t < threads; t++) {
+                tasks.add(pool.submit(() -> {
+                    W own = worker.get();
+                    for (int i = next.getAndIncrement(); i < runs; i = next.getAndIncrement()) {
+                        results[i] = run.run(own, i);
+                    }
+                    return null;
+                }));
+            }
+            for (Future<?> task : tasks) {
+                task.get();
+            }
+        } catch (ExecutionException e) {
+            if (e.getCause() instanceof Error error) {
+                throw error;
+            }
+            throw new IllegalStateException(e.getCause());
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+            throw new IllegalStateException(e);
+        } finally {
+            pool.shutdownNow();
         }
-        return new Run(decisions, stopEffects, missed, looks, fed, lastFraction);
+        @SuppressWarnings("unchecked")
+        List<R> inOrder = (List<R>) Arrays.asList(results);
+        return inOrder;
     }
 
     /** A monitor of the configuration's experiment, to be reused run after run. */

@@ -7,17 +7,14 @@ import dev.interim.config.InterimConfig;
 import dev.interim.experiment.Comparison;
 import dev.interim.experiment.Decision;
 import dev.interim.experiment.ExperimentMonitor;
-import dev.interim.experiment.LookReport;
 import dev.interim.experiment.LookResult;
 import dev.interim.experiment.MetricDefinition;
 import dev.interim.experiment.Tally;
-import dev.interim.stream.BadEventException;
 import dev.interim.stream.JsonEventReader;
 import dev.interim.stream.OfflineTally;
-import java.time.Instant;
+import dev.interim.text.Numbers;
 import java.util.ArrayList;
 import java.util.List;
-import dev.interim.text.Numbers;
 import java.util.Locale;
 import java.util.Map;
 import org.assertj.core.api.SoftAssertions;
@@ -45,7 +42,7 @@ import org.junit.jupiter.api.Test;
  * at the stop. Expected values, from the normal approximations written out at
  * {@link #tailSlowdown()}.
  *
- * <p>The default run (about 4 minutes on two busy cores: see {@link #GUARDRAIL_RUNS}) checks every
+ * <p>The default run (about 1.5 minutes on two busy cores: see {@link #GUARDRAIL_RUNS}) checks every
  * null cell within 3 Monte Carlo standard errors; {@code -Dinterim.validity.full=true} runs 1,000 per
  * cell. Every run prints the tables.
  */
@@ -53,7 +50,8 @@ class QuantileValidityTest {
     static final boolean FULL = Boolean.getBoolean("interim.validity.full");
     /*
      * Runs per cell: by default 120 per null cell (60 for the primaries, whose runs are longer) and
-     * 100 per slowdown, about 4 minutes on two busy cores; each count can be set apart:
+     * 100 per slowdown, about 1.5 minutes on two busy cores (the runs of a cell share the cores:
+     * Engine.inParallel); each count can be set apart:
      * -Dinterim.quantile.<cell>.runs=n.
      */
     static final int GUARDRAIL_RUNS = runs("guardrails", 120, 1000);
@@ -111,51 +109,28 @@ class QuantileValidityTest {
     static Outcome[] run(InterimConfig config, ExperimentMonitor monitor, List<Traffic.Event> events, int step,
                          double truth, int[] looksOut) {
         List<MetricDefinition> metrics = monitor.definition().metrics();
-        for (Comparison c : monitor.comparisons()) {
-            c.restore(List.of(), Decision.CONTINUE);
-        }
-        OfflineTally tally = new OfflineTally(List.of(monitor.definition()));
-        JsonEventReader reader = new JsonEventReader(config.catalog());
         int k = metrics.size();
         boolean[] missed = new boolean[k];
         int[] stopLook = new int[k];
         double[] stopPerArm = new double[k];
         int[] firstLook = new int[k];
-        int looks = 0;
-        int fed = 0;
-        int next = 2;
-        for (Traffic.Event e : events) {
-            try {
-                reader.read(e.json(), tally);
-            } catch (BadEventException ex) {
-                throw new AssertionError("the simulated event was refused: " + ex.getMessage(), ex);
-            }
-            fed++;
-            if (fed < next) {
-                continue;
-            }
-            next = next < 160 ? (next == 2 ? 5 : 2 * next) : next + step;
-            OfflineTally.Snapshot s = tally.snapshot("vellumd");
-            LookReport report = monitor.look(Instant.ofEpochSecond(fed), s.exposures(), s.tallies());
-            looks++;
+        int[] fed = Engine.feed(config, monitor, "vellumd", events, step, (look, s, report) -> {
             for (LookResult r : report.results()) {
                 int m = index(metrics, r.metric());
                 if (firstLook[m] == 0) {
-                    firstLook[m] = looks;
+                    firstLook[m] = look;
                 }
                 if (!Double.isNaN(truth) && !r.interval().contains(truth)) {
                     missed[m] = true;
                 }
                 if (r.changed() && (r.decision() == Decision.STOP_HARM || r.decision() == Decision.STOP_BENEFIT)) {
-                    stopLook[m] = looks;
+                    stopLook[m] = look;
                     Map<String, Tally> byArm = s.tallies().get(r.metric());
                     stopPerArm[m] = (byArm.get("steady").count() + byArm.get("brisk").count()) / 2.0;
                 }
             }
-            if (monitor.comparisons().stream().allMatch(c -> c.decision().isFinal())) {
-                break;
-            }
-        }
+        });
+        int looks = fed[0];
         Outcome[] out = new Outcome[k];
         for (Comparison c : monitor.comparisons()) {
             int m = index(metrics, c.metric().name());
@@ -172,6 +147,10 @@ class QuantileValidityTest {
             }
         }
         throw new IllegalArgumentException(name);
+    }
+
+    /** What one run found, per metric, and how many looks it took. */
+    private record Done(Outcome[] outcomes, int looks) {
     }
 
     /** Totals of one cell, per metric. */
@@ -194,8 +173,7 @@ class QuantileValidityTest {
     /** {@link #simulate} with the slow requests {@code delay} ms slower. */
     static Cell simulate(String name, InterimConfig config, LatencyTraffic.Shape shape, int units, int step,
                          double slowShare, double delay, double truth, long seed, int runs) {
-        ExperimentMonitor monitor = new ExperimentMonitor(config.experiments().get(0).definition());
-        List<String> names = monitor.definition().metrics().stream().map(MetricDefinition::name).toList();
+        List<String> names = config.experiments().get(0).definition().metrics().stream().map(MetricDefinition::name).toList();
         int k = names.size();
         int[] harm = new int[k];
         int[] benefit = new int[k];
@@ -205,11 +183,15 @@ class QuantileValidityTest {
         double[] stopLook = new double[k];
         double[] firstLook = new double[k];
         long looks = 0;
-        int[] looksOut = new int[1];
+        List<Done> done = Engine.inParallel(runs, () -> Engine.monitor(config), (monitor, run) -> {
+            int[] looksOut = new int[1];
+            Outcome[] o = QuantileValidityTest.run(config, monitor,
+                    LatencyTraffic.generate(shape, units, slowShare, delay, seed + 7919L * run), step, truth, looksOut);
+            return new Done(o, looksOut[0]);
+        });
         for (int run = 0; run < runs; run++) {
-            List<Traffic.Event> events = LatencyTraffic.generate(shape, units, slowShare, delay, seed + 7919L * run);
-            Outcome[] o = run(config, monitor, events, step, truth, looksOut);
-            looks += looksOut[0];
+            Outcome[] o = done.get(run).outcomes();
+            looks += done.get(run).looks();
             if (TRACE) {
                 StringBuilder line = new StringBuilder("run ").append(name).append(" | ").append(run);
                 for (Outcome x : o) {

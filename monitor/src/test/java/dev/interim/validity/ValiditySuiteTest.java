@@ -4,7 +4,6 @@ import static org.assertj.core.api.Assertions.assertThat;
 
 import dev.interim.config.InterimConfig;
 import dev.interim.experiment.Decision;
-import dev.interim.experiment.ExperimentMonitor;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Locale;
@@ -30,7 +29,7 @@ import org.junit.jupiter.api.Test;
  * by tiny-sample information fractions, see the report) so that the planned information is
  * reached near 4,000 units (independent) or 3,000 units of about 7 events (clustered), with looks at
  * the first events (2, 5, 10, … events) and then about every 1/45 of that. The default run is small
- * (a few minutes on two busy cores); {@code -Dinterim.validity.full=true} runs 1,000 per cell for the
+ * (about a minute and a half on two busy cores, the runs of a cell sharing them); {@code -Dinterim.validity.full=true} runs 1,000 per cell for the
  * README's figures. Every run prints the table.
  */
 class ValiditySuiteTest {
@@ -56,7 +55,6 @@ class ValiditySuiteTest {
     static Cell simulate(String name, Traffic.Shape shape, String assignment, double[] plan, boolean effect,
                          int units, long seed, int runs, int lookCount) {
         InterimConfig config = Engine.config(assignment, plan);
-        ExperimentMonitor monitor = Engine.monitor(config);
         double[] truth = effect ? plan : new double[plan.length];
         int k = Traffic.METRICS.length;
         int[] stops = new int[k];
@@ -69,9 +67,9 @@ class ValiditySuiteTest {
         // end of the traffic would count as a miss that a live experiment, which goes on, never has.
         int cap = units * 3;
         int step = (int) Math.max(1, units * shape.expectedEvents() / lookCount);
-        for (int run = 0; run < runs; run++) {
-            List<Traffic.Event> events = Traffic.generate(shape, cap, truth, seed + 7919L * run);
-            Engine.Run r = Engine.run(config, monitor, events, step, truth);
+        List<Engine.Run> done = Engine.inParallel(runs, () -> Engine.monitor(config), (monitor, run) ->
+                Engine.run(config, monitor, Traffic.generate(shape, cap, truth, seed + 7919L * run), step, truth));
+        for (Engine.Run r : done) {
             looks += r.looks();
             for (int m = 0; m < k; m++) {
                 Decision d = r.decisions()[m];
@@ -208,13 +206,12 @@ class ValiditySuiteTest {
 
     private static Cell simulateRuns(String name, int runs) {
         InterimConfig config = Engine.config("event", CLUSTERED_EFFECTS);
-        ExperimentMonitor monitor = Engine.monitor(config);
         int[] stops = new int[Traffic.METRICS.length];
         long looks = 0;
         int step = (int) (3000 * Traffic.CLUSTERED.expectedEvents() / LOOKS);
-        for (int run = 0; run < runs; run++) {
-            List<Traffic.Event> events = Traffic.generate(Traffic.CLUSTERED, 5400, new double[5], 31L + 7919L * run);
-            Engine.Run r = Engine.run(config, monitor, events, step, new double[5]);
+        List<Engine.Run> done = Engine.inParallel(runs, () -> Engine.monitor(config), (monitor, run) -> Engine.run(config,
+                monitor, Traffic.generate(Traffic.CLUSTERED, 5400, new double[5], 31L + 7919L * run), step, new double[5]));
+        for (Engine.Run r : done) {
             looks += r.looks();
             for (int m = 0; m < stops.length; m++) {
                 Decision d = r.decisions()[m];
