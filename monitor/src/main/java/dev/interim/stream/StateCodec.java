@@ -180,15 +180,21 @@ final class StateCodec {
         }
 
         byte[] key(long hi, int lo) {
-            byte[] k = java.util.Arrays.copyOf(keyPrefix, keyPrefix.length + UNIT_HASH_BYTES);
-            int at = keyPrefix.length;
-            for (int shift = 56; shift >= 0; shift -= 8) {
-                k[at++] = (byte) (hi >>> shift);
-            }
-            for (int shift = 24; shift >= 0; shift -= 8) {
-                k[at++] = (byte) (lo >>> shift);
-            }
-            return k;
+            ByteBuilder k = new ByteBuilder(keyLength());
+            writeKey(k, hi, lo);
+            return k.toByteArray();
+        }
+
+        /** The length of every key {@link #writeKey} writes. */
+        int keyLength() {
+            return keyPrefix.length + UNIT_HASH_BYTES;
+        }
+
+        /** Writes the key of the unit (hi, lo) into {@code out}: the bytes {@link #key} returns. */
+        void writeKey(ByteBuilder out, long hi, int lo) {
+            out.write(keyPrefix);
+            out.writeLong(hi);
+            out.writeInt(lo);
         }
 
         /** Starts a record: version and arm, then the count of unit-rate metrics met. */
@@ -218,6 +224,16 @@ final class StateCodec {
 
         byte[] finish() {
             return java.util.Arrays.copyOf(buffer, length);
+        }
+
+        /** The length of the record begun with {@link #begin}, as it stands. */
+        int valueLength() {
+            return length;
+        }
+
+        /** Writes the record begun with {@link #begin} into {@code out}: the bytes {@link #finish} returns. */
+        void writeValue(ByteBuilder out) {
+            out.write(buffer, 0, length);
         }
 
         private void put(byte b) {

@@ -1,6 +1,5 @@
 package dev.interim.stream;
 
-import java.io.ByteArrayOutputStream;
 import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
@@ -143,21 +142,22 @@ final class UnitChangelog {
     /** Packs unit records (key, value) into blocks of about {@link #BLOCK_BYTES}. */
     private static final class BlockWriter {
         private final java.util.function.Consumer<byte[]> sink;
-        private final ByteArrayOutputStream block = new ByteArrayOutputStream(BLOCK_BYTES + 1024);
+        private final ByteBuilder block = new ByteBuilder(BLOCK_BYTES + 1024);
         private int count;
 
         BlockWriter(java.util.function.Consumer<byte[]> sink) {
             this.sink = sink;
         }
 
-        void add(byte[] key, byte[] value) {
+        /** A unit record, written straight from the encoder into the block (no array per unit). */
+        void add(StateCodec.UnitEncoder encoder, long keyHi, int keyLo) {
             if (count == 0) {
                 block.write(BLOCK_VERSION);
             }
-            length(key.length);
-            block.write(key, 0, key.length);
-            length(value.length);
-            block.write(value, 0, value.length);
+            block.writeLength(encoder.keyLength());
+            encoder.writeKey(block, keyHi, keyLo);
+            block.writeLength(encoder.valueLength());
+            encoder.writeValue(block);
             count++;
             if (block.size() >= BLOCK_BYTES) {
                 flush();
@@ -170,14 +170,6 @@ final class UnitChangelog {
                 block.reset();
                 count = 0;
             }
-        }
-
-        private void length(int n) {
-            while ((n & ~0x7f) != 0) {
-                block.write((n & 0x7f) | 0x80);
-                n >>>= 7;
-            }
-            block.write(n);
         }
     }
 

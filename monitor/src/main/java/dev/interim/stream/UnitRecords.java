@@ -14,24 +14,48 @@ import java.util.function.BiConsumer;
 final class UnitRecords {
     private final Map<PartitionState.UnitColumns, StateCodec.UnitEncoder> encoders = new IdentityHashMap<>();
 
+    /**
+     * Takes one unit's record where it is encoded: the value in {@code encoder} (its
+     * {@link StateCodec.UnitEncoder#writeValue}), the key from the unit's 96-bit key
+     * ({@link StateCodec.UnitEncoder#writeKey}). The encoder is reused for the next unit.
+     */
+    interface Out {
+        void unit(StateCodec.UnitEncoder encoder, long keyHi, int keyLo);
+    }
+
     /** Every unit changed since the last drain, as records; the change set is cleared. */
-    void drainChanged(PartitionState state, BiConsumer<byte[], byte[]> out) {
+    void drainChanged(PartitionState state, Out out) {
         state.drainChanged((c, t, slot) -> write(c, t, slot, out));
     }
 
     /** Every unit held, as records. */
-    void all(PartitionState state, BiConsumer<byte[], byte[]> out) {
+    void all(PartitionState state, Out out) {
         state.forEachUnit((c, t, slot) -> write(c, t, slot, out));
     }
 
-    private void write(PartitionState.UnitColumns c, UnitTable t, int slot, BiConsumer<byte[], byte[]> out) {
-        StateCodec.UnitEncoder encoder = encoders.computeIfAbsent(c,
-                x -> new StateCodec.UnitEncoder(x.source(), x.experiment(), x.arms(), x.rateNames(), x.totalColumns()));
-        out.accept(encoder.key(t.keyHi(slot), t.keyLo(slot)), encode(c, t, slot, encoder));
+    /** {@link #drainChanged(PartitionState, Out)}, each record as two arrays. */
+    void drainChanged(PartitionState state, BiConsumer<byte[], byte[]> out) {
+        drainChanged(state, asArrays(out));
     }
 
-    /** One unit's value: its arm, the unit-rate metrics it met, its non-zero totals. */
-    private static byte[] encode(PartitionState.UnitColumns c, UnitTable t, int slot, StateCodec.UnitEncoder encoder) {
+    /** {@link #all(PartitionState, Out)}, each record as two arrays. */
+    void all(PartitionState state, BiConsumer<byte[], byte[]> out) {
+        all(state, asArrays(out));
+    }
+
+    private static Out asArrays(BiConsumer<byte[], byte[]> out) {
+        return (encoder, hi, lo) -> out.accept(encoder.key(hi, lo), encoder.finish());
+    }
+
+    private void write(PartitionState.UnitColumns c, UnitTable t, int slot, Out out) {
+        StateCodec.UnitEncoder encoder = encoders.computeIfAbsent(c,
+                x -> new StateCodec.UnitEncoder(x.source(), x.experiment(), x.arms(), x.rateNames(), x.totalColumns()));
+        encode(c, t, slot, encoder);
+        out.unit(encoder, t.keyHi(slot), t.keyLo(slot));
+    }
+
+    /** One unit's value, into {@code encoder}: its arm, the unit-rate metrics it met, its non-zero totals. */
+    private static void encode(PartitionState.UnitColumns c, UnitTable t, int slot, StateCodec.UnitEncoder encoder) {
         int[] bits = c.rateBits();
         int met = 0;
         for (int bit : bits) {
@@ -59,6 +83,5 @@ final class UnitRecords {
                 encoder.total(col, v);
             }
         }
-        return encoder.finish();
     }
 }

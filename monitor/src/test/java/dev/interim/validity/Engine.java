@@ -86,7 +86,7 @@ final class Engine {
      * the true effect per metric; {@code missed[k]} says whether some repeated confidence interval of
      * metric k failed to cover it.
      */
-    static Run run(InterimConfig config, ExperimentMonitor monitor, List<Traffic.Event> events, int step,
+    static Run run(InterimConfig config, ExperimentMonitor monitor, Iterable<Traffic.Event> events, int step,
                    double[] truth) {
         int k = Traffic.METRICS.length;
         boolean[] missed = new boolean[k];
@@ -123,7 +123,7 @@ final class Engine {
      * to {@code observer}. The monitor's comparisons start afresh (building the designs anew costs
      * seconds: planning by power). Returns the number of looks and of events fed.
      */
-    static int[] feed(InterimConfig config, ExperimentMonitor monitor, String experiment, List<Traffic.Event> events,
+    static int[] feed(InterimConfig config, ExperimentMonitor monitor, String experiment, Iterable<Traffic.Event> events,
                       int step, LookObserver observer) {
         for (Comparison c : monitor.comparisons()) {
             c.restore(List.of(), Decision.CONTINUE);

@@ -1,10 +1,8 @@
 package dev.interim.validity;
 
 import java.nio.charset.StandardCharsets;
-import java.util.ArrayList;
-import java.util.Arrays;
-import java.util.List;
 import java.util.SplittableRandom;
+import java.util.function.Consumer;
 
 /**
  * Seeded synthetic request latencies of the invented service "vellumd" as JSON event bytes, for the
@@ -48,39 +46,39 @@ final class LatencyTraffic {
     /**
      * The requests of {@code units} clients in arrival order: one client arrives per time unit and
      * spreads its requests over an exponential span (mean 40 arrivals), so clients interleave.
+     * Generated as they are read ({@link ArrivalOrder}); each iteration starts again from {@code seed}.
      */
-    static List<Traffic.Event> generate(Shape shape, int units, double slowShare, double slowMs, long seed) {
-        SplittableRandom r = new SplittableRandom(seed);
-        List<Traffic.Event> events = new ArrayList<>((int) (units * (shape.meanEvents() + 1)));
+    static Iterable<Traffic.Event> generate(Shape shape, int units, double slowShare, double slowMs, long seed) {
+        return () -> {
+            SplittableRandom r = new SplittableRandom(seed);
+            StringBuilder b = new StringBuilder(80);
+            return new ArrivalOrder(units, (u, out) -> client(shape, slowShare, slowMs, r, b, u, out));
+        };
+    }
+
+    /** One client's requests, drawn from {@code r}. */
+    private static void client(Shape shape, double slowShare, double slowMs, SplittableRandom r, StringBuilder b, int u,
+                               Consumer<Traffic.Event> out) {
         double unitSigma = shape.unitSigma();
         double eventSigma = shape.eventSigma();
         // E[L·ε] = MEAN_MS: each lognormal factor has mean 1 after its −σ²/2.
-        StringBuilder b = new StringBuilder(80);
-        for (int u = 0; u < units; u++) {
-            boolean treated = r.nextDouble() < shape.treatmentShare();
-            int n = shape.clustered() ? 1 + Traffic.geometric(r, shape.meanEvents() - 1) : 1;
-            double level = MEAN_MS * Math.exp(unitSigma * Traffic.gaussian(r) - unitSigma * unitSigma / 2);
-            for (int i = 0; i < n; i++) {
-                double t = u + (i == 0 ? 0 : -40 * Math.log(1 - r.nextDouble()));
-                double ms = r.nextDouble() < ZERO_SHARE ? 0
-                        : level * Math.exp(eventSigma * Traffic.gaussian(r) - eventSigma * eventSigma / 2);
-                if (treated && slowShare > 0 && r.nextDouble() < slowShare) {
-                    ms += slowMs;
-                }
-                b.setLength(0);
-                b.append("{\"x\":\"vellumd\",\"a\":\"").append(treated ? "brisk" : "steady").append("\",\"u\":\"c")
-                        .append(u).append("\",\"ms\":");
-                appendMicros(b, ms);
-                b.append('}');
-                events.add(new Traffic.Event(t, b.toString().getBytes(StandardCharsets.UTF_8)));
+        boolean treated = r.nextDouble() < shape.treatmentShare();
+        int n = shape.clustered() ? 1 + Traffic.geometric(r, shape.meanEvents() - 1) : 1;
+        double level = MEAN_MS * Math.exp(unitSigma * Traffic.gaussian(r) - unitSigma * unitSigma / 2);
+        for (int i = 0; i < n; i++) {
+            double t = u + (i == 0 ? 0 : -40 * Math.log(1 - r.nextDouble()));
+            double ms = r.nextDouble() < ZERO_SHARE ? 0
+                    : level * Math.exp(eventSigma * Traffic.gaussian(r) - eventSigma * eventSigma / 2);
+            if (treated && slowShare > 0 && r.nextDouble() < slowShare) {
+                ms += slowMs;
             }
+            b.setLength(0);
+            b.append("{\"x\":\"vellumd\",\"a\":\"").append(treated ? "brisk" : "steady").append("\",\"u\":\"c")
+                    .append(u).append("\",\"ms\":");
+            appendMicros(b, ms);
+            b.append('}');
+            out.accept(new Traffic.Event(t, b.toString().getBytes(StandardCharsets.UTF_8)));
         }
-        if (!shape.clustered()) {
-            return events; // already in arrival order
-        }
-        Traffic.Event[] sorted = events.toArray(new Traffic.Event[0]);
-        Arrays.sort(sorted, (x, y) -> Double.compare(x.time(), y.time()));
-        return Arrays.asList(sorted);
     }
 
     /** Milliseconds to the microsecond, as a latency log writes them ("61.237"). */

@@ -106,7 +106,7 @@ class QuantileValidityTest {
      * events, until every comparison is final or the events run out. {@code truth} is the true
      * difference of every metric (NaN: coverage not checked).
      */
-    static Outcome[] run(InterimConfig config, ExperimentMonitor monitor, List<Traffic.Event> events, int step,
+    static Outcome[] run(InterimConfig config, ExperimentMonitor monitor, Iterable<Traffic.Event> events, int step,
                          double truth, int[] looksOut) {
         List<MetricDefinition> metrics = monitor.definition().metrics();
         int k = metrics.size();

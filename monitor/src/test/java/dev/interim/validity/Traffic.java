@@ -1,10 +1,8 @@
 package dev.interim.validity;
 
 import java.nio.charset.StandardCharsets;
-import java.util.ArrayList;
-import java.util.Arrays;
-import java.util.List;
 import java.util.SplittableRandom;
+import java.util.function.Consumer;
 
 /**
  * Seeded synthetic traffic of the invented shop "quillfen" as JSON event bytes, with known true
@@ -58,48 +56,51 @@ final class Traffic {
     /**
      * The events of {@code units} users in arrival order; users arrive one per time unit and spread
      * their events over an exponential span (mean 40 arrivals), so units interleave and a look sees
-     * many of them half-way.
+     * many of them half-way. Generated as they are read ({@link ArrivalOrder}); each iteration
+     * starts again from {@code seed}.
      */
-    static List<Event> generate(Shape shape, int units, double[] effects, long seed) {
-        SplittableRandom r = new SplittableRandom(seed);
-        List<Event> events = new ArrayList<>(units * (int) Math.ceil(shape.expectedEvents() + 1));
+    static Iterable<Event> generate(Shape shape, int units, double[] effects, long seed) {
+        return () -> {
+            SplittableRandom r = new SplittableRandom(seed);
+            StringBuilder b = new StringBuilder(200);
+            return new ArrivalOrder(units, (u, out) -> unit(shape, effects, r, b, u, out));
+        };
+    }
+
+    /** One user's events, drawn from {@code r}. */
+    private static void unit(Shape shape, double[] effects, SplittableRandom r, StringBuilder b, int u,
+                             Consumer<Event> out) {
         double meanN = shape.expectedEvents();
-        StringBuilder b = new StringBuilder(200);
-        for (int u = 0; u < units; u++) {
-            boolean treated = r.nextDouble() >= CONTROL_SHARE;
-            String arm = treated ? "fresh" : "base";
-            int n = shape.clustered() ? 1 + geometric(r, shape.meanEvents() - 1) : 1;
-            double m = ERROR_MEAN + (treated ? effects[0] : 0);
-            double p = beta(r, ERROR_CONCENTRATION * m, ERROR_CONCENTRATION * (1 - m));
-            double level = LATENCY_MEAN * Math.exp(LATENCY_SIGMA * gaussian(r) - LATENCY_SIGMA * LATENCY_SIGMA / 2);
-            boolean buys = r.nextDouble() < BUY + (treated ? effects[2] : 0);
-            double price = PRICE_MEAN * Math.exp(0.5 * gaussian(r) - 0.125);
-            double purchaseShift = treated ? effects[3] / (meanN * PURCHASE_SHARE) : 0;
-            double start = u;
-            for (int i = 0; i < n; i++) {
-                double t = start + (i == 0 ? 0 : -40 * Math.log(1 - r.nextDouble()));
-                boolean error = r.nextDouble() < p;
-                double ms = level * Math.exp(0.3 * gaussian(r) - 0.045) + (treated ? effects[1] : 0);
-                double spend = r.nextDouble() < PURCHASE_SHARE
-                        ? PURCHASE_MEAN * Math.exp(1.2 * gaussian(r) - 0.72) + purchaseShift : 0;
-                int items = 1 + r.nextInt(3);
-                double value = items * (price * Math.exp(0.2 * gaussian(r) - 0.02) + (treated ? effects[4] : 0));
-                // The purchase step rides on the unit's first event, so a look sees it once the unit is seen.
-                String step = buys && i == 0 ? "bought" : "viewed";
-                b.setLength(0);
-                b.append("{\"x\":\"quillfen\",\"a\":\"").append(arm).append("\",\"u\":\"u").append(u)
-                        .append("\",\"status\":\"").append(error ? "error" : "ok")
-                        .append("\",\"ms\":").append(ms)
-                        .append(",\"step\":\"").append(step)
-                        .append("\",\"spend\":").append(spend)
-                        .append(",\"value\":").append(value)
-                        .append(",\"items\":").append(items).append('}');
-                events.add(new Event(t, b.toString().getBytes(StandardCharsets.UTF_8)));
-            }
+        boolean treated = r.nextDouble() >= CONTROL_SHARE;
+        String arm = treated ? "fresh" : "base";
+        int n = shape.clustered() ? 1 + geometric(r, shape.meanEvents() - 1) : 1;
+        double m = ERROR_MEAN + (treated ? effects[0] : 0);
+        double p = beta(r, ERROR_CONCENTRATION * m, ERROR_CONCENTRATION * (1 - m));
+        double level = LATENCY_MEAN * Math.exp(LATENCY_SIGMA * gaussian(r) - LATENCY_SIGMA * LATENCY_SIGMA / 2);
+        boolean buys = r.nextDouble() < BUY + (treated ? effects[2] : 0);
+        double price = PRICE_MEAN * Math.exp(0.5 * gaussian(r) - 0.125);
+        double purchaseShift = treated ? effects[3] / (meanN * PURCHASE_SHARE) : 0;
+        double start = u;
+        for (int i = 0; i < n; i++) {
+            double t = start + (i == 0 ? 0 : -40 * Math.log(1 - r.nextDouble()));
+            boolean error = r.nextDouble() < p;
+            double ms = level * Math.exp(0.3 * gaussian(r) - 0.045) + (treated ? effects[1] : 0);
+            double spend = r.nextDouble() < PURCHASE_SHARE
+                    ? PURCHASE_MEAN * Math.exp(1.2 * gaussian(r) - 0.72) + purchaseShift : 0;
+            int items = 1 + r.nextInt(3);
+            double value = items * (price * Math.exp(0.2 * gaussian(r) - 0.02) + (treated ? effects[4] : 0));
+            // The purchase step rides on the unit's first event, so a look sees it once the unit is seen.
+            String step = buys && i == 0 ? "bought" : "viewed";
+            b.setLength(0);
+            b.append("{\"x\":\"quillfen\",\"a\":\"").append(arm).append("\",\"u\":\"u").append(u)
+                    .append("\",\"status\":\"").append(error ? "error" : "ok")
+                    .append("\",\"ms\":").append(ms)
+                    .append(",\"step\":\"").append(step)
+                    .append("\",\"spend\":").append(spend)
+                    .append(",\"value\":").append(value)
+                    .append(",\"items\":").append(items).append('}');
+            out.accept(new Event(t, b.toString().getBytes(StandardCharsets.UTF_8)));
         }
-        Event[] sorted = events.toArray(new Event[0]);
-        Arrays.sort(sorted, (x, y) -> Double.compare(x.time(), y.time()));
-        return Arrays.asList(sorted);
     }
 
     static double gaussian(SplittableRandom r) {
