@@ -47,14 +47,7 @@ final class Engine {
         for (int i = 0; i < 5; i++) {
             tail[i] = String.format(Locale.ROOT, metric, ALPHA, POWER, effects[i], PLANNED_LOOKS);
         }
-        String yaml = """
-                kafka:
-                  input_topics: [quillfen.events]
-                  input_keyed_by_unit: true
-                events:
-                  experiment: /x
-                  arm: /a
-                  unit: /u
+        String yaml = head("quillfen.events") + """
                 experiments:
                   - id: quillfen
                     control: base
@@ -74,6 +67,22 @@ final class Engine {
                          denominator: /items, %s}
                 """.formatted(assignment, tail[0], tail[1], tail[2], tail[3], tail[4]);
         return ConfigLoader.parseWithoutSecrets(yaml);
+    }
+
+    /**
+     * The configuration's start: the input topic, keyed by unit, and the pointers of the synthetic
+     * events ({@code /x} experiment, {@code /a} arm, {@code /u} unit).
+     */
+    static String head(String topic) {
+        return """
+                kafka:
+                  input_topics: [%s]
+                  input_keyed_by_unit: true
+                events:
+                  experiment: /x
+                  arm: /a
+                  unit: /u
+                """.formatted(topic);
     }
 
     /** What one run found, per metric (in {@link Traffic#METRICS} order). */

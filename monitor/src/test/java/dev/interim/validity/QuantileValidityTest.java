@@ -76,14 +76,7 @@ class QuantileValidityTest {
     /** The configuration of experiment "vellumd", control "steady", treatment "brisk". */
     static InterimConfig config(String assignment, LatencyTraffic.Shape shape, String metrics) {
         long brisk = Math.round(100 * shape.treatmentShare());
-        String yaml = """
-                kafka:
-                  input_topics: [vellumd.requests]
-                  input_keyed_by_unit: true
-                events:
-                  experiment: /x
-                  arm: /a
-                  unit: /u
+        String yaml = Engine.head("vellumd.requests") + """
                 experiments:
                   - id: vellumd
                     control: steady
