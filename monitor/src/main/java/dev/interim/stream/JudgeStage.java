@@ -83,6 +83,8 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     private final Map<Integer, Long> catchingUp = new HashMap<>();
     private KafkaConsumer<byte[], byte[]> consumer;
     private KafkaProducer<byte[], byte[]> producer;
+    /** The producer being made at the start, until {@link #producer()} takes it. */
+    private StartingProducer starting;
 
     public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
                       DecisionWriter writer) {
@@ -174,7 +176,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     public void run() {
         try {
             consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.judgeGroup(), member));
-            producer = Clients.transactionalProducer(settings, "judge", member);
+            starting = new StartingProducer(settings, "judge", member);
             consumer.subscribe(List.of(settings.talliesTopic()), new Rebalance());
             while (running.get()) {
                 for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
@@ -190,9 +192,21 @@ public final class JudgeStage implements Runnable, AutoCloseable {
             }
         } finally {
             assigned = false;
-            Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            if (producer != null) {
+                Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            } else if (starting != null) {
+                starting.closeWhenReady(Duration.ofSeconds(5));
+            }
             Clients.quietly(LOG, () -> Clients.close(consumer, leaveGroupOnClose));
         }
+    }
+
+    /** The transactional producer, waiting for the one made at the start the first time. */
+    private KafkaProducer<byte[], byte[]> producer() {
+        if (producer == null) {
+            producer = starting.get();
+        }
+        return producer;
     }
 
     private void apply(byte[] key, byte[] value) {
@@ -334,31 +348,31 @@ public final class JudgeStage implements Runnable, AutoCloseable {
      */
     private boolean commit(Cycle cycle) {
         try {
-            producer.beginTransaction();
+            producer().beginTransaction();
             for (DecisionRecord d : cycle.decisions) {
-                producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
+                producer().send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
                         writer.decision(d)));
             }
             for (Acknowledgement a : cycle.acknowledgements) {
-                producer.send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(a.experiment()),
+                producer().send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(a.experiment()),
                         writer.acknowledgement(a)));
             }
-            cycle.operatorChanges.forEach((id, state) -> producer.send(new ProducerRecord<>(settings.looksTopic(),
+            cycle.operatorChanges.forEach((id, state) -> producer().send(new ProducerRecord<>(settings.looksTopic(),
                     settings.stateFor(id), StateCodec.key(id), StateCodec.operatorState(state))));
             for (ComparisonKey key : cycle.changed) {
                 sendComparison(key);
             }
             if (!pending.isEmpty()) {
-                producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
+                producer().sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
             }
-            producer.commitTransaction();
+            producer().commitTransaction();
             pending.clear();
         } catch (FencedInstanceIdException e) {
             cycle.failCommands(e);
             throw e;   // another process uses this instance's member id: stopping is the only safe answer
         } catch (KafkaException e) {
             LOG.warn("judge commit failed ({}); restoring owned experiments from the committed look history", e.toString());
-            Clients.quietly(LOG, producer::abortTransaction);
+            Clients.quietly(LOG, producer()::abortTransaction);
             Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
             producer = Clients.transactionalProducer(settings, "judge", member);
             cycle.failCommands(e);
@@ -379,11 +393,11 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         Comparison c = owned.get(key.experiment()).comparison(key.metric(), key.arm());
         List<LookPoint> points = c.points();
         int size = points.size();
-        producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+        producer().send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
                 StateCodec.key(key.text()), StateCodec.history(c.snapshot(), c.decision(), c.last(), size)));
         for (int block = c.unsavedFrom() / StateCodec.POINTS_PER_BLOCK;
              block * StateCodec.POINTS_PER_BLOCK < size; block++) {
-            producer.send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+            producer().send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
                     StateCodec.key(key.pointsKey(block)), StateCodec.points(points, block, size)));
         }
     }
@@ -620,6 +634,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
 
         @Override
         public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+            producer();   // initialised before the state is read, as the tally stage does
             own(partitions);
             assigned = true;   // called after every rebalance, with what was added (possibly nothing)
         }

@@ -70,6 +70,8 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private final Map<BadEventException.Reason, Long> uncommittedRejected = new HashMap<>();
     private KafkaConsumer<byte[], byte[]> consumer;
     private KafkaProducer<byte[], byte[]> producer;
+    /** The producer being made at the start, until {@link #producer()} takes it. */
+    private StartingProducer starting;
     private boolean inTransaction;
     /** The clock that times the commit interval (the judge takes one too): tests may move it. */
     private final Clock clock;
@@ -96,7 +98,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
     public void run() {
         try {
             consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.tallyGroup(), member));
-            producer = Clients.transactionalProducer(settings, "tally", member);
+            starting = new StartingProducer(settings, "tally", member);
             consumer.subscribe(settings.inputTopics(), new Rebalance());
             while (running.get()) {
                 ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
@@ -114,7 +116,11 @@ public final class TallyStage implements Runnable, AutoCloseable {
             }
             Clients.quietly(LOG, this::commit);
         } finally {
-            Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            if (producer != null) {
+                Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
+            } else if (starting != null) {
+                starting.closeWhenReady(Duration.ofSeconds(5));
+            }
             Clients.quietly(LOG, () -> Clients.close(consumer, leaveGroupOnClose));
         }
     }
@@ -165,13 +171,21 @@ public final class TallyStage implements Runnable, AutoCloseable {
         String detail = e.getMessage() == null ? "" : e.getMessage();
         letter.headers().add(new RecordHeader(DETAIL_HEADER,
                 (record.topic() + "-" + record.partition() + "@" + record.offset() + ": " + detail).getBytes(StandardCharsets.UTF_8)));
-        producer.send(letter);
+        producer().send(letter);
         uncommittedRejected.merge(e.reason(), 1L, Long::sum);
+    }
+
+    /** The transactional producer, waiting for the one made at the start the first time. */
+    private KafkaProducer<byte[], byte[]> producer() {
+        if (producer == null) {
+            producer = starting.get();
+        }
+        return producer;
     }
 
     private void begin() {
         if (!inTransaction) {
-            producer.beginTransaction();
+            producer().beginTransaction();
             inTransaction = true;
         }
     }
@@ -188,17 +202,17 @@ public final class TallyStage implements Runnable, AutoCloseable {
             for (Map.Entry<TopicPartition, PartitionState> e : states.entrySet()) {
                 PartitionState state = e.getValue();
                 for (PartitionState.Partial p : state.drainChangedPartials()) {
-                    producer.send(new ProducerRecord<>(settings.talliesTopic(), settings.stateFor(p.key().experiment()),
+                    producer().send(new ProducerRecord<>(settings.talliesTopic(), settings.stateFor(p.key().experiment()),
                             StateCodec.key(p.key().text()), StateCodec.partial(p.tally())));
                 }
                 int unitsPartition = e.getKey().partition();
-                changelog(e.getKey()).commit(state, (key, value) -> producer.send(new ProducerRecord<>(settings.unitsTopic(),
+                changelog(e.getKey()).commit(state, (key, value) -> producer().send(new ProducerRecord<>(settings.unitsTopic(),
                         unitsPartition, key, value)));
             }
             if (!pending.isEmpty()) {
-                producer.sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
+                producer().sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
             }
-            producer.commitTransaction();
+            producer().commitTransaction();
             inTransaction = false;
             pending.clear();
             uncommittedAccepted.forEach(events::accepted);
@@ -223,7 +237,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
 
     /** After a failed transaction: abort, reload state and offsets as last committed. */
     private void recover() {
-        Clients.quietly(LOG, producer::abortTransaction);
+        Clients.quietly(LOG, producer()::abortTransaction);
         inTransaction = false;
         pending.clear();
         uncommittedAccepted.clear();
@@ -298,6 +312,9 @@ public final class TallyStage implements Runnable, AutoCloseable {
 
         @Override
         public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+            // The producer first (made while the group was joined): its initTransactions aborts what
+            // a crashed predecessor left open, which the restore would otherwise wait out.
+            producer();
             List<TopicPartition> fresh = new ArrayList<>();
             for (TopicPartition tp : partitions) {
                 if (!states.containsKey(tp)) {
@@ -311,7 +328,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         public void onPartitionsLost(Collection<TopicPartition> partitions) {
             // Another member owns them now; what was not committed is theirs to redo.
             if (inTransaction) {
-                Clients.quietly(LOG, producer::abortTransaction);
+                Clients.quietly(LOG, producer()::abortTransaction);
                 inTransaction = false;
                 uncommittedAccepted.clear();
                 uncommittedRejected.clear();
