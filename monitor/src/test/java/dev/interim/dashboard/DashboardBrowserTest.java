@@ -156,7 +156,7 @@ class DashboardBrowserTest {
     void theConsoleCheckCatchesAPageBrokenOnPurpose() throws Exception {
         assumeBrowser();
         browser.open(scenarios.uri().resolve("/broken"));
-        long deadline = System.nanoTime() + Duration.ofSeconds(10).toNanos();
+        long deadline = System.nanoTime() + Duration.ofSeconds(30).toNanos();
         while (browser.problems().size() < 3 && System.nanoTime() < deadline) {
             Thread.sleep(100);
         }
