@@ -56,6 +56,11 @@ final class ByteBuilder {
         bytes[size++] = (byte) n;
     }
 
+    /** Appends what this holds to {@code out}. */
+    void writeTo(ByteBuilder out) {
+        out.write(bytes, 0, size);
+    }
+
     int size() {
         return size;
     }

@@ -36,7 +36,6 @@ import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.KafkaException;
 import org.apache.kafka.common.TopicPartition;
@@ -82,9 +81,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
      */
     private final Map<Integer, Long> catchingUp = new HashMap<>();
     private KafkaConsumer<byte[], byte[]> consumer;
-    private KafkaProducer<byte[], byte[]> producer;
-    /** The producer being made at the start, until {@link #producer()} takes it. */
-    private StartingProducer starting;
+    private StageProducer producer;
 
     public JudgeStage(StreamSettings settings, Catalog catalog, Clock clock, StageEvents events,
                       DecisionWriter writer) {
@@ -176,7 +173,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
     public void run() {
         try {
             consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.judgeGroup(), member));
-            starting = new StartingProducer(settings, "judge", member);
+            producer = new StageProducer(settings, "judge", member, LOG);
             consumer.subscribe(List.of(settings.talliesTopic()), new Rebalance());
             while (running.get()) {
                 for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
@@ -193,20 +190,10 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         } finally {
             assigned = false;
             if (producer != null) {
-                Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-            } else if (starting != null) {
-                starting.closeWhenReady(Duration.ofSeconds(5));
+                producer.close();
             }
             Clients.quietly(LOG, () -> Clients.close(consumer, leaveGroupOnClose));
         }
-    }
-
-    /** The transactional producer, waiting for the one made at the start the first time. */
-    private KafkaProducer<byte[], byte[]> producer() {
-        if (producer == null) {
-            producer = starting.get();
-        }
-        return producer;
     }
 
     private void apply(byte[] key, byte[] value) {
@@ -348,33 +335,31 @@ public final class JudgeStage implements Runnable, AutoCloseable {
      */
     private boolean commit(Cycle cycle) {
         try {
-            producer().beginTransaction();
+            producer.get().beginTransaction();
             for (DecisionRecord d : cycle.decisions) {
-                producer().send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
+                producer.get().send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(d.experiment()),
                         writer.decision(d)));
             }
             for (Acknowledgement a : cycle.acknowledgements) {
-                producer().send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(a.experiment()),
+                producer.get().send(new ProducerRecord<>(settings.decisionsTopic(), StateCodec.key(a.experiment()),
                         writer.acknowledgement(a)));
             }
-            cycle.operatorChanges.forEach((id, state) -> producer().send(new ProducerRecord<>(settings.looksTopic(),
+            cycle.operatorChanges.forEach((id, state) -> producer.get().send(new ProducerRecord<>(settings.looksTopic(),
                     settings.stateFor(id), StateCodec.key(id), StateCodec.operatorState(state))));
             for (ComparisonKey key : cycle.changed) {
                 sendComparison(key);
             }
             if (!pending.isEmpty()) {
-                producer().sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
+                producer.get().sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
             }
-            producer().commitTransaction();
+            producer.get().commitTransaction();
             pending.clear();
         } catch (FencedInstanceIdException e) {
             cycle.failCommands(e);
             throw e;   // another process uses this instance's member id: stopping is the only safe answer
         } catch (KafkaException e) {
             LOG.warn("judge commit failed ({}); restoring owned experiments from the committed look history", e.toString());
-            Clients.quietly(LOG, producer()::abortTransaction);
-            Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-            producer = Clients.transactionalProducer(settings, "judge", member);
+            producer.renew();
             cycle.failCommands(e);
             Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
             disown(assigned);
@@ -393,11 +378,11 @@ public final class JudgeStage implements Runnable, AutoCloseable {
         Comparison c = owned.get(key.experiment()).comparison(key.metric(), key.arm());
         List<LookPoint> points = c.points();
         int size = points.size();
-        producer().send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+        producer.get().send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
                 StateCodec.key(key.text()), StateCodec.history(c.snapshot(), c.decision(), c.last(), size)));
         for (int block = c.unsavedFrom() / StateCodec.POINTS_PER_BLOCK;
              block * StateCodec.POINTS_PER_BLOCK < size; block++) {
-            producer().send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
+            producer.get().send(new ProducerRecord<>(settings.looksTopic(), settings.stateFor(key.experiment()),
                     StateCodec.key(key.pointsKey(block)), StateCodec.points(points, block, size)));
         }
     }
@@ -634,7 +619,7 @@ public final class JudgeStage implements Runnable, AutoCloseable {
 
         @Override
         public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
-            producer();   // initialised before the state is read, as the tally stage does
+            producer.get();   // initialised before the state is read, as the tally stage does
             own(partitions);
             assigned = true;   // called after every rebalance, with what was added (possibly nothing)
         }

@@ -153,8 +153,8 @@ final class StateCodec {
         private final byte[][] arms;
         private final byte[][] rates;
         private final byte[][] totals;
-        private byte[] buffer = new byte[64];
-        private int length;
+        /** The record being built, reused from unit to unit. */
+        private final ByteBuilder value = new ByteBuilder(64);
 
         UnitEncoder(String source, String experiment, String[] armNames, String[] rateNames, String[] totalNames) {
             byte[] s = source.getBytes(StandardCharsets.UTF_8);
@@ -199,67 +199,37 @@ final class StateCodec {
 
         /** Starts a record: version and arm, then the count of unit-rate metrics met. */
         void begin(int arm, int metCount) {
-            length = 0;
-            put(UNIT_VERSION);
-            put(arms[arm]);
-            putLength(metCount);
+            value.reset();
+            value.write(UNIT_VERSION);
+            value.write(arms[arm]);
+            value.writeLength(metCount);
         }
 
         void met(int rate) {
-            put(rates[rate]);
+            value.write(rates[rate]);
         }
 
         void totalCount(int n) {
-            putLength(n);
+            value.writeLength(n);
         }
 
-        void total(int metric, double value) {
-            put(totals[metric]);
-            long bits = Double.doubleToRawLongBits(value);
-            ensure(8);
-            for (int shift = 56; shift >= 0; shift -= 8) {
-                buffer[length++] = (byte) (bits >>> shift);
-            }
+        void total(int metric, double v) {
+            value.write(totals[metric]);
+            value.writeLong(Double.doubleToRawLongBits(v));
         }
 
         byte[] finish() {
-            return java.util.Arrays.copyOf(buffer, length);
+            return value.toByteArray();
         }
 
         /** The length of the record begun with {@link #begin}, as it stands. */
         int valueLength() {
-            return length;
+            return value.size();
         }
 
         /** Writes the record begun with {@link #begin} into {@code out}: the bytes {@link #finish} returns. */
         void writeValue(ByteBuilder out) {
-            out.write(buffer, 0, length);
-        }
-
-        private void put(byte b) {
-            ensure(1);
-            buffer[length++] = b;
-        }
-
-        private void put(byte[] b) {
-            ensure(b.length);
-            System.arraycopy(b, 0, buffer, length, b.length);
-            length += b.length;
-        }
-
-        private void putLength(int n) {
-            ensure(5);
-            while ((n & ~0x7f) != 0) {
-                buffer[length++] = (byte) ((n & 0x7f) | 0x80);
-                n >>>= 7;
-            }
-            buffer[length++] = (byte) n;
-        }
-
-        private void ensure(int more) {
-            if (length + more > buffer.length) {
-                buffer = java.util.Arrays.copyOf(buffer, Math.max(2 * buffer.length, length + more));
-            }
+            value.writeTo(out);
         }
     }
 

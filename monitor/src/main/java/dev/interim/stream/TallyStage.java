@@ -21,7 +21,6 @@ import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.ConsumerRecords;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.KafkaException;
@@ -69,9 +68,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
     private final Map<String, Long> uncommittedAccepted = new HashMap<>();
     private final Map<BadEventException.Reason, Long> uncommittedRejected = new HashMap<>();
     private KafkaConsumer<byte[], byte[]> consumer;
-    private KafkaProducer<byte[], byte[]> producer;
-    /** The producer being made at the start, until {@link #producer()} takes it. */
-    private StartingProducer starting;
+    private StageProducer producer;
     private boolean inTransaction;
     /** The clock that times the commit interval (the judge takes one too): tests may move it. */
     private final Clock clock;
@@ -98,7 +95,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
     public void run() {
         try {
             consumer = new KafkaConsumer<>(Clients.groupConsumer(settings, settings.tallyGroup(), member));
-            starting = new StartingProducer(settings, "tally", member);
+            producer = new StageProducer(settings, "tally", member, LOG);
             consumer.subscribe(settings.inputTopics(), new Rebalance());
             while (running.get()) {
                 ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
@@ -117,9 +114,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
             Clients.quietly(LOG, this::commit);
         } finally {
             if (producer != null) {
-                Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-            } else if (starting != null) {
-                starting.closeWhenReady(Duration.ofSeconds(5));
+                producer.close();
             }
             Clients.quietly(LOG, () -> Clients.close(consumer, leaveGroupOnClose));
         }
@@ -171,21 +166,13 @@ public final class TallyStage implements Runnable, AutoCloseable {
         String detail = e.getMessage() == null ? "" : e.getMessage();
         letter.headers().add(new RecordHeader(DETAIL_HEADER,
                 (record.topic() + "-" + record.partition() + "@" + record.offset() + ": " + detail).getBytes(StandardCharsets.UTF_8)));
-        producer().send(letter);
+        producer.get().send(letter);
         uncommittedRejected.merge(e.reason(), 1L, Long::sum);
-    }
-
-    /** The transactional producer, waiting for the one made at the start the first time. */
-    private KafkaProducer<byte[], byte[]> producer() {
-        if (producer == null) {
-            producer = starting.get();
-        }
-        return producer;
     }
 
     private void begin() {
         if (!inTransaction) {
-            producer().beginTransaction();
+            producer.get().beginTransaction();
             inTransaction = true;
         }
     }
@@ -202,17 +189,17 @@ public final class TallyStage implements Runnable, AutoCloseable {
             for (Map.Entry<TopicPartition, PartitionState> e : states.entrySet()) {
                 PartitionState state = e.getValue();
                 for (PartitionState.Partial p : state.drainChangedPartials()) {
-                    producer().send(new ProducerRecord<>(settings.talliesTopic(), settings.stateFor(p.key().experiment()),
+                    producer.get().send(new ProducerRecord<>(settings.talliesTopic(), settings.stateFor(p.key().experiment()),
                             StateCodec.key(p.key().text()), StateCodec.partial(p.tally())));
                 }
                 int unitsPartition = e.getKey().partition();
-                changelog(e.getKey()).commit(state, (key, value) -> producer().send(new ProducerRecord<>(settings.unitsTopic(),
+                changelog(e.getKey()).commit(state, (key, value) -> producer.get().send(new ProducerRecord<>(settings.unitsTopic(),
                         unitsPartition, key, value)));
             }
             if (!pending.isEmpty()) {
-                producer().sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
+                producer.get().sendOffsetsToTransaction(new HashMap<>(pending), consumer.groupMetadata());
             }
-            producer().commitTransaction();
+            producer.get().commitTransaction();
             inTransaction = false;
             pending.clear();
             uncommittedAccepted.forEach(events::accepted);
@@ -237,13 +224,11 @@ public final class TallyStage implements Runnable, AutoCloseable {
 
     /** After a failed transaction: abort, reload state and offsets as last committed. */
     private void recover() {
-        Clients.quietly(LOG, producer()::abortTransaction);
+        producer.renew();
         inTransaction = false;
         pending.clear();
         uncommittedAccepted.clear();
         uncommittedRejected.clear();
-        Clients.quietly(LOG, () -> producer.close(Duration.ofSeconds(5)));
-        producer = Clients.transactionalProducer(settings, "tally", member);
         Set<TopicPartition> assigned = new HashSet<>(consumer.assignment());
         states.clear();
         changelogs.clear();
@@ -314,7 +299,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
             // The producer first (made while the group was joined): its initTransactions aborts what
             // a crashed predecessor left open, which the restore would otherwise wait out.
-            producer();
+            producer.get();
             List<TopicPartition> fresh = new ArrayList<>();
             for (TopicPartition tp : partitions) {
                 if (!states.containsKey(tp)) {
@@ -328,7 +313,7 @@ public final class TallyStage implements Runnable, AutoCloseable {
         public void onPartitionsLost(Collection<TopicPartition> partitions) {
             // Another member owns them now; what was not committed is theirs to redo.
             if (inTransaction) {
-                Clients.quietly(LOG, producer()::abortTransaction);
+                Clients.quietly(LOG, producer.get()::abortTransaction);
                 inTransaction = false;
                 uncommittedAccepted.clear();
                 uncommittedRejected.clear();
