@@ -302,7 +302,8 @@ public final class StreamBench implements Callable<Integer> {
             say("    daemon, from first count        n/a: the first count and the end fell between two polls");
         }
         say("    daemon start-up: HTTP up " + seconds(c.ready) + " s, first event counted by " + seconds(c.firstCount)
-                + " s after process start (polled every " + POLL_EVERY.toMillis() + " ms)");
+                + " s after process start (polled every " + POLL_EVERY.toMillis() + " ms); "
+                + (daemon.archiveNote().startsWith("no ") ? "no class-data archive yet" : "class-data archive used"));
         StringBuilder marks = new StringBuilder("    daemon progress (its meter of accepted events): ");
         for (int i = 0; i < MARKS.length; i++) {
             marks.append(i == 0 ? "" : ", ").append(Math.round(MARKS[i] * 100)).append("% at ").append(seconds(c.marks[i])).append(" s");
@@ -578,6 +579,7 @@ public final class StreamBench implements Callable<Integer> {
     private DaemonRun runDaemon(Path config, long n, StreamTruth truth) throws Exception {
         daemon = new StreamDaemon(daemonJar.toAbsolutePath(), daemonHeap, config, runDir);
         say("  daemon       " + String.join(" ", daemon.command()));
+        say("  start-up     " + daemon.archiveNote());
         List<StreamScenario.Experiment> experiments = StreamScenario.EXPERIMENTS;
         int count = experiments.size();
         Instant[] incompleteAsOf = new Instant[count];

@@ -30,6 +30,10 @@ final class StreamDaemon implements AutoCloseable {
     private final Path log;
     private final Path gcLog;
     private final HttpClient http = HttpClient.newBuilder().connectTimeout(Duration.ofSeconds(5)).build();
+    /** The class-data sharing archive beside the jar, as {@code scripts/interim} keeps it. */
+    private final Path archive;
+    /** Where this daemon writes the archive as it exits when there was none to use; null when it uses one. */
+    private final Path partial;
     private Process process;
     private String base;
 
@@ -46,6 +50,18 @@ final class StreamDaemon implements AutoCloseable {
         if (extra != null && !extra.isBlank()) {
             c.addAll(List.of(extra.trim().split("\\s+")));
         }
+        // Start-up as scripts/interim gives it: the classes mapped from the archive beside the jar when
+        // it is newer than the jar; else this daemon writes one as it exits, for the next run.
+        String name = jar.getFileName().toString();
+        this.archive = jar.resolveSibling(name.substring(0, name.length() - ".jar".length()) + ".jsa");
+        if (fresh(archive, jar)) {
+            this.partial = null;
+            c.add("-XX:SharedArchiveFile=" + archive);
+        } else {
+            this.partial = archive.resolveSibling(archive.getFileName() + "." + ProcessHandle.current().pid() + ".partial");
+            c.add("-XX:ArchiveClassesAtExit=" + partial);
+        }
+        c.add("-Xlog:cds*=off");
         c.addAll(List.of("-cp", jar.toString(), "dev.interim.cli.Interim", "run", "--config", config.toString(),
                 "--data-dir", runDir.resolve("daemon-data").toString()));
         this.command = List.copyOf(c);
@@ -53,6 +69,22 @@ final class StreamDaemon implements AutoCloseable {
 
     List<String> command() {
         return command;
+    }
+
+    /** What the daemon's start-up had: a class-data sharing archive, or none (it writes one at exit). */
+    String archiveNote() {
+        return partial == null ? "class-data sharing archive " + archive
+                : "no class-data sharing archive yet: the daemon writes " + archive.getFileName()
+                        + " as it exits, so later runs start faster";
+    }
+
+    private static boolean fresh(Path archive, Path jar) {
+        try {
+            return Files.isRegularFile(archive)
+                    && Files.getLastModifiedTime(archive).compareTo(Files.getLastModifiedTime(jar)) > 0;
+        } catch (IOException e) {
+            return false;
+        }
     }
 
     Path log() {
@@ -151,6 +183,22 @@ final class StreamDaemon implements AutoCloseable {
         } catch (InterruptedException e) {
             process.destroyForcibly();
             Thread.currentThread().interrupt();
+        }
+        if (partial != null) {
+            try {
+                if (!process.isAlive() && Files.size(partial) > 0) {
+                    Files.move(partial, archive, java.nio.file.StandardCopyOption.REPLACE_EXISTING,
+                            java.nio.file.StandardCopyOption.ATOMIC_MOVE);
+                }
+            } catch (IOException e) {
+                // No archive (the daemon was killed before writing it): the next run makes one.
+            } finally {
+                try {
+                    Files.deleteIfExists(partial);
+                } catch (IOException ignored) {
+                    // a stray partial file in target/ costs nothing
+                }
+            }
         }
     }
 

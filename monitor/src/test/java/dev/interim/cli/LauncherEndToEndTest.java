@@ -46,19 +46,55 @@ class LauncherEndToEndTest {
         assertThat(bad.err().lines().toList()).singleElement().asString().startsWith("interim: --sides");
     }
 
+    @Test
+    void aFirstDaemonCommandWritesTheClassArchiveThatLaterCommandsStartFrom(@TempDir Path elsewhere) throws Exception {
+        Path launcher = findLauncher();
+        Run plain = run(launcher, elsewhere, "plan", "--looks", "3", "--format", "csv");   // builds the jar if need be
+        assertThat(plain.exit()).as(plain.err()).isZero();
+        Path jar = launcher.getParent().resolveSibling("monitor").resolve("target").resolve("interim-all.jar");
+        Path archive = jar.resolveSibling("interim-all.jsa");
+        Files.deleteIfExists(archive);
+
+        // 'run' without an archive writes one as the JVM exits, even when it exits at once on bad input.
+        Run missing = run(launcher, elsewhere, "run", "--config", elsewhere.resolve("absent.yaml").toString());
+        assertThat(missing.exit()).isEqualTo(2);
+        assertThat(missing.err().lines().toList()).as("only the tool's own message on stderr, no JVM warning")
+                .singleElement().asString().startsWith("interim: no configuration file at");
+        assertThat(archive).exists();
+        assertThat(Files.getLastModifiedTime(archive)).isGreaterThan(Files.getLastModifiedTime(jar));
+        try (var partials = Files.list(archive.getParent())) {
+            assertThat(partials.map(Path::toString)).noneMatch(f -> f.endsWith(".partial"));
+        }
+
+        // Later commands map it: -Xshare:on makes the JVM refuse to start when it cannot (a JVM option
+        // that JAVA_TOOL_OPTIONS puts before the launcher's own).
+        Run shared = run(launcher, elsewhere, java.util.Map.of("JAVA_TOOL_OPTIONS", "-Xshare:on"),
+                "plan", "--looks", "3", "--format", "csv");
+        assertThat(shared.exit()).as(shared.err()).isZero();
+        assertThat(shared.out()).isEqualTo(plain.out());
+    }
+
     private static Run run(Path launcher, Path directory, String... args) throws IOException, InterruptedException {
+        return run(launcher, directory, java.util.Map.of(), args);
+    }
+
+    private static Run run(Path launcher, Path directory, java.util.Map<String, String> env, String... args)
+            throws IOException, InterruptedException {
         List<String> command = new java.util.ArrayList<>(List.of(launcher.toString()));
         command.addAll(List.of(args));
         Path out = Files.createTempFile(directory, "out", ".txt");
         Path err = Files.createTempFile(directory, "err", ".txt");
-        Process p = new ProcessBuilder(command).directory(directory.toFile())
-                .redirectOutput(out.toFile()).redirectError(err.toFile()).start();
+        ProcessBuilder builder = new ProcessBuilder(command).directory(directory.toFile())
+                .redirectOutput(out.toFile()).redirectError(err.toFile());
+        builder.environment().putAll(env);
+        Process p = builder.start();
         if (!p.waitFor(BUILD_MINUTES, TimeUnit.MINUTES)) {
             p.destroyForcibly();
             throw new AssertionError("launcher did not finish within " + BUILD_MINUTES + " minutes");
         }
         String stderr = Files.readString(err, StandardCharsets.UTF_8)
-                .lines().filter(l -> !l.startsWith("interim: building") && !l.replaceAll("\u001B\\[[0-9;]*m", "").isBlank())
+                .lines().filter(l -> !l.startsWith("interim: building") && !l.startsWith("Picked up JAVA_TOOL_OPTIONS")
+                        && !l.replaceAll("\u001B\\[[0-9;]*m", "").isBlank())
                 .reduce("", (a, b) -> a + b + "\n");
         return new Run(p.exitValue(), Files.readString(out, StandardCharsets.UTF_8), stderr);
     }
