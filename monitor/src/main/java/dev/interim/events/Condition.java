@@ -73,13 +73,24 @@ public record Condition(Comparison comparison, List<JsonNode> operands) {
         return switch (comparison) {
             case EQUALS -> same(value, operands.get(0));
             case NOT_EQUALS -> !same(value, operands.get(0));
-            case IN -> operands.stream().anyMatch(o -> same(value, o));
-            case NOT_IN -> operands.stream().noneMatch(o -> same(value, o));
+            case IN -> sameAsAny(value);
+            case NOT_IN -> !sameAsAny(value);
             case ABOVE -> value.isNumber() && compare(value, operands.get(0)) > 0;
             case AT_LEAST -> value.isNumber() && compare(value, operands.get(0)) >= 0;
             case BELOW -> value.isNumber() && compare(value, operands.get(0)) < 0;
             case AT_MOST -> value.isNumber() && compare(value, operands.get(0)) <= 0;
         };
+    }
+
+    // Every event of a rate passes here: a loop rather than a stream, and integers compared as longs.
+
+    private boolean sameAsAny(JsonNode value) {
+        for (JsonNode o : operands) {
+            if (same(value, o)) {
+                return true;
+            }
+        }
+        return false;
     }
 
     private static boolean same(JsonNode value, JsonNode operand) {
@@ -92,7 +103,11 @@ public record Condition(Comparison comparison, List<JsonNode> operands) {
         return value.isBoolean() && operand.isBoolean() && value.booleanValue() == operand.booleanValue();
     }
 
+    /** Numbers by their decimal values (500 equals 500.0); two integers that fit a long, as longs. */
     private static int compare(JsonNode a, JsonNode b) {
+        if (a.isIntegralNumber() && b.isIntegralNumber() && a.canConvertToLong() && b.canConvertToLong()) {
+            return Long.compare(a.longValue(), b.longValue());
+        }
         return decimal(a).compareTo(decimal(b));
     }
 

@@ -5,6 +5,7 @@ import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.core.JsonToken;
 import com.fasterxml.jackson.core.StreamReadConstraints;
+import com.fasterxml.jackson.core.async.ByteArrayFeeder;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.interim.events.EventMapping;
 import dev.interim.events.MappedExperiment;
@@ -22,6 +23,7 @@ import java.nio.ByteOrder;
 import java.nio.charset.CharacterCodingException;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
 
 /**
@@ -60,6 +62,11 @@ public final class JsonEventReader implements EventReader {
      */
     public static final int MAX_UNIT_LENGTH = 1024;
     private static final int MAX_DEPTH = 64;
+    /**
+     * A thread's parser is made anew after this many events: its table of member names then holds only
+     * the names of recent events (Jackson bounds the shared table the names go back to).
+     */
+    private static final int RENEW_EVERY = 10_000;
     /** Eight bytes of an array read as one long (any byte order: only the high bits are looked at). */
     private static final VarHandle EIGHT_BYTES = MethodHandles.byteArrayViewVarHandle(long[].class, ByteOrder.nativeOrder());
     /** The high bit of each of eight bytes: set only in the bytes of multi-byte UTF-8 sequences. */
@@ -75,6 +82,8 @@ public final class JsonEventReader implements EventReader {
     /** The experiments by catalog index. */
     private final Experiment[] experiments;
     private final Catalog catalog;
+    /** Each reading thread's parser, fed event after event. */
+    private final ThreadLocal<Feed> feeds = ThreadLocal.withInitial(Feed::new);
 
     /** A metric's field slots; a ratio's denominator in {@code denominatorSlot} (else -1). */
     private record Metric(String name, MetricSource source, int slot, int denominatorSlot) {}
@@ -101,6 +110,9 @@ public final class JsonEventReader implements EventReader {
             }
             experiments[catalog.index(e.definition().id())] = new Experiment(metrics, e.definition().needsUnits());
         }
+        // Nearly every event names a configured experiment and one of its arms: matched without a new string.
+        pointers.expect(mapping.experiment(), catalog.experiments().stream().map(d -> d.id()).toList());
+        pointers.expect(mapping.arm(), catalog.experiments().stream().flatMap(d -> d.arms().stream()).toList());
     }
 
     /** The compiled catalog whose indices this reader's observations carry. */
@@ -118,27 +130,9 @@ public final class JsonEventReader implements EventReader {
         }
         // Every pointer's find, by slot: a scalar node, PointerTrie.OBJECT or .ARRAY, or null (missing).
         JsonNode[] found = new JsonNode[pointers.slots()];
-        JsonToken first;
-        JsonToken trailing;
-        try (JsonParser p = json.createParser(value)) {
-            first = p.nextToken();
-            if (first == null) {                          // nothing but whitespace
-                throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
-            }
-            pointers.read(p, first, found);
-            trailing = p.nextToken();
-        } catch (IOException | RuntimeException e) {
-            throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + firstLine(e.getMessage()));
-        }
-        if (trailing != null) {
-            // Worded as ObjectMapper words it (DeserializationFeature.FAIL_ON_TRAILING_TOKENS), as
-            // this reader did when it read events as trees.
-            throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + clip("Trailing token (of type "
-                    + trailing + ") found after value (bound as `" + JsonNode.class.getName()
-                    + "`): not allowed as per `DeserializationFeature.FAIL_ON_TRAILING_TOKENS`"));
-        }
-        if (first != JsonToken.START_OBJECT) {
-            throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
+        if (!feeds.get().read(value, found)) {
+            Arrays.fill(found, null);
+            readAlone(value, found);
         }
         String experimentId = text(found, experimentSlot, mapping.experiment(), "experiment");
         int experimentIndex = catalog.index(experimentId);
@@ -229,6 +223,114 @@ public final class JsonEventReader implements EventReader {
             } else {
                 sink.value(experimentIndex, armIndex, unit, i, numbers[i]);
             }
+        }
+    }
+
+    /**
+     * Reads the event with a parser of its own, which checks all of it: finds what the pointers find,
+     * or refuses the event with the reason and the parser's message. Every event the fast path of
+     * {@link Feed} does not accept comes here, so what is refused, and how, is this method's.
+     */
+    private void readAlone(byte[] value, JsonNode[] found) throws BadEventException {
+        JsonToken first;
+        JsonToken trailing;
+        try (JsonParser p = json.createParser(value)) {
+            first = p.nextToken();
+            if (first == null) {                          // nothing but whitespace
+                throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
+            }
+            pointers.read(p, first, found);
+            trailing = p.nextToken();
+        } catch (IOException | RuntimeException e) {
+            throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + firstLine(e.getMessage()));
+        }
+        if (trailing != null) {
+            // Worded as ObjectMapper words it (DeserializationFeature.FAIL_ON_TRAILING_TOKENS), as
+            // this reader did when it read events as trees.
+            throw new BadEventException(Reason.NOT_JSON, "not readable JSON: " + clip("Trailing token (of type "
+                    + trailing + ") found after value (bound as `" + JsonNode.class.getName()
+                    + "`): not allowed as per `DeserializationFeature.FAIL_ON_TRAILING_TOKENS`"));
+        }
+        if (first != JsonToken.START_OBJECT) {
+            throw new BadEventException(Reason.NOT_JSON, "an event must be a JSON object");
+        }
+    }
+
+    /**
+     * One thread's non-blocking parser, fed event after event. A parser of Jackson's costs more to make
+     * than a small event costs to read (some 700 bytes of parser, contexts and buffers); this one is
+     * made once per {@link #RENEW_EVERY} events. It reads an event only when the event is one object
+     * followed by nothing but whitespace, and says so; on anything else (a scalar, an object cut
+     * short, a token after the object, a byte order mark, any error) it says no and starts afresh,
+     * and the event is read again by {@link #readAlone}, which decides. So the fast path accepts
+     * exactly what {@code readAlone} accepts and finds the same values: both are Jackson's parsers with
+     * the same factory and limits, and the same pointer walk.
+     */
+    private final class Feed {
+        private JsonParser parser;
+        private ByteArrayFeeder feeder;
+        /** Bytes fed before the current event: the parser counts its offsets from its first input. */
+        private long fedBefore;
+        private int events;
+
+        boolean read(byte[] value, JsonNode[] found) {
+            if (value.length == 0 || value[0] == (byte) 0xEF) {       // nothing, or a byte order mark: readAlone
+                return false;
+            }
+            try {
+                if (parser == null || events >= RENEW_EVERY) {
+                    renew();
+                }
+                feeder.feedInput(value, 0, value.length);
+                JsonToken first = parser.nextToken();
+                if (first != JsonToken.START_OBJECT) {
+                    renew();
+                    return false;
+                }
+                pointers.read(parser, first, found);
+                if (!parser.getParsingContext().inRoot()) {
+                    // The input ran out inside the object (the walk took "not available" for its end).
+                    renew();
+                    return false;
+                }
+                // After the object's last brace: only whitespace (RFC 8259 §2) may follow.
+                long end = parser.currentLocation().getByteOffset() - fedBefore;
+                for (long i = end; i < value.length; i++) {
+                    byte b = value[(int) i];
+                    if (b != ' ' && b != '\t' && b != '\n' && b != '\r') {
+                        renew();
+                        return false;
+                    }
+                }
+                if (end < 0 || end > value.length || parser.nextToken() != JsonToken.NOT_AVAILABLE) {
+                    renew();
+                    return false;
+                }
+                fedBefore += value.length;
+                events++;
+                return true;
+            } catch (IOException | RuntimeException e) {
+                renew();
+                return false;
+            }
+        }
+
+        private void renew() {
+            if (parser != null) {
+                try {
+                    parser.close();
+                } catch (IOException ignored) {
+                    // nothing to release but buffers
+                }
+            }
+            try {
+                parser = json.createNonBlockingByteArrayParser();
+            } catch (IOException e) {
+                throw new java.io.UncheckedIOException(e);
+            }
+            feeder = (ByteArrayFeeder) parser.getNonBlockingInputFeeder();
+            fedBefore = 0;
+            events = 0;
         }
     }
 

@@ -11,8 +11,10 @@ import com.fasterxml.jackson.databind.node.JsonNodeFactory;
 import com.fasterxml.jackson.databind.node.MissingNode;
 import com.fasterxml.jackson.databind.node.NullNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import com.fasterxml.jackson.databind.node.TextNode;
 import java.io.IOException;
 import java.util.Arrays;
+import java.util.Collection;
 import java.util.HashMap;
 import java.util.Map;
 
@@ -73,6 +75,8 @@ final class PointerTrie {
         Map<Integer, Node> farElements;
         /** The largest index with a child, or -1. */
         int lastIndex = -1;
+        /** Text this place is expected to hold, by length, as the nodes to record; null when none is. */
+        TextNode[][] known;
 
         Node(int id) {
             this.id = id;
@@ -135,6 +139,32 @@ final class PointerTrie {
         return node.slot;
     }
 
+    /**
+     * Texts that {@code pointer} (already added) usually finds, such as the configured experiment ids:
+     * a pass records one of these nodes when the text is equal to it, instead of decoding a new string.
+     * What is recorded is the same either way; only the work differs.
+     */
+    void expect(JsonPointer pointer, Collection<String> texts) {
+        Node node = root;
+        for (JsonPointer at = pointer; !at.matches(); at = at.tail()) {
+            node = node.child(at);
+        }
+        int longest = texts.stream().mapToInt(String::length).max().orElse(-1);
+        TextNode[][] byLength = node.known == null ? new TextNode[longest + 1][] : node.known;
+        if (byLength.length <= longest) {
+            byLength = Arrays.copyOf(byLength, longest + 1);
+        }
+        for (String text : new java.util.LinkedHashSet<>(texts)) {
+            TextNode[] same = byLength[text.length()];
+            if (same == null || Arrays.stream(same).noneMatch(t -> t.textValue().equals(text))) {
+                same = same == null ? new TextNode[1] : Arrays.copyOf(same, same.length + 1);
+                same[same.length - 1] = NODES.textNode(text);
+                byLength[text.length()] = same;
+            }
+        }
+        node.known = byLength;
+    }
+
     /** How many slots a pass fills: one per distinct pointer added. */
     int slots() {
         return slots;
@@ -174,10 +204,10 @@ final class PointerTrie {
             } else {
                 array(p, node, found, visited);
             }
-        } else if (t == null) {
+        } else if (t == null || t == JsonToken.NOT_AVAILABLE) {
             throw endOfInput(p);
         } else if (node.slot >= 0) {
-            found[node.slot] = scalar(p, t);
+            found[node.slot] = t == JsonToken.VALUE_STRING && node.known != null ? text(p, node.known) : scalar(p, t);
         }
     }
 
@@ -216,12 +246,17 @@ final class PointerTrie {
             skipObject(p);
         } else if (t == JsonToken.START_ARRAY) {
             skipArray(p);
-        } else if (t == null) {
+        } else if (t == null || t == JsonToken.NOT_AVAILABLE) {
             throw endOfInput(p);
         }
     }
 
-    /** The parser itself reports an end of input inside a value; this only guards the loops. */
+    /**
+     * A blocking parser reports an end of input inside a value itself; this only guards the loops, and
+     * stops a non-blocking parser, which says {@link JsonToken#NOT_AVAILABLE} until it is fed more.
+     * (Its {@code nextFieldName()} then says null, as at the end of an object: whoever feeds it checks
+     * that the value really ended.)
+     */
     private static JsonParseException endOfInput(JsonParser p) {
         return new JsonParseException(p, "Unexpected end-of-input within a value");
     }
@@ -241,6 +276,26 @@ final class PointerTrie {
         for (JsonToken t = p.nextToken(); t != JsonToken.END_ARRAY; t = p.nextToken()) {
             skip(p, t);
         }
+    }
+
+    /** The current string token as a node: one of {@code known} when it equals one, else a new one. */
+    private static JsonNode text(JsonParser p, TextNode[][] known) throws IOException {
+        char[] chars = p.getTextCharacters();
+        int offset = p.getTextOffset();
+        int length = p.getTextLength();
+        if (length < known.length && known[length] != null) {
+            for (TextNode candidate : known[length]) {
+                String k = candidate.textValue();
+                int i = 0;
+                while (i < length && k.charAt(i) == chars[offset + i]) {
+                    i++;
+                }
+                if (i == length) {
+                    return candidate;
+                }
+            }
+        }
+        return NODES.textNode(new String(chars, offset, length));
     }
 
     /**
