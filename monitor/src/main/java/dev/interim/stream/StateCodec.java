@@ -233,14 +233,6 @@ final class StateCodec {
         }
     }
 
-    /**
-     * Reads a units changelog key. Its layout follows its value's: the JSON records of version 1 were
-     * keyed by the unit id as text, which is hashed here to the key that the unit has now (so state
-     * written before the binary records still restores; a later binary record of the same unit, at a
-     * later offset, replaces it).
-     *
-     * @throws IllegalArgumentException when the key is not one of a unit
-     */
     /** The source ("topic-partition") of a units-topic key: its bytes before the first 0x1e. */
     static String unitSource(byte[] key) {
         int cut = indexOf(key, SOURCE_END, 0);
