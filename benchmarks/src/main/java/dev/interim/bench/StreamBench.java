@@ -315,6 +315,15 @@ public final class StreamBench implements Callable<Integer> {
                     0.8 * n / (to90.minus(from10).toNanos() / 1e9)));
         }
         say(marks.toString());
+        // CPU time: what each measurement cost the machine, whatever other guests took from it (steal
+        // time is not CPU time of ours); the wall-clock rates above move with it, these much less.
+        StringBuilder cpu = new StringBuilder(String.format(Locale.ROOT,
+                "  CPU per event (a) %.2f µs, (b) %.2f µs (the polling thread's)", a.cpuNanos / 1e3 / n, b.cpuNanos / 1e3 / n));
+        if (c.cpu != null) {
+            cpu.append(String.format(Locale.ROOT, ", (c) %.2f µs (the daemon process, every thread, start-up included)",
+                    c.cpu.toNanos() / 1e3 / n));
+        }
+        say(cpu.toString());
         StreamDaemon.GcSummary gc = c.gc;
         if (gc.pauses() == 0) {
             say("  daemon heap  no GC pause logged (the heap never filled); see " + daemon.gcLog());
@@ -438,7 +447,8 @@ public final class StreamBench implements Callable<Integer> {
     // ---------------------------------------------------------------- plain consumers
 
     /** What one drain of the topic took, from consumer creation to the last record. */
-    record Drain(long nanos, long bytes) {}
+    /** A drain's wall-clock time, the bytes it read, and the CPU time of the thread that polled and read. */
+    record Drain(long nanos, long bytes, long cpuNanos) {}
 
     /** The reader and its sink, for (b). */
     record Parsing(JsonEventReader reader, CountingSink sink) {}
@@ -489,6 +499,7 @@ public final class StreamBench implements Callable<Integer> {
         p.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
         p.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
         long stall = Duration.ofSeconds(stallSeconds).toNanos();
+        long cpuStart = java.lang.management.ManagementFactory.getThreadMXBean().getCurrentThreadCpuTime();
         long start = System.nanoTime();
         long end;
         long count = 0;
@@ -537,7 +548,8 @@ public final class StreamBench implements Callable<Integer> {
         }
         say(String.format(Locale.ROOT, "  %-31s %,d events in %.2f s (%,.0f MB/s of JSON)", label, n, (end - start) / 1e9,
                 bytes / 1e6 / ((end - start) / 1e9)));
-        return new Drain(end - start, bytes);
+        long cpu = java.lang.management.ManagementFactory.getThreadMXBean().getCurrentThreadCpuTime() - cpuStart;
+        return new Drain(end - start, bytes, cpu);
     }
 
     private void checkParsed(CountingSink s, StreamTruth t) {
@@ -559,7 +571,7 @@ public final class StreamBench implements Callable<Integer> {
 
     /** The daemon's figures: durations from process start (and from the first count) to the end. */
     record DaemonRun(Duration fromStart, Duration fromFirstCount, Duration ready, Duration firstCount, Duration[] marks,
-                     double sumDeviation, StreamDaemon.GcSummary gc, StreamDaemon.LogSummary log) {}
+                     double sumDeviation, StreamDaemon.GcSummary gc, StreamDaemon.LogSummary log, Duration cpu) {}
 
     /** Shares of the events at which the daemon's progress is noted (from its meter of accepted events). */
     private static final double[] MARKS = {0.1, 0.5, 0.9, 1.0};
@@ -697,6 +709,7 @@ public final class StreamBench implements Callable<Integer> {
                 + "bench at %.2f s)", "(c) daemon", n, fromStart.toNanos() / 1e9, Duration.between(startedAt, seenAt).toNanos() / 1e9));
 
         // More looks: a double count or a late change would show now.
+        Duration cpu = daemon.cpu();   // every thread's, until every event was counted and looked at
         Thread.sleep(SETTLE.toMillis());
         JsonNode api = daemon.experiments();
         String metrics = daemon.metrics();
@@ -728,7 +741,7 @@ public final class StreamBench implements Callable<Integer> {
         }
         return new DaemonRun(fromStart, fromFirst, Duration.between(startedAt, readyAt),
                 firstCountedAt == null ? null : Duration.between(startedAt, firstCountedAt), marks, deviation,
-                daemon.summarizeGc(), daemon.summarizeLog());
+                daemon.summarizeGc(), daemon.summarizeLog(), cpu);
     }
 
     private static JsonNode find(JsonNode api, String id) {

@@ -99,6 +99,11 @@ final class StreamDaemon implements AutoCloseable {
         process = new ProcessBuilder(command).redirectErrorStream(true).redirectOutput(log.toFile()).start();
     }
 
+    /** The CPU time of the daemon's process so far (every thread), or null where the system does not tell. */
+    Duration cpu() {
+        return process.info().totalCpuDuration().orElse(null);
+    }
+
     boolean alive() {
         return process != null && process.isAlive();
     }
