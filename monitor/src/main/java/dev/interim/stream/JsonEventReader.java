@@ -315,14 +315,8 @@ public final class JsonEventReader implements EventReader {
                 }
                 // After the object's last brace: only whitespace (RFC 8259 §2) may follow.
                 long end = parser.currentLocation().getByteOffset() - fedBefore;
-                for (long i = end; i < value.length; i++) {
-                    byte b = value[(int) i];
-                    if (b != ' ' && b != '\t' && b != '\n' && b != '\r') {
-                        renew();
-                        return false;
-                    }
-                }
-                if (end < 0 || end > value.length || parser.nextToken() != JsonToken.NOT_AVAILABLE) {
+                if (end < 0 || end > value.length || !whitespace(value, (int) end)
+                        || parser.nextToken() != JsonToken.NOT_AVAILABLE) {
                     renew();
                     return false;
                 }
@@ -333,6 +327,16 @@ public final class JsonEventReader implements EventReader {
                 renew();
                 return false;
             }
+        }
+
+        private static boolean whitespace(byte[] value, int from) {
+            for (int i = from; i < value.length; i++) {
+                byte b = value[i];
+                if (b != ' ' && b != '\t' && b != '\n' && b != '\r') {
+                    return false;
+                }
+            }
+            return true;
         }
 
         private void renew() {
